@@ -1,0 +1,122 @@
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { dirname, join } from 'node:path';
+import { COMMANDS, findCommand } from '../commands/registry.js';
+import type { CommandContext, CommandRun } from '../commands/types.js';
+import { isInputError } from '../errors.js';
+import { nearest } from './args.js';
+
+export function packageVersion(): string {
+  const here = dirname(fileURLToPath(import.meta.url));
+  for (const p of [join(here, '..', '..', 'package.json'), join(here, '..', 'package.json')]) {
+    try {
+      const pkg = JSON.parse(readFileSync(p, 'utf8')) as { name?: string; version?: string };
+      if (pkg.name === 'tolrate' && pkg.version) return pkg.version;
+    } catch {
+      // try the next location
+    }
+  }
+  return 'unknown';
+}
+
+export function mainHelp(): string {
+  const lines: string[] = [];
+  lines.push('tolrate — document a test of controls by attribute sampling');
+  lines.push('');
+  lines.push('Usage: tolrate [COMMAND] [OPTIONS]');
+  lines.push('       tolrate            on a terminal: start a new test or continue a workpaper file');
+  const groups: Array<[string, string]> = [
+    ['test', 'A test, from plan to memo (interviews need a terminal):'],
+    ['calculators', 'Calculators (flags in, a table or --json out):'],
+    ['other', 'Other:'],
+  ];
+  for (const [g, title] of groups) {
+    lines.push('');
+    lines.push(title);
+    for (const c of COMMANDS.filter((x) => x.group === g)) lines.push(`  ${c.name.padEnd(11)}${c.summary}`);
+  }
+  lines.push('');
+  lines.push('Options: --help (also after any command), --version');
+  lines.push('');
+  lines.push('Examples:');
+  lines.push('  tolrate demo --out demo-output');
+  lines.push('  tolrate size --confidence 95 --tolerable 6 --expected 1');
+  lines.push('  tolrate limit --sample 78 --deviations 2 --confidence 95 --tolerable 6');
+  lines.push('');
+  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage.');
+  lines.push('');
+  lines.push('The tool computes. Whether a control can be relied on, and how severe a deficiency is, are');
+  lines.push('the practitioner\'s judgements under the auditing standards that apply (e.g. AU-C 530,');
+  lines.push('ISA 530, AS 2315) and the firm\'s methodology.');
+  return lines.join('\n') + '\n';
+}
+
+/** Load a command module lazily: heavy libraries are imported only by the commands that use them. */
+async function loadCommand(name: string): Promise<CommandRun> {
+  const mod = (await import(`../commands/${name}/index.js`)) as { run: CommandRun };
+  return mod.run;
+}
+
+export function defaultContext(): CommandContext {
+  const isTTY = Boolean(process.stdout.isTTY && process.stdin.isTTY);
+  return {
+    stdout: process.stdout,
+    stderr: process.stderr,
+    isTTY,
+    color: Boolean(process.stdout.isTTY) && !('NO_COLOR' in process.env && process.env.NO_COLOR !== ''),
+    cwd: process.cwd(),
+    env: process.env,
+  };
+}
+
+/** Run the CLI with the given arguments; resolves to the exit code. */
+export async function runCli(argv: string[], ctx: CommandContext = defaultContext()): Promise<number> {
+  const [first, ...rest] = argv;
+  try {
+    if (first === undefined) {
+      return await (await loadCommand('start'))([], ctx);
+    }
+    if (first === '--help' || first === '-h' || first === 'help') {
+      if (first === 'help' && rest[0] && findCommand(rest[0])) {
+        return await (await loadCommand(rest[0]))(['--help'], ctx);
+      }
+      ctx.stdout.write(mainHelp());
+      return 0;
+    }
+    if (first === '--version' || first === '-V' || first === 'version') {
+      ctx.stdout.write(`tolrate ${packageVersion()}\n`);
+      return 0;
+    }
+    if (first.startsWith('-')) {
+      const guess = nearest(first.replace(/^-+/, ''), ['help', 'version']);
+      ctx.stderr.write(
+        `tolrate: unknown option ${first}.${guess ? ` Did you mean --${guess}?` : ''}\nSee: tolrate --help\n`,
+      );
+      return 2;
+    }
+    const info = findCommand(first);
+    if (!info) {
+      const guess = nearest(first, COMMANDS.map((c) => c.name));
+      ctx.stderr.write(
+        `tolrate: unknown command "${first}".${guess ? ` Did you mean "${guess}"?` : ''}\nSee: tolrate --help\n`,
+      );
+      return 2;
+    }
+    return await (await loadCommand(info.name))(rest, ctx);
+  } catch (e) {
+    if (isInputError(e)) {
+      ctx.stderr.write(`${e.message}\n`);
+      for (const d of e.details) ctx.stderr.write(`  ${d}\n`);
+      return 2;
+    }
+    if (e instanceof Error && e.name === 'ExitPromptError') {
+      ctx.stderr.write('\nStopped. Everything answered up to the last completed step is saved.\n');
+      return 130;
+    }
+    const msg = e instanceof Error ? e.message : String(e);
+    ctx.stderr.write(`tolrate: internal error: ${msg}\n`);
+    if (ctx.env.TOLRATE_DEBUG && e instanceof Error && e.stack) ctx.stderr.write(`${e.stack}\n`);
+    else ctx.stderr.write('This is a bug in tolrate. Run again with TOLRATE_DEBUG=1 for details.\n');
+    return 70;
+  }
+}
