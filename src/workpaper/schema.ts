@@ -1,0 +1,400 @@
+/**
+ * The workpaper file (`*.tolrate.json`): the single record of one test of a control.
+ *
+ * Every section after the header is optional so that a test saved half-way (planning done,
+ * fieldwork pending) is a valid file; the interview continues from the first missing step.
+ * Rates are fractions (0.06). Amounts are decimal strings (never floats). Dates are ISO
+ * `YYYY-MM-DD`; times are ISO date-times in UTC.
+ *
+ * Changing the shape: bump SCHEMA_VERSION and add a step to `migrate()` in file.ts.
+ */
+import * as z from 'zod';
+
+export const SCHEMA_VERSION = 1;
+
+const text = z.string().trim().min(1, 'must not be empty');
+const optText = z.string().trim().optional();
+const isoDate = z.iso.date({ error: 'must be a date written YYYY-MM-DD' });
+const isoTime = z.iso.datetime({ error: 'must be an ISO date-time' });
+/** A rate strictly between 0 and 1 (0.06 = 6%). */
+const rate = z.number().gt(0, 'must be above 0%').lt(1, 'must be below 100%');
+const rateOrZero = z.number().gte(0, 'must not be negative').lt(1, 'must be below 100%');
+const count = z.number().int('must be a whole number').nonnegative('must not be negative');
+const positive = z.number().int('must be a whole number').positive('must be at least 1');
+const decimal = z.string().regex(/^-?\d+(\.\d+)?$/, 'must be a decimal number such as 1234.50');
+
+export const MODELS = ['binomial', 'hypergeometric', 'poisson'] as const;
+export const FREQUENCIES = ['annual', 'quarterly', 'monthly', 'weekly', 'daily', 'many-times-daily'] as const;
+export const NATURES = ['manual', 'automated', 'it-dependent-manual'] as const;
+export const CAUSES = [
+  'not-performed',
+  'performed-late',
+  'wrong-performer',
+  'evidence-missing',
+  'system',
+  'other',
+] as const;
+export const CAUSE_LABELS: Record<(typeof CAUSES)[number], string> = {
+  'not-performed': 'Control not performed',
+  'performed-late': 'Performed late',
+  'wrong-performer': 'Wrong or unauthorised performer',
+  'evidence-missing': 'Evidence missing',
+  system: 'System or configuration',
+  other: 'Other',
+};
+export const INTENT = ['no', 'suspected', 'yes'] as const;
+export const PATTERNS = ['isolated', 'systemic', 'unclear'] as const;
+export const SEVERITIES = ['none', 'deficiency', 'significant-deficiency', 'material-weakness'] as const;
+export const SEVERITY_LABELS: Record<(typeof SEVERITIES)[number], string> = {
+  none: 'No deficiency',
+  deficiency: 'Deficiency',
+  'significant-deficiency': 'Significant deficiency',
+  'material-weakness': 'Material weakness',
+};
+export const FOLLOW_UP_KINDS = [
+  'extend-sample',
+  'test-compensating-control',
+  'reduce-reliance',
+  'communicate',
+  'assess-severity',
+  'other',
+] as const;
+
+export const Engagement = z.object({
+  entity: text,
+  periodStart: isoDate,
+  periodEnd: isoDate,
+  reference: text,
+  preparer: text,
+  reviewer: text,
+}).refine((e) => e.periodStart <= e.periodEnd, { message: 'the period must not end before it starts', path: ['periodEnd'] });
+
+export const Control = z.object({
+  id: text,
+  description: text,
+  objective: text,
+  owner: text,
+  frequency: z.enum(FREQUENCIES),
+  nature: z.enum(NATURES),
+  key: z.boolean(),
+});
+
+export const Attribute = z.object({
+  id: z.string().regex(/^A\d+$/, 'must be A1, A2, ...'),
+  description: text,
+  deviationDefinition: text,
+  /** Only when it differs from the test's tolerable rate. */
+  tolerableRate: rate.optional(),
+});
+
+export const PopulationSource = z.discriminatedUnion('kind', [
+  z.object({
+    kind: z.literal('csv'),
+    /** Relative to the workpaper file's folder, so the folder can be moved whole. */
+    path: text,
+    keyColumn: text,
+    amountColumn: optText,
+    dateColumn: optText,
+    delimiter: z.string().optional(),
+  }),
+  z.object({
+    kind: z.literal('xlsx'),
+    path: text,
+    sheet: optText,
+    keyColumn: text,
+    amountColumn: optText,
+    dateColumn: optText,
+  }),
+  z.object({
+    kind: z.literal('ranges'),
+    ranges: text,
+    exclusions: z.array(z.string()).default([]),
+  }),
+]);
+
+export const Fingerprint = z.object({
+  sha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal'),
+  rowCount: count,
+  firstKey: z.string(),
+  lastKey: z.string(),
+  columns: z.array(z.string()),
+  amountTotal: decimal.optional(),
+  format: z.string(),
+  sheet: z.string().optional(),
+});
+
+export const Population = z.object({
+  description: text,
+  samplingUnit: text,
+  source: PopulationSource,
+  fingerprint: Fingerprint,
+  validation: z.object({
+    ok: z.boolean(),
+    messages: z.array(z.string()),
+    /** Why the practitioner went on despite the problems listed. */
+    acceptedReason: optText,
+  }),
+  tieOut: z.object({
+    ledgerCount: count.optional(),
+    ledgerTotal: decimal.optional(),
+    countDifference: z.number().int().optional(),
+    totalDifference: decimal.optional(),
+    explanation: optText,
+    /** Where the ledger figures come from (report name, date run). */
+    ledgerSource: optText,
+  }),
+  scannedAt: isoTime,
+});
+
+export const SizeForAttribute = z.object({
+  attributeId: z.string(),
+  tolerableRate: rate,
+  sampleSize: positive,
+  expectedDeviations: count,
+  achievedRisk: z.number().min(0).max(1),
+});
+
+export const Approach = z.object({
+  kind: z.enum(['statistical', 'non-statistical']),
+  /** Planned confidence. For a non-statistical test, the confidence the firm policy assumes. */
+  confidence: rate,
+  tolerableRate: rate,
+  expectedRate: rateOrZero,
+  model: z.enum(MODELS),
+  /** Per attribute: the size each attribute's tolerable rate needs (statistical). */
+  sizes: z.array(SizeForAttribute).default([]),
+  /** Textbook finite population correction of the binomial size, reported beside, never used. */
+  finitePopulationCorrection: z
+    .object({ binomialSampleSize: positive, correctedSampleSize: positive })
+    .optional(),
+  policy: z
+    .object({
+      name: text,
+      frequency: z.enum(FREQUENCIES),
+      reliance: text,
+      size: positive,
+      assumptions: text,
+    })
+    .optional(),
+  /** The size adopted for selection. */
+  sampleSize: positive,
+  /** Why this size, in words (shown in the memo). */
+  rationale: text,
+}).refine((a) => a.expectedRate < a.tolerableRate, {
+  message: 'the expected deviation rate must be below the tolerable rate',
+  path: ['expectedRate'],
+});
+
+export const SelectedItem = z.object({
+  seq: positive,
+  role: z.enum(['sample', 'spare']),
+  /** 0-based position in the population as read (what the selection algorithm draws). */
+  position: count,
+  /** Row number a user sees in the source (1-based, header counted for files). */
+  row: positive,
+  key: z.string(),
+  values: z.record(z.string(), z.string()).default({}),
+});
+
+export const Selection = z.object({
+  method: z.enum(['random', 'systematic', 'haphazard']),
+  algorithm: z.string(),
+  seed: z.string().optional(),
+  interval: z.number().positive().optional(),
+  starts: z.array(z.number().nonnegative()).optional(),
+  sampleSize: positive,
+  spares: count,
+  haphazard: z.object({ selectedBy: text, how: text }).optional(),
+  items: z.array(SelectedItem).min(1),
+  /** Relative to the workpaper file. */
+  fieldworkSheet: z.string().optional(),
+  selectedAt: isoTime,
+});
+
+export const AttributeResult = z.discriminatedUnion('result', [
+  z.object({ result: z.literal('conforms'), note: optText }),
+  z.object({
+    result: z.literal('deviation'),
+    /** What was found, in the tester's words. */
+    found: text,
+    cause: z.enum(CAUSES),
+    causeDetail: optText,
+    intentional: z.enum(INTENT),
+    pattern: z.enum(PATTERNS),
+  }),
+]);
+
+export const ItemResult = z.object({
+  key: z.string(),
+  seq: positive,
+  /** A properly voided document: not tested, replaced by the next spare. */
+  void: z.object({ reason: text, replacedBy: z.string().optional() }).optional(),
+  /** When this spare replaces a voided item, that item's key. */
+  replaces: z.string().optional(),
+  attributes: z.record(z.string(), AttributeResult).default({}),
+});
+
+export const Results = z.object({
+  source: z.enum(['interview', 'sheet']),
+  sheetPath: z.string().optional(),
+  items: z.array(ItemResult),
+  recordedAt: isoTime,
+});
+
+export const AttributeEvaluation = z.object({
+  attributeId: z.string(),
+  model: z.enum(MODELS),
+  confidence: rate,
+  tolerableRate: rate,
+  sampleSize: count,
+  deviations: count,
+  sampleRate: z.number().min(0).max(1),
+  upperLimit: z.number().min(0).max(1),
+  /** Hypergeometric: the largest number of deviations in the population consistent with the result. */
+  deviationsInPopulation: count.optional(),
+  achievedRisk: z.number().min(0).max(1),
+  /** The rates alone: achieved risk ≤ 1 − confidence. */
+  supportedByRates: z.boolean(),
+  /** True when the figures cannot support a statistical conclusion (non-statistical or haphazard). */
+  illustrative: z.boolean(),
+  /** Additional items needed if none of them deviates; null when not practical or not applicable. */
+  extension: count.nullable(),
+});
+
+export const Evaluation = z.object({
+  attributes: z.array(AttributeEvaluation),
+  evaluatedAt: isoTime,
+});
+
+export const FollowUp = z.object({
+  kind: z.enum(FOLLOW_UP_KINDS),
+  description: text,
+  owner: optText,
+  due: isoDate.optional(),
+  /** For extend-sample: the number of additional items. */
+  items: count.optional(),
+});
+
+export const Conclusion = z.object({
+  attributes: z.array(
+    z.object({
+      attributeId: z.string(),
+      supportsReliance: z.boolean(),
+      /** Why, when the qualitative review overrides the rates, or any practitioner remark. */
+      reasoning: text,
+    }),
+  ),
+  qualitative: z.object({
+    intentionalFound: z.boolean(),
+    systemicFound: z.boolean(),
+    compensatingControls: optText,
+    notes: optText,
+  }),
+  control: z.object({ supportsReliance: z.boolean(), text }),
+  severity: z
+    .object({
+      answers: z.array(z.object({ question: text, answer: text })),
+      classification: z.enum(SEVERITIES),
+      rationale: text,
+    })
+    .optional(),
+  followUps: z.array(FollowUp),
+  concludedAt: isoTime,
+});
+
+export const SignOff = z.object({ name: text, date: isoDate });
+
+export const LogChange = z.object({
+  /** JSON path of the changed value, e.g. ["results","items",3,"attributes","A1"]. */
+  path: z.array(z.union([z.string(), z.number().int()])),
+  old: z.unknown().optional(),
+  new: z.unknown().optional(),
+  deleted: z.boolean().optional(),
+});
+
+export const LogEntry = z.object({
+  seq: positive,
+  at: isoTime,
+  by: z.string(),
+  step: z.string(),
+  reason: optText,
+  changes: z.array(LogChange),
+  /** SHA-256 of the workpaper (without its log) after this entry. */
+  stateHash: z.string(),
+  prevHash: z.string(),
+  /** SHA-256 of this entry without this field, chained to prevHash. */
+  hash: z.string(),
+});
+
+export const Workpaper = z.object({
+  schemaVersion: z.literal(SCHEMA_VERSION),
+  tool: z.object({ name: z.literal('tolrate'), version: z.string() }),
+  id: z.string().min(1),
+  createdAt: isoTime,
+  updatedAt: isoTime,
+  engagement: Engagement.optional(),
+  control: Control.optional(),
+  attributes: z.array(Attribute).min(1, 'at least one attribute is needed').optional(),
+  population: Population.optional(),
+  approach: Approach.optional(),
+  selection: Selection.optional(),
+  results: Results.optional(),
+  evaluation: Evaluation.optional(),
+  conclusion: Conclusion.optional(),
+  signoffs: z.object({ preparer: SignOff.optional(), reviewer: SignOff.optional() }).optional(),
+  log: z.array(LogEntry).default([]),
+}).superRefine((wp, ctx) => {
+  const ids = new Set((wp.attributes ?? []).map((a) => a.id));
+  if (wp.attributes && ids.size !== wp.attributes.length) {
+    ctx.addIssue({ code: 'custom', message: 'attribute ids must be unique', path: ['attributes'] });
+  }
+  if (wp.results) {
+    wp.results.items.forEach((item, i) => {
+      for (const id of Object.keys(item.attributes)) {
+        if (!ids.has(id)) {
+          ctx.addIssue({ code: 'custom', message: `result for unknown attribute ${id}`, path: ['results', 'items', i, 'attributes', id] });
+        }
+      }
+    });
+  }
+  if (wp.selection && wp.population && wp.selection.method !== 'haphazard') {
+    const n = wp.population.fingerprint.rowCount;
+    wp.selection.items.forEach((it, i) => {
+      if (it.position >= n) {
+        ctx.addIssue({ code: 'custom', message: `position ${it.position} is outside the population of ${n}`, path: ['selection', 'items', i, 'position'] });
+      }
+    });
+  }
+});
+
+export type Workpaper = z.infer<typeof Workpaper>;
+export type WorkpaperInput = z.input<typeof Workpaper>;
+export type Engagement = z.infer<typeof Engagement>;
+export type Control = z.infer<typeof Control>;
+export type Attribute = z.infer<typeof Attribute>;
+export type PopulationSource = z.infer<typeof PopulationSource>;
+export type Fingerprint = z.infer<typeof Fingerprint>;
+export type Population = z.infer<typeof Population>;
+export type Approach = z.infer<typeof Approach>;
+export type SizeForAttribute = z.infer<typeof SizeForAttribute>;
+export type SelectedItem = z.infer<typeof SelectedItem>;
+export type Selection = z.infer<typeof Selection>;
+export type AttributeResult = z.infer<typeof AttributeResult>;
+export type ItemResult = z.infer<typeof ItemResult>;
+export type Results = z.infer<typeof Results>;
+export type AttributeEvaluation = z.infer<typeof AttributeEvaluation>;
+export type Evaluation = z.infer<typeof Evaluation>;
+export type FollowUp = z.infer<typeof FollowUp>;
+export type Conclusion = z.infer<typeof Conclusion>;
+export type LogEntry = z.infer<typeof LogEntry>;
+export type LogChange = z.infer<typeof LogChange>;
+export type Model = (typeof MODELS)[number];
+export type Frequency = (typeof FREQUENCIES)[number];
+export type Cause = (typeof CAUSES)[number];
+export type Severity = (typeof SEVERITIES)[number];
+export type FollowUpKind = (typeof FOLLOW_UP_KINDS)[number];
+
+/** JSON Schema of the workpaper file, for other tools (written by `npm run schema`). */
+export function workpaperJsonSchema(): unknown {
+  return z.toJSONSchema(Workpaper, { io: 'input', unrepresentable: 'any' });
+}
