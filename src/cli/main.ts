@@ -53,7 +53,7 @@ export function mainHelp(): string {
 
 /** Load a command module lazily: heavy libraries are imported only by the commands that use them. */
 async function loadCommand(name: string): Promise<CommandRun> {
-  const mod = (await import(`../commands/${name}/index.js`)) as { run: CommandRun };
+  const mod = (await import(/* @vite-ignore */ `../commands/${name}/index.js`)) as { run: CommandRun };
   return mod.run;
 }
 

@@ -1,0 +1,115 @@
+import { parseFlags, required, str, type FlagSpec } from '../../cli/args.js';
+import { UsageError } from '../../errors.js';
+import {
+  DEFAULT_EXPECTED_RATES,
+  DEFAULT_TOLERABLE_RATES,
+  MAX_SAMPLE_SIZE,
+  planningTable,
+  type PlanningTableResult,
+} from '../../stats/index.js';
+import { int, pctPlain } from '../../util/format.js';
+import { parsePercent } from '../../util/percent.js';
+import type { CommandContext } from '../types.js';
+import { CAUTION, modelFlag, modelNote, populationFlag, wrap } from '../size/common.js';
+
+const SPEC: FlagSpec = {
+  confidence: { type: 'string' },
+  tolerable: { type: 'string' },
+  expected: { type: 'string' },
+  population: { type: 'string' },
+  model: { type: 'string' },
+  json: { type: 'boolean' },
+};
+
+const list = (rates: readonly number[]): string => rates.map((r) => pctPlain(r).replace('%', '')).join(',');
+
+export function help(): string {
+  return `tolrate table — planning table of sample sizes over tolerable and expected deviation rates
+
+Usage: tolrate table --confidence PCT [--tolerable LIST] [--expected LIST] [--population N]
+                     [--model binomial|hypergeometric|poisson] [--json]
+
+Options:
+  --confidence PCT   confidence level, e.g. 95 or 90
+  --tolerable LIST   columns: tolerable deviation rates in percent, separated by commas
+                     (default ${list(DEFAULT_TOLERABLE_RATES)})
+  --expected LIST    rows: expected deviation rates in percent, separated by commas
+                     (default ${list(DEFAULT_EXPECTED_RATES)})
+  --population N     number of units in the population (default model becomes hypergeometric)
+  --model NAME       binomial (default without --population), hypergeometric, or poisson
+  --json             print the table object instead of the text
+  -h, --help         show this help
+
+Each cell is "size (k_e)": the smallest sample size whose risk of overreliance at k_e
+expected deviations does not exceed 100% - confidence. A dash marks a cell where no practical
+size exists (the expected rate is not below the tolerable rate, or more than
+${int(MAX_SAMPLE_SIZE)} items would be needed; for a known population, more than the population).
+
+Example:
+  tolrate table --confidence 95
+  tolrate table --confidence 90 --tolerable 5,6,10 --expected 0,1,2 --population 2500
+
+${CAUTION}
+`;
+}
+
+function rateList(command: string, text: string, flag: string, allowZero: boolean): number[] {
+  const parts = text.split(',').map((s) => s.trim());
+  if (parts.length === 0 || parts.some((s) => s === '')) {
+    throw new UsageError(`tolrate ${command}: ${flag} needs percentages separated by commas, e.g. 2,3,5.`, [
+      `See: tolrate ${command} --help`,
+    ]);
+  }
+  return parts.map((s) => parsePercent(s, flag, { allowZero }));
+}
+
+export async function run(args: string[], ctx: CommandContext): Promise<number> {
+  const p = parseFlags('table', args, SPEC);
+  if (p.values.help) {
+    ctx.stdout.write(help());
+    return 0;
+  }
+  const confidence = parsePercent(required('table', p, 'confidence'), '--confidence');
+  const tol = str(p, 'tolerable');
+  const exp = str(p, 'expected');
+  const populationSize = populationFlag(p);
+  const model = modelFlag('table', p, populationSize);
+  const result = planningTable({
+    confidence,
+    ...(tol !== undefined ? { tolerableRates: rateList('table', tol, '--tolerable', false) } : {}),
+    ...(exp !== undefined ? { expectedRates: rateList('table', exp, '--expected', true) } : {}),
+    ...(populationSize !== undefined ? { populationSize } : {}),
+    ...(model !== undefined ? { model } : {}),
+  });
+  if (p.values.json) {
+    ctx.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
+    return 0;
+  }
+  ctx.stdout.write(render(result));
+  return 0;
+}
+
+function render(t: PlanningTableResult): string {
+  const lines: string[] = [];
+  lines.push(`Sample sizes at ${pctPlain(t.confidence)} confidence (risk of overreliance ${pctPlain(1 - t.confidence)})`);
+  lines.push(`Model: ${modelNote(t.model, t.populationSize)}${t.populationSize !== undefined ? `; population ${int(t.populationSize)}` : ''}`);
+  lines.push('Each cell: sample size (expected deviations k_e). Rows: expected rate. Columns: tolerable rate.');
+  lines.push('');
+  const header = ['Expected', ...t.tolerableRates.map((r) => pctPlain(r))];
+  const body = t.rows.map((row) => [
+    pctPlain(row.expectedRate),
+    ...row.cells.map((c) => (c.sampleSize === null ? '-' : `${int(c.sampleSize)} (${c.expectedDeviations})`)),
+  ]);
+  const widths = header.map((h, i) => Math.max(h.length, ...body.map((r) => r[i]!.length)));
+  const fmt = (cells: string[]): string =>
+    cells.map((c, i) => (i === 0 ? c.padEnd(widths[i]!) : c.padStart(widths[i]!))).join('  ').trimEnd();
+  lines.push(fmt(header));
+  lines.push(widths.map((w) => '-'.repeat(w)).join('  '));
+  for (const r of body) lines.push(fmt(r));
+  lines.push('');
+  const cap = t.model === 'hypergeometric' ? 'the population' : `${int(MAX_SAMPLE_SIZE)} items`;
+  lines.push(...wrap(`-  no practical size: the expected rate is not below the tolerable rate, or more than ${cap} would be needed.`));
+  lines.push('');
+  lines.push(CAUTION);
+  return lines.join('\n') + '\n';
+}

@@ -1,0 +1,220 @@
+/**
+ * The calculator commands (size, limit, table) run through the CLI entry with a captured
+ * context: human output, --json, bad flags (exit 2), --help (exit 0). Figures are checked
+ * against the known values of DESIGN §7 and the published tables (AICPA Audit Sampling guide,
+ * from memory), and --json against the library.
+ */
+import { describe, expect, it } from 'vitest';
+import { runCli } from '../../src/cli/main.js';
+import type { CommandContext } from '../../src/commands/types.js';
+import { planningTable, sampleSize, upperLimit } from '../../src/stats/index.js';
+
+async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = '';
+  let err = '';
+  const ctx: CommandContext = {
+    stdout: { write: (t: string) => (out += t) },
+    stderr: { write: (t: string) => (err += t) },
+    isTTY: false,
+    color: false,
+    cwd: process.cwd(),
+    env: {},
+  };
+  const code = await runCli(argv, ctx);
+  return { code, out, err };
+}
+
+const ESC = String.fromCharCode(27);
+
+describe('tolrate size', () => {
+  it('95 / 6 / 1 → 78, with the model, k_e and achieved risk against β (DESIGN §7)', async () => {
+    const r = await run(['size', '--confidence', '95', '--tolerable', '6', '--expected', '1']);
+    expect(r.code).toBe(0);
+    expect(r.err).toBe('');
+    expect(r.out).toMatch(/^Sample size: 78$/m);
+    expect(r.out).toMatch(/binomial/);
+    expect(r.out).toMatch(/Expected deviations \(k_e\)\s+1 = ceil\(78 x 1%\)/);
+    expect(r.out).toMatch(/Achieved risk\s+4\.80% .*allowable 5%/);
+    expect(r.out).toMatch(/Why not 77/);
+    expect(r.out).toMatch(/practitioner's judgements/);
+    expect(r.out).not.toContain(ESC);
+  });
+
+  it('with --population: the exact hypergeometric size and the FPC labelled as the textbook approximation', async () => {
+    const r = await run(['size', '--confidence', '95%', '--tolerable', '6%', '--expected', '1', '--population', '800']);
+    expect(r.code).toBe(0);
+    const lib = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01, populationSize: 800 });
+    expect(r.out).toMatch(new RegExp(`^Sample size: ${lib.sampleSize}$`, 'm'));
+    expect(r.out).toMatch(/hypergeometric/);
+    expect(r.out).toMatch(/Textbook approximation, for comparison only \(finite population correction/);
+    expect(r.out).toContain(`n' = ceil(78 / (1 + 78/800)) = ${lib.finitePopulationCorrection!.correctedSampleSize}`);
+  });
+
+  it('--json prints the library result', async () => {
+    const r = await run(['size', '--confidence', '90', '--tolerable', '5', '--expected', '0', '--json']);
+    expect(r.code).toBe(0);
+    expect(JSON.parse(r.out)).toEqual(sampleSize({ confidence: 0.9, tolerableRate: 0.05, expectedRate: 0 }));
+    expect(JSON.parse(r.out).sampleSize).toBe(45); // AICPA 90% table, 5% / 0%: 45(0), from memory
+  });
+
+  it('--model poisson is honoured', async () => {
+    const r = await run(['size', '--confidence', '95', '--tolerable', '5', '--expected', '0', '--model', 'poisson', '--json']);
+    expect(JSON.parse(r.out)).toMatchObject({ model: 'poisson', sampleSize: 60 }); // ⌈3.00 / 5%⌉, common practice
+  });
+
+  it.each([
+    [['size', '--confidence', '95', '--tolerable', '6'], /--expected is required/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '7'], /--expected \(7%\) must be below --tolerable \(6%\)/],
+    [['size', '--confidence', 'high', '--tolerable', '6', '--expected', '1'], /--confidence: "high" is not a percentage/],
+    [['size', '--confidence', '100', '--tolerable', '6', '--expected', '1'], /--confidence: 100% is out of range/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--model', 'binomal'], /Did you mean binomial\?/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--model', 'hypergeometric'], /needs --population/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--population', 'many'], /--population: "many" is not a whole number/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--tolerance', '5'], /unknown option --tolerance/],
+    [['size', '--confidence', '95', '--tolerable', '2', '--expected', '1.9'], /No practical sample size/],
+  ])('bad input %j → exit 2 with a message, no stack trace', async (argv, message) => {
+    const r = await run(argv);
+    expect(r.code).toBe(2);
+    expect(r.out).toBe('');
+    expect(r.err).toMatch(message);
+    expect(r.err).not.toMatch(/\n\s+at /);
+  });
+
+  it('--help → 0 with usage, every flag, an example and the caution', async () => {
+    const r = await run(['size', '--help']);
+    expect(r.code).toBe(0);
+    for (const flag of ['--confidence', '--tolerable', '--expected', '--population', '--model', '--json', '--help']) expect(r.out).toContain(flag);
+    expect(r.out).toMatch(/Usage: tolrate size/);
+    expect(r.out).toMatch(/Example:\n\s+tolrate size --confidence 95 --tolerable 6 --expected 1/);
+    expect(r.out).toMatch(/The tool computes/);
+    expect((await run(['help', 'size'])).out).toBe(r.out);
+  });
+});
+
+describe('tolrate limit', () => {
+  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (DESIGN §7)', async () => {
+    const r = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '6']);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/Sample deviation rate\s+2\.6%/);
+    expect(r.out).toMatch(/Upper deviation limit\s+7\.9% \(exact 7\.8521%/);
+    expect(r.out).toMatch(/Risk of overreliance\s+14\.61%/);
+    expect(r.out).toMatch(/The results do not support the planned reliance/);
+    expect(r.out).toMatch(/Extension needed\s+25 more items with no further deviations \(total 103\)/);
+    expect(r.out).toMatch(/The tool computes/);
+  });
+
+  it('75 items, 2 deviations: the tabulated 8.2% (AICPA table, from memory; DESIGN §7)', async () => {
+    const r = await run(['limit', '--sample', '75', '--deviations', '2', '--confidence', '95']);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/^Upper deviation limit: 8\.2% at 95% confidence/m);
+    expect(r.out).not.toMatch(/support/);
+  });
+
+  it('supported case wording and no extension', async () => {
+    const r = await run(['limit', '--sample', '78', '--deviations', '1', '--confidence', '95', '--tolerable', '6']);
+    expect(r.out).toMatch(/The results support the planned reliance/);
+    expect(r.out).toMatch(/Extension needed\s+none/);
+  });
+
+  it('an extension that is not practical says so', async () => {
+    const r = await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5']);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/Extension needed\s+not practical/);
+    const j = JSON.parse((await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5', '--json'])).out);
+    expect(j.extensionSize).toBeNull();
+    expect(j.extensionNote).toMatch(/No practical extension/);
+  });
+
+  it('--json without --tolerable is the library result; with it, the result plus risk, decision and extension', async () => {
+    const a = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--json']);
+    expect(JSON.parse(a.out)).toEqual(upperLimit({ sampleSize: 78, deviations: 2, confidence: 0.95 }));
+    const b = JSON.parse((await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '6', '--json'])).out);
+    expect(b).toMatchObject({ ...upperLimit({ sampleSize: 78, deviations: 2, confidence: 0.95 }), tolerableRate: 0.06, extensionSize: 25 });
+    expect(b.decision.supported).toBe(false);
+    expect(b.overrelianceRisk).toBeGreaterThan(0.05);
+  });
+
+  it('with --population: the hypergeometric count limit', async () => {
+    const r = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--population', '800', '--json']);
+    const lib = upperLimit({ sampleSize: 78, deviations: 2, confidence: 0.95, populationSize: 800 });
+    expect(JSON.parse(r.out)).toEqual(lib);
+    const h = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--population', '800']);
+    expect(h.out).toContain(`at most ${lib.deviationsInPopulation} of 800`);
+  });
+
+  it.each([
+    [['limit', '--deviations', '2', '--confidence', '95'], /--sample is required/],
+    [['limit', '--sample', '10', '--deviations', '11', '--confidence', '95'], /cannot exceed --sample/],
+    [['limit', '--sample', '900', '--deviations', '1', '--confidence', '95', '--population', '800'], /cannot exceed --population/],
+    [['limit', '--sample', '0', '--deviations', '0', '--confidence', '95'], /--sample: 0 is below the minimum of 1/],
+    [['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '0'], /--tolerable: 0% is out of range/],
+    [['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', 'extra'], /unexpected argument/],
+  ])('bad input %j → exit 2', async (argv, message) => {
+    const r = await run(argv);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(message);
+  });
+
+  it('--help → 0 with every flag', async () => {
+    const r = await run(['limit', '-h']);
+    expect(r.code).toBe(0);
+    for (const flag of ['--sample', '--deviations', '--confidence', '--tolerable', '--population', '--model', '--json']) expect(r.out).toContain(flag);
+    expect(r.out).toMatch(/Example:/);
+    expect(r.out).toMatch(/The tool computes/);
+  });
+});
+
+describe('tolrate table', () => {
+  it('the default 95% table: aligned rows, "size (k_e)" cells, dashes where not practical', async () => {
+    const r = await run(['table', '--confidence', '95']);
+    expect(r.code).toBe(0);
+    const lines = r.out.split('\n');
+    const header = lines.find((l) => l.startsWith('Expected'))!;
+    expect(header.split(/\s+/).slice(1)).toEqual(['2%', '3%', '4%', '5%', '6%', '7%', '8%', '9%', '10%', '15%', '20%']);
+    const zero = lines.find((l) => l.startsWith('0% '))!;
+    // AICPA 95% table, 0% expected (from memory)
+    expect(zero.match(/\d+ \(\d+\)/g)).toEqual(['149 (0)', '99 (0)', '74 (0)', '59 (0)', '49 (0)', '42 (0)', '36 (0)', '32 (0)', '29 (0)', '19 (0)', '14 (0)']);
+    const one = lines.find((l) => l.startsWith('1% '))!;
+    expect(one).toContain('78 (1)');
+    const seven = lines.find((l) => l.startsWith('7% '))!;
+    expect(seven.split(/\s{2,}/).filter((c) => c === '-')).toHaveLength(6);
+    // Every table row has the header's width (aligned columns).
+    const rows = lines.filter((l) => /^\d/.test(l));
+    expect(rows).toHaveLength(20);
+    for (const row of rows) expect(row.length).toBeLessThanOrEqual(header.length);
+    expect(rows.some((row) => row.length === header.length)).toBe(true);
+    expect(r.out).toMatch(/The tool computes/);
+  });
+
+  it('custom grids, a population, and --json equal to the library table', async () => {
+    const argv = ['table', '--confidence', '90', '--tolerable', '5,6,10', '--expected', '0,1,2', '--population', '2500', '--json'];
+    const r = await run(argv);
+    expect(r.code).toBe(0);
+    expect(JSON.parse(r.out)).toEqual(
+      planningTable({ confidence: 0.9, tolerableRates: [0.05, 0.06, 0.1], expectedRates: [0, 0.01, 0.02], populationSize: 2500 }),
+    );
+    const h = await run(argv.slice(0, -1));
+    expect(h.out).toMatch(/hypergeometric/);
+    expect(h.out).toMatch(/population 2,500/);
+  });
+
+  it.each([
+    [['table'], /--confidence is required/],
+    [['table', '--confidence', '95', '--tolerable', '5,,6'], /--tolerable needs percentages separated by commas/],
+    [['table', '--confidence', '95', '--expected', '0,x'], /--expected: "x" is not a percentage/],
+    [['table', '--confidence', '95', '--model', 'hyper'], /Did you mean hypergeometric\?/],
+  ])('bad input %j → exit 2', async (argv, message) => {
+    const r = await run(argv);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(message);
+  });
+
+  it('--help → 0 with every flag and the default grids', async () => {
+    const r = await run(['table', '--help']);
+    expect(r.code).toBe(0);
+    for (const flag of ['--confidence', '--tolerable', '--expected', '--population', '--model', '--json']) expect(r.out).toContain(flag);
+    expect(r.out).toContain('2,3,4,5,6,7,8,9,10,15,20');
+    expect(r.out).toContain('0,0.25,0.5,0.75,1,1.25,1.5,1.75,2,2.25,2.5,2.75,3,3.25,3.5,3.75,4,5,6,7');
+    expect(r.out).toMatch(/The tool computes/);
+  });
+});
