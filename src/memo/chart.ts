@@ -1,0 +1,185 @@
+/**
+ * The memo's picture: for each attribute, the sample deviation rate and the upper deviation limit
+ * as horizontal bars against the attribute's tolerable rate (a vertical mark). Drawn as SVG by
+ * tolrate, rendered to PNG with resvg (its binary ships inside its npm package).
+ *
+ * The geometry alone carries the figures: bar lengths, the mark and the axis ticks are drawn to
+ * scale, and a limit beyond the tolerable rate is filled differently, so the picture stays right
+ * if no font can be found and the text is not drawn. The same figures are in the results table.
+ */
+import { existsSync } from 'node:fs';
+
+export interface ChartRow {
+  id: string;
+  sampleRate: number;
+  upperLimit: number;
+  tolerableRate: number;
+  /** The labels written beside the bars (formatted as in the table). */
+  sampleRateText: string;
+  upperLimitText: string;
+  tolerableRateText: string;
+}
+
+export interface ChartLabels {
+  sampleRate: string;
+  upperLimit: string;
+  /** The fill of a limit above the tolerable rate. */
+  exceeds: string;
+  tolerable: string;
+  /** Shown top right, e.g. "illustrative". */
+  note?: string;
+}
+
+export interface ChartSvg {
+  svg: string;
+  /** Size in CSS pixels (96 to the inch). */
+  width: number;
+  height: number;
+  /** The axis maximum, as a fraction. */
+  axisMax: number;
+  /** Geometry, for tests: x of each figure in pixels, per row. */
+  geometry: Array<{ id: string; sampleEnd: number; limitEnd: number; tolerableX: number; exceeds: boolean }>;
+  scale: (fraction: number) => number;
+}
+
+export const COLORS = {
+  sample: '#2F5597',
+  limit: '#BDD7EE',
+  limitStroke: '#2F5597',
+  exceed: '#F4B183',
+  exceedStroke: '#C55A11',
+  tolerable: '#000000',
+  grid: '#D9D9D9',
+  text: '#1F1F1F',
+} as const;
+
+const FONT = "DejaVu Sans, Liberation Sans, Arial, Helvetica, sans-serif";
+
+function esc(s: string): string {
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+}
+
+/** A round axis maximum with its tick step, so that `maxValue` ends at most at ~85% of the axis. */
+export function niceAxis(maxValue: number): { max: number; step: number } {
+  const target = Math.max(maxValue / 0.85, 0.01);
+  const steps = [0.001, 0.002, 0.0025, 0.005, 0.01, 0.02, 0.025, 0.05, 0.1, 0.2, 0.25];
+  for (const step of steps) {
+    const ticks = Math.ceil(target / step - 1e-9);
+    if (ticks <= 8) return { max: Math.min(1, Number((ticks * step).toFixed(6))), step };
+  }
+  return { max: 1, step: 0.25 };
+}
+
+/** Percentage tick label: 0.05 -> "5%", 0.025 -> "2.5%". */
+function tickLabel(v: number): string {
+  return `${Number((v * 100).toFixed(2))}%`;
+}
+
+export function chartSvg(rows: readonly ChartRow[], labels: ChartLabels, width = 620): ChartSvg {
+  const left = 64;
+  const right = 24;
+  const top = 56;
+  const rowH = 54;
+  const bottom = 34;
+  const plotW = width - left - right;
+  const height = top + rowH * rows.length + bottom;
+  const maxValue = Math.max(0, ...rows.flatMap((r) => [r.sampleRate, r.upperLimit, r.tolerableRate]));
+  const axis = niceAxis(maxValue);
+  const scale = (f: number) => left + (Math.min(Math.max(f, 0), axis.max) / axis.max) * plotW;
+  const out: string[] = [];
+  out.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}">`);
+  out.push(`<rect x="0" y="0" width="${width}" height="${height}" fill="#FFFFFF"/>`);
+  // Legend (shapes first, then words), two rows of two.
+  const legend = (x: number, y: number, shape: string, text: string) => {
+    out.push(shape);
+    out.push(`<text x="${x + 26}" y="${y + 9}" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(text)}</text>`);
+  };
+  const col2 = left + Math.round(plotW / 2);
+  legend(left, 8, `<rect x="${left}" y="8" width="18" height="10" fill="${COLORS.sample}"/>`, labels.sampleRate);
+  legend(col2, 8, `<line x1="${col2 + 9}" y1="5" x2="${col2 + 9}" y2="21" stroke="${COLORS.tolerable}" stroke-width="2.5"/>`, labels.tolerable);
+  legend(left, 26, `<rect x="${left}" y="26" width="18" height="10" fill="${COLORS.limit}" stroke="${COLORS.limitStroke}" stroke-width="1"/>`, labels.upperLimit);
+  legend(col2, 26, `<rect x="${col2}" y="26" width="18" height="10" fill="${COLORS.exceed}" stroke="${COLORS.exceedStroke}" stroke-width="1"/>`, labels.exceeds);
+  if (labels.note) {
+    out.push(`<text x="${width - right}" y="${top - 6}" text-anchor="end" font-family="${FONT}" font-size="10" font-style="italic" fill="${COLORS.text}">${esc(labels.note)}</text>`);
+  }
+  // Grid and axis.
+  const plotBottom = top + rowH * rows.length;
+  const nTicks = Math.round(axis.max / axis.step);
+  for (let i = 0; i <= nTicks; i++) {
+    const v = i * axis.step;
+    const x = scale(v);
+    out.push(`<line x1="${x.toFixed(2)}" y1="${top}" x2="${x.toFixed(2)}" y2="${plotBottom}" stroke="${COLORS.grid}" stroke-width="1"/>`);
+    out.push(`<line x1="${x.toFixed(2)}" y1="${plotBottom}" x2="${x.toFixed(2)}" y2="${plotBottom + 5}" stroke="${COLORS.text}" stroke-width="1"/>`);
+    out.push(`<text x="${x.toFixed(2)}" y="${plotBottom + 18}" text-anchor="middle" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${tickLabel(v)}</text>`);
+  }
+  out.push(`<line x1="${left}" y1="${plotBottom}" x2="${left + plotW}" y2="${plotBottom}" stroke="${COLORS.text}" stroke-width="1"/>`);
+  out.push(`<line x1="${left}" y1="${top}" x2="${left}" y2="${plotBottom}" stroke="${COLORS.text}" stroke-width="1"/>`);
+  const geometry: ChartSvg['geometry'] = [];
+  rows.forEach((r, i) => {
+    const y = top + i * rowH;
+    const exceeds = r.upperLimit > r.tolerableRate + 1e-12;
+    const sx = scale(r.sampleRate);
+    const ux = scale(r.upperLimit);
+    const tx = scale(r.tolerableRate);
+    geometry.push({ id: r.id, sampleEnd: sx, limitEnd: ux, tolerableX: tx, exceeds });
+    // A value label that would be crossed by the tolerable mark goes just after the mark instead.
+    const labelX = (x: number) => {
+      const start = Math.max(x, left + 1) + 5;
+      return tx >= start - 4 && tx <= start + 34 ? tx + 5 : start;
+    };
+    out.push(`<text x="${left - 10}" y="${y + 31}" text-anchor="end" font-family="${FONT}" font-size="12" font-weight="bold" fill="${COLORS.text}">${esc(r.id)}</text>`);
+    // Sample deviation rate: solid bar (a zero rate leaves a hairline so the row is visibly drawn).
+    out.push(`<rect x="${left}" y="${y + 12}" width="${Math.max(sx - left, 1).toFixed(2)}" height="14" fill="${COLORS.sample}"/>`);
+    out.push(`<text x="${labelX(sx).toFixed(2)}" y="${y + 23}" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${esc(r.sampleRateText)}</text>`);
+    // Upper deviation limit: outlined bar, filled differently when it exceeds the tolerable rate.
+    out.push(
+      `<rect x="${left}" y="${y + 30}" width="${Math.max(ux - left, 1).toFixed(2)}" height="14" fill="${exceeds ? COLORS.exceed : COLORS.limit}" stroke="${exceeds ? COLORS.exceedStroke : COLORS.limitStroke}" stroke-width="1"/>`,
+    );
+    out.push(`<text x="${labelX(ux).toFixed(2)}" y="${y + 41}" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${esc(r.upperLimitText)}</text>`);
+    // Tolerable rate: a vertical mark across the row, its value just above.
+    out.push(`<line x1="${tx.toFixed(2)}" y1="${y + 6}" x2="${tx.toFixed(2)}" y2="${y + 50}" stroke="${COLORS.tolerable}" stroke-width="2.5"/>`);
+    out.push(`<text x="${(tx + 4).toFixed(2)}" y="${y + 9}" font-family="${FONT}" font-size="9" fill="${COLORS.text}">${esc(r.tolerableRateText)}</text>`);
+  });
+  out.push('</svg>');
+  return { svg: out.join('\n'), width, height, axisMax: axis.max, geometry, scale };
+}
+
+/** Font files worth pointing resvg at when present (system fonts are loaded as well). */
+const FONT_FILES = [
+  '/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf',
+  '/usr/share/fonts/truetype/dejavu/DejaVuSans-Bold.ttf',
+  '/usr/share/fonts/TTF/DejaVuSans.ttf',
+  '/usr/share/fonts/dejavu/DejaVuSans.ttf',
+  '/usr/share/fonts/truetype/liberation2/LiberationSans-Regular.ttf',
+  '/usr/share/fonts/truetype/liberation/LiberationSans-Regular.ttf',
+  '/Library/Fonts/Arial.ttf',
+  '/System/Library/Fonts/Supplemental/Arial.ttf',
+  'C:\\Windows\\Fonts\\arial.ttf',
+];
+
+export function fontFiles(): string[] {
+  return FONT_FILES.filter((f) => existsSync(f));
+}
+
+/**
+ * Render the SVG to PNG at `zoom` times its size. Returns undefined when the renderer cannot run
+ * on this machine (the memo then says so and keeps the table).
+ */
+export async function renderPng(svg: string, zoom = 2): Promise<Buffer | undefined> {
+  try {
+    const { Resvg } = await import('@resvg/resvg-js');
+    const files = fontFiles();
+    const r = new Resvg(svg, {
+      fitTo: { mode: 'zoom', value: zoom },
+      background: '#FFFFFF',
+      font: {
+        loadSystemFonts: true,
+        fontFiles: files,
+        defaultFontFamily: files.some((f) => /DejaVu/i.test(f)) ? 'DejaVu Sans' : files.some((f) => /Liberation/i.test(f)) ? 'Liberation Sans' : 'Arial',
+      },
+    });
+    return Buffer.from(r.render().asPng());
+  } catch {
+    return undefined;
+  }
+}

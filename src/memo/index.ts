@@ -1,0 +1,89 @@
+/**
+ * The workpaper memo (DOCX), written from the workpaper file alone and the memo templates.
+ *
+ *   renderMemo(workpaper, opts)  -> the .docx bytes
+ *   writeMemo({ workpaper, workpaperPath, out?, templateDir? }) -> { path, bytes }
+ *
+ * A workpaper of a test in progress renders too: the missing sections say "not yet evaluated"
+ * and the memo is marked DRAFT.
+ */
+import { existsSync, statSync } from 'node:fs';
+import { basename, dirname, join, resolve } from 'node:path';
+import { FileInputError } from '../errors.js';
+import { writeFileAtomic } from '../workpaper/file.js';
+import type { Workpaper } from '../workpaper/schema.js';
+import { buildModel, type MemoModel } from './model.js';
+import { buildDocument, packDocument } from './render.js';
+import { loadTemplate, type MemoTemplate } from './template.js';
+
+export interface RenderMemoOptions {
+  /** A copy of templates/memo with the firm's wording (default: the templates shipped with tolrate). */
+  templateDir?: string;
+  /** An already loaded template (takes precedence over templateDir). */
+  template?: MemoTemplate;
+  /** The workpaper file, for the names and the re-performance command shown in the memo. */
+  workpaperPath?: string;
+  /** The generation time shown in the footer (default: now). */
+  now?: Date;
+  /** Draw the picture of the rates (default true). */
+  chart?: boolean;
+}
+
+export interface WriteMemoOptions {
+  workpaper: Workpaper;
+  workpaperPath: string;
+  /** Default: beside the workpaper, `NAME.memo.docx` for `NAME.tolrate.json`. */
+  out?: string;
+  templateDir?: string;
+  /** An already loaded template (takes precedence over templateDir). */
+  template?: MemoTemplate;
+  now?: Date;
+}
+
+/** The default memo path for a workpaper file: `x/NAME.tolrate.json` -> `x/NAME.memo.docx`. */
+export function defaultMemoPath(workpaperPath: string): string {
+  const base = basename(workpaperPath).replace(/\.tolrate\.json$/i, '').replace(/\.json$/i, '');
+  return join(dirname(workpaperPath), `${base}.memo.docx`);
+}
+
+/** The memo's content, before layout (for callers that want to know what is missing). */
+export async function memoModel(workpaper: Workpaper, opts: RenderMemoOptions = {}): Promise<MemoModel> {
+  const template = opts.template ?? (await loadTemplate(opts.templateDir));
+  return buildModel(workpaper, template, { ...(opts.workpaperPath ? { workpaperPath: opts.workpaperPath } : {}), ...(opts.now ? { now: opts.now } : {}) });
+}
+
+/** Render the memo of a workpaper to DOCX bytes. */
+export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions = {}): Promise<Buffer> {
+  const template = opts.template ?? (await loadTemplate(opts.templateDir));
+  const model = buildModel(workpaper, template, { ...(opts.workpaperPath ? { workpaperPath: opts.workpaperPath } : {}), ...(opts.now ? { now: opts.now } : {}) });
+  const doc = await buildDocument(model, template, { chart: opts.chart ?? true });
+  return packDocument(doc);
+}
+
+/** Render the memo and write it (atomically) to `out` or beside the workpaper. */
+export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string; bytes: number }> {
+  const path = resolve(opts.out ?? defaultMemoPath(opts.workpaperPath));
+  if (!/\.docx$/i.test(path)) {
+    throw new FileInputError(path, `The memo must be written to a .docx file; ${path} does not end in .docx.`);
+  }
+  const dir = dirname(path);
+  if (!existsSync(dir) || !statSync(dir).isDirectory()) {
+    throw new FileInputError(path, `Cannot write the memo to ${path}: the folder ${dir} does not exist.`);
+  }
+  if (existsSync(path) && statSync(path).isDirectory()) {
+    throw new FileInputError(path, `Cannot write the memo to ${path}: it is a folder.`);
+  }
+  const buf = await renderMemo(opts.workpaper, {
+    workpaperPath: opts.workpaperPath,
+    ...(opts.templateDir ? { templateDir: opts.templateDir } : {}),
+    ...(opts.template ? { template: opts.template } : {}),
+    ...(opts.now ? { now: opts.now } : {}),
+  });
+  writeFileAtomic(path, buf);
+  return { path, bytes: buf.length };
+}
+
+export { loadTemplate, TemplateError, PLACEHOLDERS, ATTRIBUTE_PLACEHOLDERS, ATTRIBUTE_SCOPED_KEYS, DEFAULT_TEMPLATE_DIR } from './template.js';
+export type { MemoTemplate, TemplateProblem } from './template.js';
+export type { MemoModel, Outcome } from './model.js';
+export { chartSvg } from './chart.js';

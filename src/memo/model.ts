@@ -1,0 +1,355 @@
+/**
+ * Everything the memo shows, read from the workpaper alone and formatted once: the placeholder
+ * values, and the rows of every table. No computation of figures happens here; the evaluation
+ * recorded in the workpaper is shown as recorded (re-performance is `tolrate reperform`).
+ * Percentages use src/util/format.ts: rates to one decimal place, upper limits and risks rounded up,
+ * exact values (4 decimal places of a percent) for the appendix.
+ */
+import { basename } from 'node:path';
+import { int, pct, pctExact, pctPlain, pctUp } from '../util/format.js';
+import type {
+  Attribute,
+  AttributeEvaluation,
+  AttributeResult,
+  FollowUp,
+  SelectedItem,
+  Workpaper,
+} from '../workpaper/schema.js';
+import type { MemoTemplate } from './template.js';
+
+export type Outcome = 'supported' | 'not-supported' | 'draft';
+
+export interface AttributeView {
+  attribute: Attribute;
+  tolerableRate: number | undefined;
+  /** Counted from the recorded results (voided items excluded). */
+  tested: number;
+  deviations: number;
+  evaluation?: AttributeEvaluation;
+  conclusion?: { supportsReliance: boolean; reasoning: string };
+  decision: string;
+  /** The placeholders of the per-attribute paragraphs. */
+  values: Record<string, string | undefined>;
+}
+
+export interface DeviationView {
+  key: string;
+  seq: number;
+  attributeId: string;
+  found: string;
+  cause: string;
+  intentional: string;
+  pattern: string;
+}
+
+export interface ItemView {
+  seq: number;
+  key: string;
+  row: number;
+  role: string;
+  /** One per attribute, in attribute order. */
+  results: string[];
+  note: string;
+}
+
+export interface SpareView {
+  spareKey: string;
+  replacesKey: string;
+  reason: string;
+}
+
+export interface MemoModel {
+  wp: Workpaper;
+  draft: boolean;
+  outcome: Outcome;
+  nonStatistical: boolean;
+  haphazard: boolean;
+  /** Figures shown but not a basis for a statistical conclusion. */
+  illustrative: boolean;
+  values: Record<string, string | undefined>;
+  attributes: AttributeView[];
+  deviations: DeviationView[];
+  items: ItemView[];
+  spares: SpareView[];
+  followUps: Array<FollowUp & { kindLabel: string }>;
+  /** Names of the figures not yet available, for the command's summary. */
+  missing: string[];
+}
+
+/** Thousands separators for a decimal string, without going through a float: "-1234567.5" -> "-1,234,567.5". */
+export function formatAmount(d: string | undefined): string | undefined {
+  if (d === undefined) return undefined;
+  const m = /^(-?)(\d+)(\.\d+)?$/.exec(d.trim());
+  if (!m) return d;
+  return `${m[1]}${m[2]!.replace(/\B(?=(\d{3})+(?!\d))/g, ',')}${m[3] ?? ''}`;
+}
+
+function signed(n: number): string {
+  return n > 0 ? `+${int(n)}` : int(n);
+}
+
+function signedAmount(d: string | undefined): string | undefined {
+  if (d === undefined) return undefined;
+  const t = d.trim();
+  const f = formatAmount(t);
+  return /^-/.test(t) || /^0+(\.0+)?$/.test(t) ? f : `+${f}`;
+}
+
+/** ⌈x⌉ without binary noise: 0.06 × 1000 = 60.000000000000007 is 60. */
+export function ceilClean(x: number): number {
+  return Math.ceil(Number(x.toPrecision(12)));
+}
+
+/** 'random-v1: generator ... order' -> { id: 'random-v1', description: 'generator ... order' }. */
+export function algorithmParts(algorithm: string): { id: string; description: string | undefined } {
+  const i = algorithm.indexOf(':');
+  if (i < 0) return { id: algorithm.trim(), description: undefined };
+  const description = algorithm.slice(i + 1).trim();
+  return { id: algorithm.slice(0, i).trim(), description: description || undefined };
+}
+
+function dateTime(iso: string): string {
+  return iso.replace('T', ' ').replace(/:\d\d(\.\d+)?Z$/, ' UTC');
+}
+
+export interface ModelOptions {
+  workpaperPath?: string;
+  now?: Date;
+  toolVersion?: string;
+}
+
+export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = {}): MemoModel {
+  const L = t.memo.labels;
+  const e = wp.engagement;
+  const c = wp.control;
+  const p = wp.population;
+  const a = wp.approach;
+  const s = wp.selection;
+  const attrs = wp.attributes ?? [];
+  const nonStatistical = a?.kind === 'non-statistical';
+  const haphazard = s?.method === 'haphazard';
+  const illustrative = nonStatistical || haphazard;
+  const draft = !wp.evaluation || !wp.conclusion;
+  const outcome: Outcome = draft ? 'draft' : wp.conclusion!.control.supportsReliance ? 'supported' : 'not-supported';
+  const missing: string[] = [];
+  for (const [k, v] of [
+    ['engagement', e], ['control', c], ['attributes', wp.attributes], ['population', p], ['approach', a],
+    ['selection', s], ['results', wp.results], ['evaluation', wp.evaluation], ['conclusion', wp.conclusion],
+  ] as const) {
+    if (v === undefined) missing.push(k);
+  }
+
+  const yesNo = (b: boolean) => (b ? L.yes : L.no);
+  const populationSize = a?.model === 'hypergeometric' ? p?.fingerprint.rowCount : undefined;
+  const confidence = a?.confidence;
+  const risk = confidence !== undefined ? pct(1 - confidence) : undefined;
+
+  // Population source in words.
+  let populationSource: string | undefined;
+  if (p) {
+    const src = p.source;
+    if (src.kind === 'ranges') populationSource = `${src.ranges}${src.exclusions.length ? ` (excluding ${src.exclusions.join(', ')})` : ''}`;
+    else populationSource = `${src.path}${src.kind === 'xlsx' && src.sheet ? `, sheet ${src.sheet}` : ''}`;
+  }
+
+  // The planning entry that governs the adopted size.
+  const sizes = a?.sizes ?? [];
+  const planned = sizes.find((x) => x.sampleSize === a?.sampleSize) ?? [...sizes].sort((x, y) => y.sampleSize - x.sampleSize)[0];
+
+  // Results, counted from the record (voided items are not tested).
+  const resultItems = wp.results?.items ?? [];
+  const tested = resultItems.filter((i) => !i.void);
+  const bySeq = new Map(resultItems.map((i) => [i.seq, i]));
+
+  const deviations: DeviationView[] = [];
+  for (const attr of attrs) {
+    for (const it of tested) {
+      const r = it.attributes[attr.id];
+      if (r?.result === 'deviation') {
+        deviations.push({
+          key: it.key,
+          seq: it.seq,
+          attributeId: attr.id,
+          found: r.found,
+          cause: `${L.causes[r.cause]}${r.causeDetail ? `: ${r.causeDetail}` : ''}`,
+          intentional: L.intent[r.intentional],
+          pattern: L.patterns[r.pattern],
+        });
+      }
+    }
+  }
+  deviations.sort((x, y) => x.seq - y.seq || x.attributeId.localeCompare(y.attributeId, 'en', { numeric: true }));
+
+  const spares: SpareView[] = [];
+  for (const it of resultItems) {
+    if (it.void) {
+      const replacement = it.void.replacedBy ?? resultItems.find((x) => x.replaces === it.key)?.key;
+      spares.push({ spareKey: replacement ?? L.none, replacesKey: it.key, reason: it.void.reason });
+    }
+  }
+
+  const decisionFor = (ev: AttributeEvaluation | undefined, con: { supportsReliance: boolean } | undefined): string => {
+    if (con) {
+      if (con.supportsReliance) return L.decisionSupported;
+      return ev && !ev.illustrative && ev.supportedByRates ? L.decisionOverridden : L.decisionNotSupported;
+    }
+    if (ev) return (ev.illustrative ? ev.deviations === 0 : ev.supportedByRates) ? L.decisionSupported : L.decisionNotSupported;
+    return L.notYetEvaluated;
+  };
+
+  const attributes: AttributeView[] = attrs.map((attr) => {
+    const tdr = attr.tolerableRate ?? a?.tolerableRate;
+    const ev = wp.evaluation?.attributes.find((x) => x.attributeId === attr.id);
+    const con = wp.conclusion?.attributes.find((x) => x.attributeId === attr.id);
+    let n = 0;
+    let k = 0;
+    for (const it of tested) {
+      const r: AttributeResult | undefined = it.attributes[attr.id];
+      if (!r) continue;
+      n++;
+      if (r.result === 'deviation') k++;
+    }
+    const decision = decisionFor(ev, con);
+    const view: AttributeView = {
+      attribute: attr,
+      tolerableRate: tdr,
+      tested: n,
+      deviations: k,
+      decision,
+      values: {
+        attributeId: attr.id,
+        attributeDescription: attr.description,
+        attributeTolerableRate: tdr !== undefined ? pct(tdr) : undefined,
+        n: int(ev?.sampleSize ?? n),
+        deviations: int(ev?.deviations ?? k),
+        sampleRate: ev ? pct(ev.sampleRate) : n > 0 ? pct(k / n) : undefined,
+        upperLimit: ev ? pctUp(ev.upperLimit) : undefined,
+        achievedRisk: ev ? pctUp(ev.achievedRisk) : undefined,
+        decision,
+        extension: ev?.extension != null ? int(ev.extension) : undefined,
+      },
+    };
+    if (ev) view.evaluation = ev;
+    if (con) view.conclusion = { supportsReliance: con.supportsReliance, reasoning: con.reasoning };
+    return view;
+  });
+
+  const items: ItemView[] = [];
+  const selItems: SelectedItem[] = [...(s?.items ?? [])].sort((x, y) => x.seq - y.seq);
+  for (const si of selItems) {
+    const r = bySeq.get(si.seq);
+    let note = '';
+    let role = L.roles[si.role];
+    let results: string[];
+    if (r?.void) {
+      results = attrs.map(() => L.resultVoid);
+      note = `${r.void.reason}${r.void.replacedBy ? `; ${L.replacedBy} ${r.void.replacedBy}` : ''}`;
+    } else if (r) {
+      results = attrs.map((attr) => {
+        const x = r.attributes[attr.id];
+        return x === undefined ? L.resultMissing : x.result === 'conforms' ? L.resultConforms : L.resultDeviation;
+      });
+      if (r.replaces) note = `${L.replacing} ${r.replaces}`;
+    } else {
+      results = attrs.map(() => L.resultMissing);
+      if (si.role === 'spare' && wp.results) role = L.spareUnused;
+    }
+    items.push({ seq: si.seq, key: si.key, row: si.row, role, results, note });
+  }
+
+  const notSupported = (wp.conclusion?.attributes ?? []).filter((x) => !x.supportsReliance).map((x) => x.attributeId);
+  const last = wp.log[wp.log.length - 1];
+  const now = opts.now ?? new Date();
+  const workpaperFile = opts.workpaperPath ? basename(opts.workpaperPath) : undefined;
+  const sev = wp.conclusion?.severity;
+
+  const values: Record<string, string | undefined> = {
+    entity: e?.entity,
+    period: e ? `${e.periodStart} – ${e.periodEnd}` : undefined,
+    periodStart: e?.periodStart,
+    periodEnd: e?.periodEnd,
+    reference: e?.reference,
+    preparer: e?.preparer,
+    reviewer: e?.reviewer,
+    preparerDate: wp.signoffs?.preparer?.date ?? L.notSigned,
+    reviewerDate: wp.signoffs?.reviewer?.date ?? L.notSigned,
+    controlId: c?.id,
+    controlDescription: c?.description,
+    controlObjective: c?.objective,
+    controlOwner: c?.owner,
+    controlFrequency: c ? L.frequencies[c.frequency] : undefined,
+    controlNature: c ? L.natures[c.nature] : undefined,
+    keyControl: c ? yesNo(c.key) : undefined,
+    attributeCount: wp.attributes ? int(attrs.length) : undefined,
+    attributeIds: wp.attributes ? attrs.map((x) => x.id).join(', ') : undefined,
+    populationDescription: p?.description,
+    samplingUnit: p?.samplingUnit,
+    populationSource,
+    populationCount: p ? int(p.fingerprint.rowCount) : undefined,
+    populationTotal: formatAmount(p?.fingerprint.amountTotal),
+    ledgerCount: p?.tieOut.ledgerCount !== undefined ? int(p.tieOut.ledgerCount) : undefined,
+    ledgerTotal: formatAmount(p?.tieOut.ledgerTotal),
+    countDifference: p?.tieOut.countDifference !== undefined ? signed(p.tieOut.countDifference) : undefined,
+    totalDifference: signedAmount(p?.tieOut.totalDifference),
+    tieOutExplanation: p?.tieOut.explanation,
+    ledgerSource: p?.tieOut.ledgerSource,
+    validationAcceptedReason: p?.validation.acceptedReason,
+    sha256: p?.fingerprint.sha256,
+    firstKey: p?.fingerprint.firstKey,
+    lastKey: p?.fingerprint.lastKey,
+    populationSize: populationSize !== undefined ? int(populationSize) : undefined,
+    populationDeviations: populationSize !== undefined && a ? int(ceilClean(a.tolerableRate * populationSize)) : undefined,
+    approachKind: a ? L.approaches[a.kind] : undefined,
+    confidence: confidence !== undefined ? pctPlain(confidence) : undefined,
+    risk,
+    tolerableRate: a ? pct(a.tolerableRate) : undefined,
+    expectedRate: a ? pct(a.expectedRate) : undefined,
+    model: a ? L.models[a.model] : undefined,
+    sampleSize: a ? int(a.sampleSize) : s ? int(s.sampleSize) : undefined,
+    spares: s ? int(s.spares) : undefined,
+    rationale: a?.rationale,
+    plannedSize: planned ? int(planned.sampleSize) : undefined,
+    plannedTolerableRate: planned ? pct(planned.tolerableRate) : undefined,
+    plannedExpectedDeviations: planned ? int(planned.expectedDeviations) : undefined,
+    plannedRisk: planned ? pctUp(planned.achievedRisk) : undefined,
+    fpcBinomialSize: a?.finitePopulationCorrection ? int(a.finitePopulationCorrection.binomialSampleSize) : undefined,
+    fpcCorrectedSize: a?.finitePopulationCorrection ? int(a.finitePopulationCorrection.correctedSampleSize) : undefined,
+    policyName: a?.policy?.name,
+    policyFrequency: a?.policy ? L.frequencies[a.policy.frequency] : undefined,
+    policyReliance: a?.policy?.reliance,
+    policySize: a?.policy ? int(a.policy.size) : undefined,
+    policyAssumptions: a?.policy?.assumptions,
+    selectionMethod: s ? L.methods[s.method] : undefined,
+    algorithm: s ? algorithmParts(s.algorithm).id : undefined,
+    algorithmDescription: s ? algorithmParts(s.algorithm).description : undefined,
+    seed: s?.seed,
+    interval: s?.interval !== undefined ? String(Number(s.interval.toPrecision(10))) : undefined,
+    haphazardBy: s?.haphazard?.selectedBy,
+    haphazardHow: s?.haphazard?.how,
+    selectedAt: s ? dateTime(s.selectedAt) : undefined,
+    itemsSelected: s ? int(s.items.length) : undefined,
+    sparesUsed: int(spares.filter((x) => x.spareKey !== L.none).length),
+    testedItems: wp.results ? int(tested.length) : undefined,
+    totalDeviations: wp.results ? int(deviations.length) : undefined,
+    attributesNotSupported: notSupported.length ? notSupported.join(', ') : undefined,
+    controlConclusion: wp.conclusion?.control.text,
+    severity: sev ? L.severities[sev.classification] : undefined,
+    followUpsSection: undefined, // set by the renderer, which numbers the sections
+    workpaperFile,
+    reperformCommand: `tolrate reperform ${workpaperFile ?? 'FILE'}`,
+    toolVersion: opts.toolVersion ?? wp.tool.version,
+    generatedAt: dateTime(now.toISOString()),
+    updatedAt: dateTime(wp.updatedAt),
+    workpaperId: wp.id,
+    logEntries: int(wp.log.length),
+    lastLogHash: last?.hash,
+  };
+
+  const followUps = (wp.conclusion?.followUps ?? []).map((f) => ({ ...f, kindLabel: L.followUpKinds[f.kind] }));
+  return { wp, draft, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing };
+}
+
+/** Exact figures for the appendix, to 4 decimal places of a percent. */
+export function exact(f: number): string {
+  return pctExact(f);
+}

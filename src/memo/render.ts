@@ -1,0 +1,905 @@
+/**
+ * The DOCX memo, built with the `docx` package from the memo model and the template wording.
+ * Real Word tables with fixed widths and repeated header rows, Heading styles, the workpaper
+ * reference in the page header, page numbers in the footer, A4 or Letter with 2 cm / 1 inch margins.
+ */
+import {
+  AlignmentType,
+  BorderStyle,
+  Document,
+  Footer,
+  Header,
+  HeadingLevel,
+  HeightRule,
+  ImageRun,
+  LevelFormat,
+  LineRuleType,
+  Packer,
+  PageNumber,
+  Paragraph,
+  ShadingType,
+  Tab,
+  Table,
+  TableCell,
+  TableLayoutType,
+  TableRow,
+  TabStopType,
+  TextRun,
+  VerticalAlignTable,
+  WidthType,
+  type IParagraphOptions,
+} from 'docx';
+import { int, pct, pctPlain, pctUp } from '../util/format.js';
+import { chartSvg, renderPng, type ChartRow } from './chart.js';
+import { exact, type MemoModel } from './model.js';
+import { fill, type MemoTemplate } from './template.js';
+
+const PAPER = {
+  A4: { width: 11906, height: 16838, margin: 1134 },
+  Letter: { width: 12240, height: 15840, margin: 1440 },
+} as const;
+
+const BORDER = { style: BorderStyle.SINGLE, size: 4, color: 'A6A6A6' } as const;
+const HEAD_FILL = 'DCE3EC';
+const LABEL_FILL = 'F2F4F7';
+const ACCENT = '1F3864';
+const MONO = 'Courier New';
+
+type Align = 'left' | 'right' | 'center';
+interface Col {
+  header: string;
+  /** Relative width. */
+  w: number;
+  align?: Align;
+}
+interface CellSpec {
+  text?: string;
+  paragraphs?: Paragraph[];
+  bold?: boolean;
+  italics?: boolean;
+  mono?: boolean;
+  fill?: string;
+  align?: Align;
+}
+type Cell = string | CellSpec;
+
+const ALIGN = { left: AlignmentType.LEFT, right: AlignmentType.RIGHT, center: AlignmentType.CENTER } as const;
+
+/** Text with **bold** marks as runs. */
+function runs(text: string, base: { size?: number | undefined; bold?: boolean | undefined; italics?: boolean | undefined; font?: string | undefined; color?: string | undefined } = {}): TextRun[] {
+  const parts = text.split(/\*\*/);
+  return parts
+    .map((t, i) => ({ t, bold: i % 2 === 1 }))
+    .filter((x) => x.t !== '')
+    .map(({ t, bold }) => {
+      const o: { text: string; bold?: boolean; italics?: boolean; size?: number; font?: string; color?: string } = { text: t };
+      if (base.bold || bold) o.bold = true;
+      if (base.italics) o.italics = true;
+      if (base.size !== undefined) o.size = base.size;
+      if (base.font !== undefined) o.font = base.font;
+      if (base.color !== undefined) o.color = base.color;
+      return new TextRun(o);
+    });
+}
+
+class Builder {
+  readonly children: Array<Paragraph | Table> = [];
+  private section = 0;
+  readonly width: number;
+  constructor(
+    private readonly t: MemoTemplate,
+    private readonly m: MemoModel,
+    readonly values: Record<string, string | undefined>,
+  ) {
+    this.width = PAPER[t.memo.settings.paper].width - 2 * PAPER[t.memo.settings.paper].margin;
+  }
+
+  get L() {
+    return this.t.memo.labels;
+  }
+
+  /** Fill a template text with the memo's values (and extra, per-attribute ones). */
+  f(text: string, extra: Record<string, string | undefined> = {}): string {
+    return fill(text, { ...this.values, ...extra }, this.L.notRecorded);
+  }
+
+  p(text: string, o: Omit<IParagraphOptions, 'children' | 'text'> & { bold?: boolean; italics?: boolean; size?: number } = {}): Paragraph {
+    const { bold, italics, size, ...rest } = o;
+    const para = new Paragraph({ ...rest, children: runs(text, { bold, italics, size }) });
+    this.children.push(para);
+    return para;
+  }
+
+  /** A paragraph per text (a template value may be one paragraph or several). */
+  ps(text: string | string[], extra: Record<string, string | undefined> = {}): void {
+    for (const x of Array.isArray(text) ? text : [text]) this.p(this.f(x, extra));
+  }
+
+  h1(text: string, o: { pageBreakBefore?: boolean; numbered?: boolean } = {}): number {
+    const numbered = o.numbered ?? true;
+    if (numbered) this.section++;
+    const label = numbered && this.t.memo.settings.numberHeadings ? `${this.section}. ${text}` : text;
+    this.children.push(new Paragraph({ heading: HeadingLevel.HEADING_1, pageBreakBefore: o.pageBreakBefore, keepNext: true, children: [new TextRun(label)] }));
+    return this.section;
+  }
+
+  h2(text: string): void {
+    this.children.push(new Paragraph({ heading: HeadingLevel.HEADING_2, keepNext: true, children: [new TextRun(text)] }));
+  }
+
+  note(text: string): void {
+    this.p(text, { italics: true, style: 'MemoNote' });
+  }
+
+  cellParagraphs(c: Cell, align: Align | undefined, size: number): Paragraph[] {
+    const spec: CellSpec = typeof c === 'string' ? { text: c } : c;
+    if (spec.paragraphs) return spec.paragraphs;
+    const lines = (spec.text ?? '').split('\n');
+    // The size comes from a table paragraph style where one fits, to keep the XML small.
+    const style = size === (this.t.memo.settings.fontSize - 1) * 2 ? 'TableText' : size === 16 ? 'TableSmall' : size === 14 ? 'TableTiny' : 'TableText';
+    const runSize = style === 'TableText' && size !== (this.t.memo.settings.fontSize - 1) * 2 ? size : undefined;
+    const a = spec.align ?? align ?? 'left';
+    return lines.map(
+      (line) =>
+        new Paragraph({
+          style,
+          ...(a !== 'left' ? { alignment: ALIGN[a] } : {}),
+          children: runs(line, { size: runSize, bold: spec.bold, italics: spec.italics, font: spec.mono ? MONO : undefined }),
+        }),
+    );
+  }
+
+  widths(cols: readonly { w: number }[], total = this.width): number[] {
+    const sum = cols.reduce((s, c) => s + c.w, 0);
+    const ws = cols.map((c) => Math.floor((c.w / sum) * total));
+    ws[ws.length - 1]! += total - ws.reduce((s, x) => s + x, 0);
+    return ws;
+  }
+
+  /** A table with a repeated header row. */
+  table(cols: Col[], rows: Cell[][], o: { size?: number; total?: number } = {}): Table {
+    const size = o.size ?? (this.t.memo.settings.fontSize - 1) * 2;
+    const ws = this.widths(cols, o.total);
+    const header = new TableRow({
+      tableHeader: true,
+      cantSplit: true,
+      children: cols.map(
+        (c, i) =>
+          new TableCell({
+            width: { size: ws[i]!, type: WidthType.DXA },
+            shading: { fill: HEAD_FILL, type: ShadingType.CLEAR, color: 'auto' },
+            verticalAlign: VerticalAlignTable.BOTTOM,
+            children: this.cellParagraphs({ text: c.header, bold: true }, c.align, size),
+          }),
+      ),
+    });
+    const body = rows.map(
+      (r) =>
+        new TableRow({
+          cantSplit: true,
+          children: r.map((c, i) => {
+            const spec = typeof c === 'string' ? undefined : c;
+            return new TableCell({
+              width: { size: ws[i]!, type: WidthType.DXA },
+              ...(spec?.fill ? { shading: { fill: spec.fill, type: ShadingType.CLEAR, color: 'auto' } } : {}),
+              children: this.cellParagraphs(c, cols[i]?.align, size),
+            });
+          }),
+        }),
+    );
+    const t = new Table({
+      width: { size: ws.reduce((s, x) => s + x, 0), type: WidthType.DXA },
+      columnWidths: ws,
+      layout: TableLayoutType.FIXED,
+      margins: { top: 40, bottom: 40, left: 90, right: 90 },
+      borders: { top: BORDER, bottom: BORDER, left: BORDER, right: BORDER, insideHorizontal: BORDER, insideVertical: BORDER },
+      rows: [header, ...body],
+    });
+    this.children.push(t);
+    this.spacer();
+    return t;
+  }
+
+  /** A two-column table of labels and values (no header row). */
+  kv(rows: Array<[string, Cell | undefined]>, o: { labelWidth?: number } = {}): void {
+    const size = (this.t.memo.settings.fontSize - 1) * 2;
+    const ws = this.widths([{ w: o.labelWidth ?? 1.7 }, { w: 4.8 }]);
+    const shown = rows.filter((r): r is [string, Cell] => r[1] !== undefined);
+    if (shown.length === 0) return;
+    this.children.push(
+      new Table({
+        width: { size: this.width, type: WidthType.DXA },
+        columnWidths: ws,
+        layout: TableLayoutType.FIXED,
+        margins: { top: 40, bottom: 40, left: 90, right: 90 },
+        borders: { top: BORDER, bottom: BORDER, left: BORDER, right: BORDER, insideHorizontal: BORDER, insideVertical: BORDER },
+        rows: shown.map(
+          ([label, value]) =>
+            new TableRow({
+              cantSplit: true,
+              children: [
+                new TableCell({
+                  width: { size: ws[0]!, type: WidthType.DXA },
+                  shading: { fill: LABEL_FILL, type: ShadingType.CLEAR, color: 'auto' },
+                  children: this.cellParagraphs({ text: label, bold: true }, 'left', size),
+                }),
+                new TableCell({ width: { size: ws[1]!, type: WidthType.DXA }, children: this.cellParagraphs(value, 'left', size) }),
+              ],
+            }),
+        ),
+      }),
+    );
+    this.spacer();
+  }
+
+  spacer(): void {
+    this.children.push(new Paragraph({ style: 'Spacer', children: [] }));
+  }
+
+  bullets(texts: string[]): void {
+    for (const x of texts) this.children.push(new Paragraph({ bullet: { level: 0 }, children: runs(x) }));
+  }
+
+  steps(texts: string[]): void {
+    for (const x of texts) this.children.push(new Paragraph({ numbering: { reference: 'steps', level: 0 }, children: runs(x) }));
+  }
+
+  /** The value or the 'not recorded' label. */
+  v(x: string | undefined): string {
+    return x === undefined || x === '' ? this.L.notRecorded : x;
+  }
+}
+
+export interface RenderOptions {
+  /** Whether to draw the chart (default true). */
+  chart?: boolean;
+}
+
+/** Build the memo document (not yet packed). */
+export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOptions = {}): Promise<Document> {
+  const W = t.memo;
+  const L = W.labels;
+  const H = W.headings;
+  const T = W.text;
+  const O = t.outcomes;
+  const wp = m.wp;
+  const values = { ...m.values };
+  const b = new Builder(t, m, values);
+  const fs = W.settings.fontSize;
+
+  // The follow-up section's number, for texts that point to it: count the numbered sections before it.
+  const followUpsNumber = 10;
+  values.followUpsSection = W.settings.numberHeadings ? String(followUpsNumber) : H.followUps;
+
+  // Title block.
+  b.children.push(new Paragraph({ heading: HeadingLevel.TITLE, children: [new TextRun(b.f(W.title))] }));
+  b.p(b.f(W.subtitle), { style: 'Subtitle' });
+  if (m.draft) {
+    b.p(b.f(O.draft.banner), {
+      bold: true,
+      shading: { fill: 'FCE4D6', type: ShadingType.CLEAR, color: 'auto' },
+      border: { top: { style: BorderStyle.SINGLE, size: 6, color: 'C55A11', space: 4 }, bottom: { style: BorderStyle.SINGLE, size: 6, color: 'C55A11', space: 4 } },
+    });
+  }
+  const signedLine = (date: string | undefined) => date ?? `${L.date}: ____________  (${L.notSigned})`;
+  b.kv([
+    [L.entity, b.v(values.entity)],
+    [L.period, b.v(values.period)],
+    [L.reference, b.v(values.reference)],
+    [L.control, wp.control ? `${wp.control.id} — ${wp.control.description}` : L.notRecorded],
+    [L.preparedBy, `${b.v(values.preparer)}\n${wp.signoffs?.preparer ? `${L.date}: ${wp.signoffs.preparer.date}` : signedLine(undefined)}`],
+    [L.reviewedBy, `${b.v(values.reviewer)}\n${wp.signoffs?.reviewer ? `${L.date}: ${wp.signoffs.reviewer.date}` : signedLine(undefined)}`],
+    [L.status, { text: m.draft ? L.statusDraft : L.statusFinal, bold: m.draft }],
+  ]);
+  b.ps(T.intro);
+
+  // 1. Objective and control.
+  b.h1(H.objective);
+  b.ps(T.objective);
+  if (wp.control) {
+    const c = wp.control;
+    b.kv([
+      [L.controlId, c.id],
+      [L.description, c.description],
+      [L.objective, c.objective],
+      [L.owner, c.owner],
+      [L.frequency, L.frequencies[c.frequency]],
+      [L.nature, L.natures[c.nature]],
+      [L.keyControl, c.key ? L.yes : L.no],
+    ]);
+  } else b.note(L.notRecorded);
+
+  // 2. Attributes.
+  b.h1(H.attributes);
+  if (wp.attributes) {
+    b.ps(T.attributes);
+    b.table(
+      [
+        { header: L.attribute, w: 0.8 },
+        { header: L.attributeDescription, w: 2.4 },
+        { header: L.deviationDefinition, w: 2.6 },
+        { header: L.tolerableRate, w: 0.9, align: 'right' },
+      ],
+      m.attributes.map((a) => [{ text: a.attribute.id, bold: true }, a.attribute.description, a.attribute.deviationDefinition, a.tolerableRate !== undefined ? pct(a.tolerableRate) : L.notRecorded]),
+    );
+  } else b.note(b.f(T.attributesMissing));
+
+  // 3. Population and completeness.
+  b.h1(H.population);
+  const pop = wp.population;
+  if (pop) {
+    b.ps(T.population);
+    const src = pop.source;
+    b.kv([
+      [L.populationDescription, pop.description],
+      [L.samplingUnit, pop.samplingUnit],
+      [L.source, b.v(values.populationSource)],
+      [L.keyColumn, src.kind !== 'ranges' ? src.keyColumn : undefined],
+      [L.amountColumn, src.kind !== 'ranges' ? src.amountColumn : undefined],
+      [L.scannedAt, pop.scannedAt.replace('T', ' ').replace(/:\d\d(\.\d+)?Z$/, ' UTC')],
+    ]);
+    b.h2(H.tieOut);
+    const tie = pop.tieOut;
+    const hasTotal = pop.fingerprint.amountTotal !== undefined || tie.ledgerTotal !== undefined;
+    const tieRows: Cell[][] = [[{ text: L.count, bold: true }, b.v(values.populationCount), b.v(values.ledgerCount), b.v(values.countDifference)]];
+    if (hasTotal) tieRows.push([{ text: L.total, bold: true }, b.v(values.populationTotal), b.v(values.ledgerTotal), b.v(values.totalDifference)]);
+    b.table(
+      [
+        { header: L.figure, w: 1.6 },
+        { header: L.population, w: 1.6, align: 'right' },
+        { header: L.ledger, w: 1.6, align: 'right' },
+        { header: L.difference, w: 1.6, align: 'right' },
+      ],
+      tieRows,
+    );
+    const noLedger = tie.ledgerCount === undefined && tie.ledgerTotal === undefined;
+    const differs = (tie.countDifference ?? 0) !== 0 || (tie.totalDifference !== undefined && !/^-?0+(\.0+)?$/.test(tie.totalDifference));
+    b.ps(noLedger ? T.tieOutNone : differs ? T.tieOutDifferences : T.tieOutAgreed);
+    if (!differs && tie.explanation) b.p(`${L.explanation}: ${tie.explanation}`);
+    if (pop.validation.ok && pop.validation.messages.length === 0) b.ps(T.validationOk);
+    else {
+      b.ps(T.validationProblems);
+      b.bullets(pop.validation.messages.length ? pop.validation.messages : [L.notRecorded]);
+    }
+  } else b.note(b.f(T.populationMissing));
+
+  // 4. Approach and sample size.
+  b.h1(H.approach);
+  const a = wp.approach;
+  if (a) {
+    if (a.kind === 'statistical') b.ps(T.approachStatistical);
+    else {
+      b.ps(T.approachNonStatistical);
+      b.p(b.f(O['non-statistical'].approachNote), { bold: true });
+    }
+    b.kv([
+      [L.approachKind, L.approaches[a.kind]],
+      [L.confidence, pctPlain(a.confidence)],
+      [L.allowedRisk, a.kind === 'statistical' ? b.v(values.risk) : undefined],
+      [L.tolerableRate, pct(a.tolerableRate)],
+      [L.expectedRate, pct(a.expectedRate)],
+      [L.model, L.models[a.model]],
+      [L.populationSize, a.model === 'hypergeometric' ? `N = ${b.v(values.populationSize)}` : undefined],
+      [L.sampleSize, { text: int(a.sampleSize), bold: true }],
+      [L.spares, values.spares],
+      [L.policy, a.policy ? `${a.policy.name} (${L.frequencies[a.policy.frequency]}, ${a.policy.reliance}: ${int(a.policy.size)})` : undefined],
+    ]);
+    if (a.kind === 'statistical') {
+      b.ps(a.model === 'hypergeometric' ? T.sizeRuleHypergeometric : a.model === 'poisson' ? T.sizeRulePoisson : T.sizeRuleBinomial);
+      if (a.sizes.length > 0) {
+        b.h2(H.sizes);
+        b.table(
+          [
+            { header: L.attribute, w: 1.2 },
+            { header: L.tolerableRate, w: 1.2, align: 'right' },
+            { header: L.expectedDeviations, w: 1.4, align: 'right' },
+            { header: L.sampleSize, w: 1.1, align: 'right' },
+            { header: L.plannedRisk, w: 1.2, align: 'right' },
+          ],
+          a.sizes.map((s) => [{ text: s.attributeId, bold: true }, pct(s.tolerableRate), int(s.expectedDeviations), int(s.sampleSize), pctUp(s.achievedRisk)]),
+        );
+        b.ps(T.sizePlanned);
+      }
+      if (a.finitePopulationCorrection) b.ps(T.fpc);
+    } else if (a.policy) b.ps(T.policy);
+    b.ps(T.rationale);
+    b.ps(T.adopted);
+  } else b.note(b.f(T.approachMissing));
+
+  // 5. Selection.
+  b.h1(H.selection);
+  const s = wp.selection;
+  if (s) {
+    b.ps(s.method === 'random' ? T.selectionRandom : s.method === 'systematic' ? T.selectionSystematic : T.selectionHaphazard);
+    if (s.method === 'haphazard') b.p(b.f(O.haphazard.selectionNote), { bold: true });
+    b.kv([
+      [L.method, L.methods[s.method]],
+      [L.algorithm, { paragraphs: b.cellParagraphs({ text: b.v(values.algorithm), mono: true, bold: true }, 'left', (fs - 1) * 2).concat(values.algorithmDescription ? b.cellParagraphs({ text: values.algorithmDescription }, 'left', 16) : []) }],
+      [L.seed, s.seed !== undefined ? { text: s.seed, mono: true } : undefined],
+      [L.interval, values.interval],
+      [L.starts, s.starts?.length ? s.starts.map((x) => String(x)).join(', ') : undefined],
+      [L.selectedBy, s.haphazard?.selectedBy],
+      [L.how, s.haphazard?.how],
+      [L.sampleSize, int(s.sampleSize)],
+      [L.spares, int(s.spares)],
+      [L.selectedAt, values.selectedAt],
+    ]);
+    if (pop) {
+      b.h2(H.fingerprint);
+      b.ps(T.fingerprint);
+      const fp = pop.fingerprint;
+      b.kv([
+        [L.sha256, { text: fp.sha256, mono: true }],
+        [L.rowCount, int(fp.rowCount)],
+        [L.firstKey, fp.firstKey],
+        [L.lastKey, fp.lastKey],
+        [L.amountTotal, values.populationTotal],
+        [L.format, `${fp.format}${fp.sheet ? `, ${fp.sheet}` : ''}`],
+        [L.columns, fp.columns.length ? fp.columns.join(', ') : undefined],
+      ]);
+    }
+    b.h2(H.spares);
+    if (!wp.results) b.note(b.f(T.resultsMissing));
+    else if (m.spares.length === 0) b.ps(T.sparesNone);
+    else {
+      b.ps(T.sparesUsed);
+      b.table(
+        [
+          { header: L.sparesUsed, w: 1.4 },
+          { header: L.replaces, w: 1.4 },
+          { header: L.voidReason, w: 3.7 },
+        ],
+        m.spares.map((x) => [x.spareKey, x.replacesKey, x.reason]),
+      );
+    }
+  } else b.note(b.f(T.selectionMissing));
+
+  // 6. Results.
+  b.h1(H.results);
+  const evaluated = m.attributes.length > 0 && m.attributes.every((x) => x.evaluation);
+  if (!wp.results) b.note(b.f(T.resultsMissing));
+  else {
+    if (!evaluated) b.note(b.f(T.resultsNotEvaluated));
+    else b.ps(T.resultsLead);
+    const caveat = m.nonStatistical ? O['non-statistical'] : m.haphazard ? O.haphazard : undefined;
+    if (caveat && evaluated) b.p(b.f(caveat.figuresLabel), { bold: true, italics: true });
+    const ill = m.illustrative ? ` (${L.illustrative})` : '';
+    b.table(
+      [
+        { header: L.attribute, w: 0.85 },
+        { header: L.n, w: 0.55, align: 'right' },
+        { header: L.deviations, w: 0.9, align: 'right' },
+        { header: L.sampleRate, w: 0.85, align: 'right' },
+        { header: `${L.upperLimit}${ill}`, w: 0.95, align: 'right' },
+        { header: L.tolerableRate, w: 0.85, align: 'right' },
+        { header: `${L.risk}${ill}`, w: 1.05, align: 'right' },
+        { header: L.decision, w: 1.5 },
+      ],
+      m.attributes.map((x) => [
+        { text: x.attribute.id, bold: true },
+        b.v(x.values.n),
+        b.v(x.values.deviations),
+        b.v(x.values.sampleRate),
+        x.values.upperLimit ?? L.notYetEvaluated,
+        b.v(x.values.attributeTolerableRate),
+        x.values.achievedRisk ?? L.notYetEvaluated,
+        { text: x.decision, bold: true },
+      ]),
+    );
+    if (evaluated) {
+      const model = wp.evaluation?.attributes[0]?.model ?? a?.model ?? 'binomial';
+      b.ps(model === 'hypergeometric' ? T.limitRuleHypergeometric : model === 'poisson' ? T.limitRulePoisson : T.limitRuleBinomial);
+      if (!m.illustrative) b.ps(T.decisionRule);
+      if (caveat) b.p(b.f(caveat.resultsNote), { bold: true });
+      if (m.nonStatistical && m.haphazard) b.p(b.f(O.haphazard.resultsNote), { bold: true });
+      if (!m.draft && !m.illustrative) b.ps(m.outcome === 'supported' ? O.supported.resultsSummary : O['not-supported'].resultsSummary);
+      for (const x of m.attributes) {
+        const ev = x.evaluation!;
+        if (!ev.illustrative && !ev.supportedByRates && ev.extension !== null && ev.extension > 0) b.ps(T.extension, x.values);
+      }
+      // The picture.
+      if (o.chart !== false) {
+        b.h2(H.chart);
+        const rows: ChartRow[] = m.attributes.map((x) => ({
+          id: x.attribute.id,
+          sampleRate: x.evaluation!.sampleRate,
+          upperLimit: x.evaluation!.upperLimit,
+          tolerableRate: x.evaluation!.tolerableRate,
+          sampleRateText: pct(x.evaluation!.sampleRate),
+          upperLimitText: pctUp(x.evaluation!.upperLimit),
+          tolerableRateText: pct(x.evaluation!.tolerableRate),
+        }));
+        const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
+        const svg = chartSvg(rows, { sampleRate: L.legendSampleRate, upperLimit: L.legendUpperLimit, exceeds: L.legendExceeds, tolerable: L.legendTolerable, ...(m.illustrative ? { note: L.illustrative } : {}) }, chartW);
+        const png = await renderPng(svg.svg, 2);
+        if (png) {
+          b.children.push(
+            new Paragraph({
+              alignment: AlignmentType.CENTER,
+              keepNext: true,
+              children: [
+                new ImageRun({
+                  type: 'png',
+                  data: png,
+                  transformation: { width: svg.width, height: svg.height },
+                  altText: {
+                    name: 'rates-chart',
+                    title: H.chart,
+                    description: rows.map((r) => `${r.id}: ${L.legendSampleRate} ${r.sampleRateText}, ${L.legendUpperLimit} ${r.upperLimitText}, ${L.legendTolerable} ${r.tolerableRateText}`).join('; '),
+                  },
+                }),
+              ],
+            }),
+          );
+          b.p(b.f(T.chartCaption), { style: 'Caption' });
+        } else b.note(b.f(T.chartUnavailable));
+      }
+    }
+  }
+
+  // 7. Deviations.
+  b.h1(H.deviations);
+  if (!wp.results) b.note(b.f(T.deviationsMissing));
+  else if (m.deviations.length === 0) b.ps(T.deviationsNone);
+  else {
+    b.ps(T.deviationsLead);
+    b.table(
+      [
+        { header: L.itemKey, w: 1.0 },
+        { header: L.attribute, w: 0.75 },
+        { header: L.found, w: 2.2 },
+        { header: L.cause, w: 1.5 },
+        { header: L.intentional, w: 1.0 },
+        { header: L.pattern, w: 0.9 },
+      ],
+      m.deviations.map((d) => [{ text: d.key, bold: true }, d.attributeId, d.found, d.cause, d.intentional, d.pattern]),
+    );
+  }
+
+  // 8. Qualitative review.
+  b.h1(H.qualitative);
+  const con = wp.conclusion;
+  if (con) {
+    b.ps(T.qualitative);
+    b.kv(
+      [
+        [L.intentionalFound, { text: con.qualitative.intentionalFound ? L.yes : L.no, bold: con.qualitative.intentionalFound }],
+        [L.systemicFound, { text: con.qualitative.systemicFound ? L.yes : L.no, bold: con.qualitative.systemicFound }],
+        [L.compensatingControls, con.qualitative.compensatingControls || L.none],
+        [L.notes, con.qualitative.notes || L.none],
+      ],
+      { labelWidth: 2.6 },
+    );
+  } else b.note(b.f(T.qualitativeMissing));
+
+  // 9. Conclusion.
+  b.h1(H.conclusion);
+  if (con && !m.draft) {
+    b.p(b.f(m.outcome === 'supported' ? O.supported.verdict : O['not-supported'].verdict), { bold: true });
+    b.p(`**${L.recordedConclusion}:** ${con.control.text}`);
+    if (m.nonStatistical) b.p(b.f(O['non-statistical'].conclusionNote), { italics: true });
+    if (m.haphazard) b.p(b.f(O.haphazard.conclusionNote), { italics: true });
+    b.table(
+      [
+        { header: L.attribute, w: 0.75 },
+        { header: L.decision, w: 1.25 },
+        { header: L.reasoning, w: 4.5 },
+      ],
+      m.attributes.map((x) => [{ text: x.attribute.id, bold: true }, { text: x.decision, bold: true }, x.conclusion?.reasoning ?? L.notYetEvaluated]),
+    );
+  } else {
+    b.p(b.f(O.draft.verdict), { bold: true });
+    b.note(b.f(T.conclusionMissing));
+  }
+
+  // 10. Follow-up actions.
+  const fuNumber = b.h1(H.followUps);
+  if (fuNumber !== followUpsNumber) throw new Error(`internal: follow-up section is ${fuNumber}, expected ${followUpsNumber}`);
+  if (!con) b.note(b.f(T.followUpsMissing));
+  else if (m.followUps.length === 0) b.ps(T.followUpsNone);
+  else {
+    b.table(
+      [
+        { header: L.action, w: 1.3 },
+        { header: L.description, w: 3.2 },
+        { header: L.actionOwner, w: 1.1 },
+        { header: L.due, w: 0.95 },
+      ],
+      m.followUps.map((f) => [
+        { text: f.kindLabel, bold: true },
+        f.items !== undefined && !f.description.includes(String(f.items)) ? `${f.description} (${int(f.items)} ${L.items.toLowerCase()})` : f.description,
+        f.owner ?? L.notRecorded,
+        f.due ?? L.notRecorded,
+      ]),
+    );
+  }
+
+  // 11. Severity.
+  b.h1(H.severity);
+  if (con?.severity) {
+    b.ps(T.severity);
+    b.kv([
+      [L.classification, { text: L.severities[con.severity.classification], bold: true }],
+      [L.rationale, con.severity.rationale],
+    ]);
+    if (con.severity.answers.length > 0) {
+      b.table(
+        [
+          { header: L.question, w: 3.6 },
+          { header: L.answer, w: 2.9 },
+        ],
+        con.severity.answers.map((x) => [x.question, x.answer]),
+      );
+    }
+  } else b.note(b.f(T.severityMissing));
+
+  // 12. Responsibility.
+  b.h1(H.responsibility);
+  b.p(b.f(T.caution), {
+    shading: { fill: 'F2F2F2', type: ShadingType.CLEAR, color: 'auto' },
+    border: { left: { style: BorderStyle.SINGLE, size: 18, color: ACCENT, space: 6 } },
+  });
+
+  // 13. Sign-off.
+  b.h1(H.signoff);
+  b.ps(T.signoff);
+  {
+    const ws = b.widths([{ w: 1.2 }, { w: 1.9 }, { w: 2.2 }, { w: 1.2 }]);
+    const size = (fs - 1) * 2;
+    const head = [L.role, L.name, L.signature, L.date];
+    const line = (role: string, name: string | undefined, date: string | undefined) =>
+      new TableRow({
+        cantSplit: true,
+        height: { value: 720, rule: HeightRule.ATLEAST },
+        children: [role, b.v(name), '', date ?? ''].map(
+          (text, i) =>
+            new TableCell({
+              width: { size: ws[i]!, type: WidthType.DXA },
+              verticalAlign: VerticalAlignTable.BOTTOM,
+              ...(i === 0 ? { shading: { fill: LABEL_FILL, type: ShadingType.CLEAR, color: 'auto' } } : {}),
+              children: b.cellParagraphs({ text, bold: i === 0 }, 'left', size),
+            }),
+        ),
+      });
+    b.children.push(
+      new Table({
+        width: { size: b.width, type: WidthType.DXA },
+        columnWidths: ws,
+        layout: TableLayoutType.FIXED,
+        margins: { top: 40, bottom: 60, left: 90, right: 90 },
+        borders: { top: BORDER, bottom: BORDER, left: BORDER, right: BORDER, insideHorizontal: BORDER, insideVertical: BORDER },
+        rows: [
+          new TableRow({
+            tableHeader: true,
+            children: head.map(
+              (h, i) =>
+                new TableCell({
+                  width: { size: ws[i]!, type: WidthType.DXA },
+                  shading: { fill: HEAD_FILL, type: ShadingType.CLEAR, color: 'auto' },
+                  children: b.cellParagraphs({ text: h, bold: true }, 'left', size),
+                }),
+            ),
+          }),
+          line(L.preparedBy, wp.engagement?.preparer, wp.signoffs?.preparer?.date),
+          line(L.reviewedBy, wp.engagement?.reviewer, wp.signoffs?.reviewer?.date),
+        ],
+      }),
+    );
+    b.spacer();
+  }
+
+  // Appendix A.
+  b.h1(H.appendixItems, { pageBreakBefore: true, numbered: false });
+  if (m.items.length === 0) b.note(b.f(T.appendixItemsMissing));
+  else {
+    b.ps(T.appendixItems);
+    // Widths in twips: fixed columns, 900 per attribute (room for "Conforms"/"Deviation" at 8 pt),
+    // the rest for void reasons. More attributes than fit go to a further table with the same rows.
+    const fixed = [520, 1400, 680, 1000];
+    const perAttr = 900;
+    const minNote = 1250;
+    const fit = Math.max(1, Math.floor((b.width - fixed.reduce((x, y) => x + y, 0) - minNote) / perAttr));
+    const groups: number[][] = [];
+    for (let i = 0; i < m.attributes.length; i += fit) groups.push(m.attributes.slice(i, i + fit).map((_, j) => i + j));
+    if (groups.length === 0) groups.push([]);
+    for (const g of groups) {
+      if (groups.length > 1) {
+        const ids = g.map((i) => m.attributes[i]!.attribute.id);
+        b.p(`${L.attributesShown} ${ids[0]}${ids.length > 1 ? `–${ids[ids.length - 1]}` : ''}`, { bold: true, keepNext: true });
+      }
+      const note = b.width - fixed.reduce((x, y) => x + y, 0) - g.length * perAttr;
+      const cols: Col[] = [
+        { header: L.seq, w: fixed[0]!, align: 'right' },
+        { header: L.itemKey, w: fixed[1]! },
+        { header: L.row, w: fixed[2]!, align: 'right' },
+        { header: L.itemRole, w: fixed[3]! },
+        ...g.map((i) => ({ header: m.attributes[i]!.attribute.id, w: perAttr, align: 'center' as const })),
+        { header: L.voidOrReplacement, w: note },
+      ];
+      b.table(
+        cols,
+        m.items.map((it) => [
+          String(it.seq),
+          it.key,
+          int(it.row),
+          it.role,
+          ...g.map((i) => it.results[i]!).map((r) => (r === L.resultDeviation ? { text: r, bold: true, fill: 'FCE4D6' } : r)),
+          it.note,
+        ]),
+        { size: 16 },
+      );
+    }
+  }
+  b.h2(H.appendixExact);
+  if (evaluated) {
+    b.ps(T.appendixExact);
+    b.p(L.evaluationFigures, { bold: true, keepNext: true });
+    const hyp = m.attributes.some((x) => x.evaluation?.deviationsInPopulation !== undefined);
+    const cols: Col[] = [
+      { header: L.attribute, w: 0.8 },
+      { header: L.n, w: 0.55, align: 'right' },
+      { header: L.deviations, w: 0.85, align: 'right' },
+      { header: L.sampleRate, w: 0.95, align: 'right' },
+      { header: L.upperLimit, w: 0.95, align: 'right' },
+      { header: L.tolerableRate, w: 0.95, align: 'right' },
+      { header: L.risk, w: 1.05, align: 'right' },
+      { header: L.allowedRisk, w: 1.0, align: 'right' },
+    ];
+    if (hyp) cols.push({ header: L.deviationsInPopulation, w: 0.9, align: 'right' });
+    b.table(
+      cols,
+      m.attributes.map((x) => {
+        const ev = x.evaluation!;
+        const row: Cell[] = [
+          { text: x.attribute.id, bold: true },
+          int(ev.sampleSize),
+          int(ev.deviations),
+          exact(ev.sampleRate),
+          exact(ev.upperLimit),
+          exact(ev.tolerableRate),
+          exact(ev.achievedRisk),
+          exact(1 - ev.confidence),
+        ];
+        if (hyp) row.push(ev.deviationsInPopulation !== undefined ? int(ev.deviationsInPopulation) : '');
+        return row;
+      }),
+      { size: 16 },
+    );
+  } else b.note(L.notYetEvaluated);
+  if (a && a.sizes.length > 0) {
+    b.p(L.planningFigures, { bold: true, keepNext: true });
+    b.table(
+      [
+        { header: L.attribute, w: 1.2 },
+        { header: L.tolerableRate, w: 1.2, align: 'right' },
+        { header: L.expectedDeviations, w: 1.4, align: 'right' },
+        { header: L.sampleSize, w: 1.1, align: 'right' },
+        { header: L.plannedRisk, w: 1.4, align: 'right' },
+      ],
+      a.sizes.map((x) => [{ text: x.attributeId, bold: true }, exact(x.tolerableRate), int(x.expectedDeviations), int(x.sampleSize), exact(x.achievedRisk)]),
+      { size: 16 },
+    );
+  }
+  b.p(b.f(T.workpaperState), { style: 'MemoNote' });
+
+  // Appendix B.
+  b.h1(H.appendixReperform, { pageBreakBefore: true, numbered: false });
+  b.ps(T.reperform);
+  b.h2(H.reperformCommand);
+  b.ps(T.reperformCommand);
+  b.h2(H.reperformManual);
+  const manual = (Array.isArray(T.reperformManual) ? T.reperformManual : [T.reperformManual]).map((x) => b.f(x));
+  if (m.haphazard && manual.length > 1) manual[1] = b.f(T.reperformHaphazard);
+  b.steps(manual);
+  b.h2(H.formulas);
+  const model = a?.model ?? 'binomial';
+  const byModel = (bin: string, hyp: string, poi: string) => (model === 'hypergeometric' ? hyp : model === 'poisson' ? poi : bin);
+  b.bullets(
+    [
+      T.formulaSampleRate,
+      byModel(T.formulaRiskBinomial, T.formulaRiskHypergeometric, T.formulaRiskPoisson),
+      byModel(T.formulaLimitBinomial, T.formulaLimitHypergeometric, T.formulaLimitPoisson),
+      T.formulaSize,
+      T.formulaDecision,
+    ].map((x) => b.f(x)),
+  );
+
+  return assemble(b, m, t);
+}
+
+function assemble(b: Builder, m: MemoModel, t: MemoTemplate): Document {
+  const W = t.memo;
+  const font = W.settings.font;
+  const size = W.settings.fontSize * 2;
+  const paper = PAPER[W.settings.paper];
+  const L = W.labels;
+  const small = Math.max(14, size - 4);
+  const headerText = [b.values.reference, b.values.entity].filter(Boolean).join(' · ') || L.notRecorded;
+  const header = new Header({
+    children: [
+      new Paragraph({
+        tabStops: [{ type: TabStopType.RIGHT, position: b.width }],
+        border: { bottom: { style: BorderStyle.SINGLE, size: 4, color: '999999', space: 2 } },
+        children: [
+          new TextRun({ text: headerText, size: small, color: '404040' }),
+          new TextRun({ children: [new Tab()] }),
+          m.draft
+            ? new TextRun({ text: t.outcomes.draft.headerMark, bold: true, size: small + 4, color: 'C00000' })
+            : new TextRun({ text: `${L.control} ${b.values.controlId ?? ''}`.trim(), size: small, color: '404040' }),
+        ],
+      }),
+    ],
+  });
+  const footer = new Footer({
+    children: [
+      new Paragraph({
+        tabStops: [{ type: TabStopType.RIGHT, position: b.width }],
+        border: { top: { style: BorderStyle.SINGLE, size: 4, color: '999999', space: 2 } },
+        children: [
+          new TextRun({ text: fill(L.generatedBy, b.values, L.notRecorded), size: small, color: '595959' }),
+          new TextRun({ children: [new Tab()] }),
+          new TextRun({ children: [`${L.page} `, PageNumber.CURRENT, ` ${L.of} `, PageNumber.TOTAL_PAGES], size: small, color: '404040' }),
+        ],
+      }),
+    ],
+  });
+  const ownStyles = [
+    { id: 'TableText', name: 'Table Text', basedOn: 'Normal', quickFormat: true, run: { size: size - 2 }, paragraph: { spacing: { before: 0, after: 0, line: 240, lineRule: LineRuleType.AUTO } } },
+    { id: 'TableSmall', name: 'Table Text Small', basedOn: 'TableText', run: { size: 16 } },
+    { id: 'TableTiny', name: 'Table Text Tiny', basedOn: 'TableText', run: { size: 14 } },
+    { id: 'Spacer', name: 'Table Spacer', basedOn: 'Normal', paragraph: { spacing: { before: 0, after: 0, line: 200, lineRule: LineRuleType.AUTO } }, run: { size: 12 } },
+    { id: 'MemoNote', name: 'Memo Note', basedOn: 'Normal', quickFormat: true, run: { italics: true, color: '595959' } },
+  ];
+  const styles = t.externalStyles
+    ? { paragraphStyles: ownStyles }
+    : {
+        default: {
+          document: { run: { font, size }, paragraph: { spacing: { after: 120, line: 264, lineRule: LineRuleType.AUTO } } },
+          title: { run: { font, size: 36, bold: true, color: ACCENT }, paragraph: { spacing: { after: 60 } } },
+          heading1: {
+            run: { font, size: 26, bold: true, color: ACCENT },
+            paragraph: { spacing: { before: 320, after: 120 }, keepNext: true, keepLines: true, border: { bottom: { style: BorderStyle.SINGLE, size: 4, color: 'B4C6E7', space: 2 } } },
+          },
+          heading2: { run: { font, size: 22, bold: true, color: ACCENT }, paragraph: { spacing: { before: 200, after: 80 }, keepNext: true, keepLines: true } },
+          caption: { run: { font, size: size - 2, italics: true, color: '404040' }, paragraph: { spacing: { before: 60, after: 200 } } },
+        },
+        paragraphStyles: [
+          ...ownStyles,
+          { id: 'Subtitle', name: 'Subtitle', basedOn: 'Normal', run: { size: size + 4, color: '404040' }, paragraph: { spacing: { after: 240 } } },
+        ],
+      };
+  return new Document({
+    title: `${fill(W.title, b.values, L.notRecorded)} — ${b.values.reference ?? ''}`.trim(),
+    subject: b.values.controlId ? `${L.control} ${b.values.controlId}` : undefined,
+    creator: 'tolrate',
+    description: fill(W.subtitle, b.values, L.notRecorded),
+    ...(t.externalStyles ? { externalStyles: t.externalStyles } : {}),
+    styles,
+    numbering: {
+      config: [
+        {
+          reference: 'steps',
+          levels: [{ level: 0, format: LevelFormat.DECIMAL, text: '%1.', alignment: AlignmentType.START, style: { paragraph: { indent: { left: 440, hanging: 340 } } } }],
+        },
+      ],
+    },
+    sections: [
+      {
+        properties: {
+          page: {
+            size: { width: paper.width, height: paper.height },
+            margin: { top: paper.margin, bottom: paper.margin, left: paper.margin, right: paper.margin, header: 567, footer: 567 },
+          },
+        },
+        headers: { default: header },
+        footers: { default: footer },
+        children: b.children,
+      },
+    ],
+  });
+}
+
+export async function packDocument(doc: Document): Promise<Buffer> {
+  return Packer.toBuffer(doc);
+}
+

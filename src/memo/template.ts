@@ -1,0 +1,440 @@
+/**
+ * The memo's wording: a folder of JSON files (templates/memo/ by default) that a firm can copy and
+ * edit. Every heading, label and paragraph lives there; paragraphs carry placeholders such as
+ * `{{entity}}` that the renderer fills from the workpaper. `**bold**` marks bold text.
+ *
+ * Layout of the folder:
+ *   memo.json                    settings, title, headings, labels, paragraphs
+ *   outcomes/supported.json      wording when the results support the planned reliance
+ *   outcomes/not-supported.json  ... when they do not
+ *   outcomes/non-statistical.json  caveats for a non-statistical test
+ *   outcomes/haphazard.json      caveats for a haphazard selection
+ *   outcomes/draft.json          marks of a memo of a test in progress
+ *   styles.docx (optional)       a Word document whose styles the memo takes (fonts, headings)
+ *
+ * A template is validated when it is loaded: the shape with zod (every key present, no unknown
+ * key), then every placeholder against the known list. A problem names the file, the key and the
+ * placeholder, and is a TolrateInputError (exit 2).
+ */
+import { existsSync, readFileSync, statSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import * as z from 'zod';
+import { FileInputError, TolrateInputError } from '../errors.js';
+import {
+  CAUSES,
+  FOLLOW_UP_KINDS,
+  FREQUENCIES,
+  INTENT,
+  MODELS,
+  NATURES,
+  PATTERNS,
+  SEVERITIES,
+} from '../workpaper/schema.js';
+
+/** The templates shipped with tolrate. */
+export const DEFAULT_TEMPLATE_DIR = fileURLToPath(new URL('../../templates/memo/', import.meta.url));
+
+/** Placeholders every paragraph may use, with what each is filled with. */
+export const PLACEHOLDERS = {
+  entity: 'the entity tested',
+  period: 'the period tested, "start – end"',
+  periodStart: 'first day of the period (YYYY-MM-DD)',
+  periodEnd: 'last day of the period (YYYY-MM-DD)',
+  reference: 'the workpaper reference',
+  preparer: "the preparer's name",
+  reviewer: "the reviewer's name",
+  preparerDate: "the preparer's sign-off date, or the 'not yet signed' label",
+  reviewerDate: "the reviewer's sign-off date, or the 'not yet signed' label",
+  controlId: 'the control identifier',
+  controlDescription: 'what the control does',
+  controlObjective: 'the objective of the control',
+  controlOwner: 'who performs or owns the control',
+  controlFrequency: 'how often the control operates (label)',
+  controlNature: 'manual, automated or IT-dependent manual (label)',
+  keyControl: 'the yes/no label: is it a key control',
+  attributeCount: 'the number of attributes tested',
+  attributeIds: 'the attribute ids, comma separated',
+  populationDescription: 'the population, in words',
+  samplingUnit: 'the sampling unit',
+  populationSource: 'the population file (relative to the workpaper) or the document-number ranges',
+  populationCount: 'number of items (rows) in the population',
+  populationTotal: 'total amount of the population, when recorded',
+  ledgerCount: 'the ledger count the population was agreed to',
+  ledgerTotal: 'the ledger total the population was agreed to',
+  countDifference: 'population count minus ledger count',
+  totalDifference: 'population total minus ledger total',
+  tieOutExplanation: 'the explanation of tie-out differences',
+  ledgerSource: 'where the ledger figures come from',
+  validationAcceptedReason: 'why the preparer went on despite population-check problems',
+  sha256: 'SHA-256 of the population file',
+  firstKey: 'first key of the population',
+  lastKey: 'last key of the population',
+  populationSize: 'N, the population size the hypergeometric model uses',
+  populationDeviations: '⌈TDR × N⌉, the tolerable deviations in the population (hypergeometric)',
+  approachKind: 'statistical or non-statistical (label)',
+  confidence: 'the planned confidence, e.g. 95%',
+  risk: 'the allowed risk of overreliance, 1 − confidence, e.g. 5.0%',
+  tolerableRate: "the test's tolerable deviation rate",
+  expectedRate: 'the expected deviation rate',
+  model: 'the model: binomial, hypergeometric or Poisson (label)',
+  sampleSize: 'the sample size adopted',
+  spares: 'the number of spares selected',
+  rationale: "the preparer's rationale for the size, in words",
+  plannedSize: 'the sample size the governing tolerable rate needs',
+  plannedTolerableRate: 'the tolerable rate that governs the size',
+  plannedExpectedDeviations: 'k_e at the planned size',
+  plannedRisk: 'the risk of overreliance achieved at planning (rounded up)',
+  fpcBinomialSize: 'the binomial size before the textbook finite population correction',
+  fpcCorrectedSize: 'the size after the textbook finite population correction',
+  policyName: 'the firm policy used for a non-statistical size',
+  policyFrequency: 'the control frequency the policy row applies to (label)',
+  policyReliance: 'the reliance level the policy row applies to',
+  policySize: 'the size the policy gives',
+  policyAssumptions: "the policy's stated assumptions",
+  selectionMethod: 'random, systematic or haphazard (label)',
+  algorithm: 'the selection algorithm id, e.g. random-v1',
+  algorithmDescription: 'what the selection algorithm does, as recorded with its id',
+  seed: 'the selection seed',
+  interval: 'the systematic interval',
+  haphazardBy: 'who chose a haphazard selection',
+  haphazardHow: 'how a haphazard selection was chosen',
+  selectedAt: 'when the selection was made',
+  itemsSelected: 'number of items selected (sample and spares)',
+  sparesUsed: 'number of spares that replaced voided items',
+  testedItems: 'number of items tested (voided items excluded)',
+  totalDeviations: 'number of deviations over all attributes',
+  attributesNotSupported: 'the attributes whose results do not support reliance',
+  controlConclusion: "the practitioner's conclusion on the control",
+  severity: 'the severity classification (label)',
+  followUpsSection: 'the number of the follow-up actions section',
+  workpaperFile: 'the workpaper file name',
+  reperformCommand: 'the re-performance command line',
+  toolVersion: 'the version of tolrate',
+  generatedAt: 'when the memo was written (UTC)',
+  updatedAt: 'when the workpaper was last saved',
+  workpaperId: 'the workpaper id',
+  logEntries: 'the number of change-log entries',
+  lastLogHash: 'the hash of the last change-log entry',
+} as const;
+
+/** Placeholders of the paragraphs written once per attribute (see ATTRIBUTE_SCOPED_KEYS). */
+export const ATTRIBUTE_PLACEHOLDERS = {
+  attributeId: 'the attribute id, e.g. A1',
+  attributeDescription: 'what the attribute checks',
+  attributeTolerableRate: "the attribute's tolerable rate",
+  n: 'items tested for the attribute',
+  deviations: 'deviations found for the attribute',
+  sampleRate: 'the sample deviation rate',
+  upperLimit: 'the upper deviation limit (rounded up)',
+  achievedRisk: 'the risk of overreliance (rounded up)',
+  decision: 'the decision label',
+  extension: 'the additional items an extension needs',
+} as const;
+
+export type PlaceholderName = keyof typeof PLACEHOLDERS;
+export type AttributePlaceholderName = keyof typeof ATTRIBUTE_PLACEHOLDERS;
+
+/** Keys (file, key) whose text is written once per attribute and may use ATTRIBUTE_PLACEHOLDERS. */
+export const ATTRIBUTE_SCOPED_KEYS: ReadonlyArray<readonly [string, string]> = [
+  ['memo.json', 'text.extension'],
+];
+
+const para = z.string();
+const paras = z.union([z.string(), z.array(z.string()).min(1)]);
+
+function labelsOf<T extends readonly string[]>(values: T) {
+  return z.strictObject(Object.fromEntries(values.map((v) => [v, z.string()])) as Record<T[number], z.ZodString>);
+}
+
+const HEADINGS = [
+  'objective', 'attributes', 'population', 'approach', 'selection', 'results', 'deviations', 'qualitative',
+  'conclusion', 'followUps', 'severity', 'responsibility', 'signoff', 'fingerprint', 'spares', 'tieOut', 'sizes',
+  'chart', 'appendixItems', 'appendixExact', 'appendixReperform', 'reperformCommand', 'reperformManual', 'formulas',
+] as const;
+
+const LABELS = [
+  'entity', 'period', 'reference', 'control', 'preparedBy', 'reviewedBy', 'date', 'name', 'role', 'signature',
+  'status', 'statusDraft', 'statusFinal', 'notSigned', 'notRecorded', 'notYetEvaluated', 'none', 'yes', 'no',
+  'controlId', 'description', 'objective', 'owner', 'frequency', 'nature', 'keyControl', 'attribute',
+  'attributeDescription', 'deviationDefinition', 'tolerableRate', 'populationDescription', 'populationSize', 'samplingUnit', 'source',
+  'keyColumn', 'amountColumn', 'scannedAt', 'figure', 'population', 'ledger', 'difference', 'count', 'total',
+  'explanation', 'ledgerSource', 'approachKind', 'confidence', 'allowedRisk', 'expectedRate', 'model', 'sampleSize',
+  'spares', 'expectedDeviations', 'plannedRisk', 'policy', 'method', 'algorithm', 'seed', 'interval', 'starts',
+  'selectedBy', 'how', 'selectedAt', 'sha256', 'rowCount', 'firstKey', 'lastKey', 'amountTotal', 'format', 'columns',
+  'sparesUsed', 'replaces', 'voidReason', 'n', 'deviations', 'sampleRate', 'upperLimit', 'risk', 'decision',
+  'deviationsInPopulation', 'itemKey', 'found', 'cause', 'intentional', 'pattern', 'question', 'answer',
+  'intentionalFound', 'systemicFound', 'compensatingControls', 'notes', 'supportsReliance', 'reasoning', 'recordedConclusion', 'action',
+  'actionOwner', 'due', 'items', 'classification', 'rationale', 'seq', 'row', 'itemRole', 'voidOrReplacement', 'attributesShown',
+  'illustrative', 'evaluationFigures', 'planningFigures', 'decisionSupported', 'decisionNotSupported', 'decisionOverridden', 'resultConforms',
+  'resultDeviation', 'resultMissing', 'resultVoid', 'spareUnused', 'replacedBy', 'replacing', 'legendSampleRate',
+  'legendUpperLimit', 'legendExceeds', 'legendTolerable', 'page', 'of', 'generatedBy',
+] as const;
+
+const TEXTS = [
+  'intro', 'objective', 'attributes', 'attributesMissing', 'population', 'populationMissing', 'tieOutAgreed',
+  'tieOutDifferences', 'tieOutNone', 'validationOk', 'validationProblems', 'approachStatistical',
+  'approachNonStatistical', 'approachMissing', 'sizeRuleBinomial', 'sizeRuleHypergeometric', 'sizeRulePoisson',
+  'sizePlanned', 'fpc', 'policy', 'rationale', 'adopted', 'selectionRandom', 'selectionSystematic',
+  'selectionHaphazard', 'selectionMissing', 'fingerprint', 'sparesNone', 'sparesUsed', 'resultsLead',
+  'limitRuleBinomial', 'limitRuleHypergeometric', 'limitRulePoisson', 'decisionRule', 'resultsMissing',
+  'resultsNotEvaluated', 'chartCaption', 'chartUnavailable', 'extension', 'deviationsLead', 'deviationsNone',
+  'deviationsMissing', 'qualitative', 'qualitativeMissing', 'conclusionMissing',
+  'followUpsNone', 'followUpsMissing', 'severity', 'severityMissing', 'caution', 'signoff', 'appendixItems',
+  'appendixItemsMissing', 'appendixExact', 'reperform', 'reperformCommand', 'reperformHaphazard',
+  'formulaSampleRate', 'formulaRiskBinomial', 'formulaRiskHypergeometric', 'formulaRiskPoisson',
+  'formulaLimitBinomial', 'formulaLimitHypergeometric', 'formulaLimitPoisson', 'formulaSize', 'formulaDecision',
+  'workpaperState',
+] as const;
+
+export const MemoFile = z.strictObject({
+  settings: z.strictObject({
+    paper: z.enum(['A4', 'Letter']),
+    font: z.string().min(1),
+    fontSize: z.number().min(7).max(14),
+    numberHeadings: z.boolean(),
+  }),
+  title: para,
+  subtitle: para,
+  headings: z.strictObject(Object.fromEntries(HEADINGS.map((k) => [k, para])) as Record<(typeof HEADINGS)[number], z.ZodString>),
+  labels: z.strictObject({
+    ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
+    frequencies: labelsOf(FREQUENCIES),
+    natures: labelsOf(NATURES),
+    approaches: labelsOf(['statistical', 'non-statistical'] as const),
+    models: labelsOf(MODELS),
+    methods: labelsOf(['random', 'systematic', 'haphazard'] as const),
+    causes: labelsOf(CAUSES),
+    intent: labelsOf(INTENT),
+    patterns: labelsOf(PATTERNS),
+    severities: labelsOf(SEVERITIES),
+    followUpKinds: labelsOf(FOLLOW_UP_KINDS),
+    roles: labelsOf(['sample', 'spare'] as const),
+  }),
+  text: z.strictObject({
+    ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
+    reperformManual: paras,
+  }),
+});
+
+const Verdict = z.strictObject({ verdict: para, resultsSummary: para });
+const Caveat = z.strictObject({ resultsNote: para, conclusionNote: para, figuresLabel: para });
+
+export const OUTCOME_FILES = {
+  supported: Verdict,
+  'not-supported': Verdict,
+  'non-statistical': Caveat.extend({ approachNote: para }),
+  haphazard: Caveat.extend({ selectionNote: para }),
+  draft: z.strictObject({ headerMark: para, banner: para, verdict: para }),
+} as const;
+
+export type MemoWording = z.infer<typeof MemoFile>;
+export interface MemoTemplate {
+  dir: string;
+  memo: MemoWording;
+  outcomes: {
+    supported: z.infer<typeof Verdict>;
+    'not-supported': z.infer<typeof Verdict>;
+    'non-statistical': z.infer<(typeof OUTCOME_FILES)['non-statistical']>;
+    haphazard: z.infer<(typeof OUTCOME_FILES)['haphazard']>;
+    draft: z.infer<(typeof OUTCOME_FILES)['draft']>;
+  };
+  /** word/styles.xml of the firm's styles.docx, when the folder has one. */
+  externalStyles?: string;
+}
+
+/** One problem found in a template. */
+export interface TemplateProblem {
+  file: string;
+  key: string;
+  message: string;
+  /** The offending placeholder, when the problem is one. */
+  placeholder?: string;
+}
+
+/** A memo template that cannot be used; `problems` lists every one found, file and key first. */
+export class TemplateError extends TolrateInputError {
+  readonly dir: string;
+  readonly problems: TemplateProblem[];
+  constructor(dir: string, problems: TemplateProblem[]) {
+    const first = problems[0];
+    super(
+      problems.length === 1 && first
+        ? `Memo template ${dir}: ${first.file}, ${first.key}: ${first.message}`
+        : `Memo template ${dir} has ${problems.length} problems:`,
+      'TEMPLATE',
+      problems.length === 1 ? [] : problems.slice(0, 30).map((p) => `${p.file}, ${p.key}: ${p.message}`),
+    );
+    this.name = 'TemplateError';
+    this.dir = dir;
+    this.problems = problems;
+  }
+}
+
+const PLACEHOLDER_RE = /\{\{([^{}]*)\}\}/g;
+
+function keyPath(path: readonly PropertyKey[]): string {
+  let s = '';
+  for (const p of path) s += typeof p === 'number' ? `[${p}]` : s === '' ? String(p) : `.${String(p)}`;
+  return s || '(top level)';
+}
+
+function editDistance(a: string, b: string): number {
+  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    const cur = [i];
+    for (let j = 1; j <= b.length; j++) {
+      cur[j] = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (a[i - 1] === b[j - 1] ? 0 : 1));
+    }
+    prev = cur;
+  }
+  return prev[b.length]!;
+}
+
+function suggestion(name: string, known: readonly string[]): string {
+  let best = '';
+  let bestD = Infinity;
+  for (const k of known) {
+    const d = editDistance(name.toLowerCase(), k.toLowerCase());
+    if (d < bestD) {
+      bestD = d;
+      best = k;
+    }
+  }
+  return bestD <= Math.max(2, Math.floor(name.length / 3)) ? ` Did you mean {{${best}}}?` : '';
+}
+
+/** The placeholders used in a text, in order. */
+export function placeholdersIn(text: string): string[] {
+  return [...text.matchAll(PLACEHOLDER_RE)].map((m) => m[1]!.trim());
+}
+
+/** Check every placeholder of a parsed template file against the known lists. */
+export function checkPlaceholders(file: string, data: unknown): TemplateProblem[] {
+  const problems: TemplateProblem[] = [];
+  const global = Object.keys(PLACEHOLDERS);
+  const scoped = Object.keys(ATTRIBUTE_PLACEHOLDERS);
+  const walk = (v: unknown, path: Array<string | number>) => {
+    if (typeof v === 'string') {
+      const key = keyPath(path);
+      const topKey = keyPath(path.filter((p) => typeof p === 'string'));
+      const attributeScope = ATTRIBUTE_SCOPED_KEYS.some(([f, k]) => f === file && k === topKey);
+      const allowed = attributeScope ? [...global, ...scoped] : global;
+      for (const name of placeholdersIn(v)) {
+        if (allowed.includes(name)) continue;
+        const why = scoped.includes(name)
+          ? ` is known only in the per-attribute texts (${ATTRIBUTE_SCOPED_KEYS.filter(([f]) => f === 'memo.json').map(([, k]) => k).join(', ')}).`
+          : ` is not a known placeholder.${suggestion(name, allowed)}`;
+        problems.push({ file, key, placeholder: name, message: `{{${name}}}${why}` });
+      }
+      const rest = v.replace(PLACEHOLDER_RE, '');
+      if (rest.includes('{{') || rest.includes('}}')) {
+        problems.push({ file, key, message: 'has an unbalanced "{{" or "}}"; a placeholder is written {{name}}.' });
+      }
+    } else if (Array.isArray(v)) {
+      v.forEach((x, i) => walk(x, [...path, i]));
+    } else if (v && typeof v === 'object') {
+      for (const [k, x] of Object.entries(v)) walk(x, [...path, k]);
+    }
+  };
+  walk(data, []);
+  return problems;
+}
+
+function readJson(dir: string, file: string, problems: TemplateProblem[]): unknown {
+  const path = join(dir, file);
+  let raw: string;
+  try {
+    raw = readFileSync(path, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    problems.push({ file, key: '(file)', message: code === 'ENOENT' ? 'is missing from the template folder (copy it from the default templates).' : `cannot be read: ${(e as Error).message}` });
+    return undefined;
+  }
+  try {
+    return JSON.parse(raw.replace(/^\uFEFF/, '')) as unknown;
+  } catch (e) {
+    problems.push({ file, key: '(file)', message: `is not valid JSON: ${(e as Error).message}` });
+    return undefined;
+  }
+}
+
+function valueAt(data: unknown, path: readonly PropertyKey[]): unknown {
+  let v: unknown = data;
+  for (const p of path) {
+    if (v === null || typeof v !== 'object') return undefined;
+    v = (v as Record<PropertyKey, unknown>)[p];
+  }
+  return v;
+}
+
+function checkShape<T>(file: string, schema: z.ZodType<T>, data: unknown, problems: TemplateProblem[]): T | undefined {
+  if (data === undefined) return undefined;
+  const r = schema.safeParse(data);
+  if (r.success) return r.data;
+  for (const issue of r.error.issues) {
+    if (issue.code === 'unrecognized_keys') {
+      for (const k of issue.keys) {
+        problems.push({ file, key: keyPath([...issue.path, k]), message: 'is not a key the memo uses (misspelt, or from another version?).' });
+      }
+    } else if (issue.code === 'invalid_type' && valueAt(data, issue.path) === undefined) {
+      problems.push({ file, key: keyPath(issue.path), message: 'is missing (copy it from the default templates).' });
+    } else {
+      problems.push({ file, key: keyPath(issue.path), message: issue.message });
+    }
+  }
+  return undefined;
+}
+
+/** Read word/styles.xml out of a .docx (the firm's styles). */
+async function readStylesDocx(path: string): Promise<string> {
+  const { default: JSZip } = await import('jszip');
+  let zip: Awaited<ReturnType<typeof JSZip.loadAsync>>;
+  try {
+    zip = await JSZip.loadAsync(readFileSync(path));
+  } catch (e) {
+    throw new FileInputError(path, `${path} is not a Word document (.docx): ${(e as Error).message}`);
+  }
+  const styles = zip.file('word/styles.xml');
+  if (!styles) throw new FileInputError(path, `${path} has no styles (word/styles.xml is missing).`);
+  return styles.async('string');
+}
+
+const cache = new Map<string, MemoTemplate>();
+
+/**
+ * Load and validate a memo template folder (default: the templates shipped with tolrate).
+ * Throws a TemplateError naming every problem (file, key, placeholder).
+ */
+export async function loadTemplate(dir: string = DEFAULT_TEMPLATE_DIR): Promise<MemoTemplate> {
+  const abs = resolve(dir);
+  if (abs === resolve(DEFAULT_TEMPLATE_DIR) && cache.has(abs)) return cache.get(abs)!;
+  if (!existsSync(abs) || !statSync(abs).isDirectory()) {
+    throw new FileInputError(abs, `No memo template folder at ${dir}. Copy templates/memo from tolrate and point --template at the copy.`);
+  }
+  const problems: TemplateProblem[] = [];
+  const memoRaw = readJson(abs, 'memo.json', problems);
+  const memo = checkShape('memo.json', MemoFile, memoRaw, problems);
+  if (memoRaw !== undefined) problems.push(...checkPlaceholders('memo.json', memoRaw));
+  const outcomes: Record<string, unknown> = {};
+  for (const [name, schema] of Object.entries(OUTCOME_FILES)) {
+    const file = `outcomes/${name}.json`;
+    const raw = readJson(abs, file, problems);
+    outcomes[name] = checkShape(file, schema as z.ZodType<unknown>, raw, problems);
+    if (raw !== undefined) problems.push(...checkPlaceholders(file, raw));
+  }
+  if (problems.length > 0) throw new TemplateError(abs, problems);
+  const t: MemoTemplate = { dir: abs, memo: memo!, outcomes: outcomes as unknown as MemoTemplate['outcomes'] };
+  const stylesPath = join(abs, 'styles.docx');
+  if (existsSync(stylesPath)) t.externalStyles = await readStylesDocx(stylesPath);
+  if (abs === resolve(DEFAULT_TEMPLATE_DIR)) cache.set(abs, t);
+  return t;
+}
+
+/** Fill the placeholders of a text. A placeholder without a value gets `missing`. */
+export function fill(text: string, values: Readonly<Record<string, string | undefined>>, missing: string): string {
+  return text.replace(PLACEHOLDER_RE, (_, name: string) => {
+    const v = values[name.trim()];
+    return v === undefined || v === '' ? missing : v;
+  });
+}
