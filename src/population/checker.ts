@@ -1,0 +1,283 @@
+import { AmountTotal, parseAmount } from './amount.js';
+import { DateTracker, type DateSummary } from './date.js';
+import type { CsvTokenizer } from './csv-tokenizer.js';
+import { KeyHashes, hashBytes, hashString } from './key-index.js';
+import type { DateOrder, DuplicateKeyExample, PopulationValidation, ProblemCount, RowExample } from './types.js';
+
+export const EXAMPLES = 5;
+export const DUPLICATE_EXAMPLES = 10;
+
+export class Problems implements ProblemCount {
+  count = 0;
+  examples: RowExample[] = [];
+  add(row: number, reason: string, value?: string): void {
+    this.count++;
+    if (this.examples.length < EXAMPLES) {
+      const ex: RowExample = { row, reason };
+      if (value !== undefined) ex.value = value.length > 60 ? `${value.slice(0, 57)}...` : value;
+      this.examples.push(ex);
+    }
+  }
+  plain(): ProblemCount {
+    return { count: this.count, examples: this.examples };
+  }
+}
+
+/** Which columns matter, by index in the header. */
+export interface CheckColumns {
+  width: number;
+  key: number;
+  amount?: number;
+  date?: number;
+  decimalComma?: boolean;
+  dateOrder?: DateOrder;
+}
+
+const plain = (c: number) => c > 0x20 && c < 0x7f;
+
+/**
+ * Pass-1 bookkeeping shared by the CSV and XLSX readers: row count, first/last key, key hashes for
+ * duplicates, blank keys, rows with the wrong shape, amounts (exact total) and dates.
+ */
+export class RowChecker {
+  rows = 0;
+  firstKey = '';
+  lastKey = '';
+  readonly hashes = new KeyHashes();
+  readonly blankKeys = new Problems();
+  readonly badRows = new Problems();
+  readonly badAmounts = new Problems();
+  readonly blankLines = new Problems();
+  readonly amounts: AmountTotal | undefined;
+  readonly dates: DateTracker | undefined;
+  private scratch = new Uint8Array(256);
+  private lastLen = -1;
+  private readonly dec: number;
+
+  constructor(readonly cols: CheckColumns) {
+    this.amounts = cols.amount !== undefined ? new AmountTotal() : undefined;
+    this.dates = cols.date !== undefined ? new DateTracker(cols.dateOrder, cols.decimalComma ? 'dmy' : 'mdy') : undefined;
+    this.dec = cols.decimalComma ? 0x2c : 0x2e;
+  }
+
+  blankLine(row: number): void {
+    this.blankLines.add(row, 'blank line');
+  }
+
+  /** One CSV record (not the header, not blank). */
+  csvRow(t: CsvTokenizer): void {
+    const row = t.line;
+    const pos = this.rows++;
+    const { width, key, amount, date } = this.cols;
+    if (t.problem) this.badRows.add(row, t.problem);
+    else if (t.count !== width) this.badRows.add(row, `${t.count} field${t.count === 1 ? '' : 's'}; the header has ${width}`);
+    const b = t.buf;
+    // Key
+    if (key < t.count) {
+      const s = t.starts[key]!;
+      const e = t.ends[key]!;
+      const k = t.kinds[key]!;
+      if (k <= 1 && e > s && plain(b[s]!) && plain(b[e - 1]!)) {
+        this.hashes.add(hashBytes(b, s, e));
+        const len = e - s;
+        if (len > this.scratch.length) this.scratch = new Uint8Array(len * 2);
+        const sc = this.scratch;
+        for (let i = 0; i < len; i++) sc[i] = b[s + i]!;
+        this.lastLen = len;
+        if (pos === 0) this.firstKey = b.toString('utf8', s, e);
+      } else this.slowKey(t.field(key).trim(), row, pos);
+    } else this.slowKey('', row, pos);
+    // Amount
+    if (amount !== undefined) {
+      const am = this.amounts!;
+      if (amount < t.count) {
+        const k = t.kinds[amount]!;
+        if (!(k <= 1 && am.addBytes(b, t.starts[amount]!, t.ends[amount]!, this.dec))) this.amountText(t.field(amount), row);
+      } else this.badAmounts.add(row, 'no amount (the row is short)');
+    }
+    // Date
+    if (date !== undefined) {
+      const dt = this.dates!;
+      if (date < t.count) {
+        const k = t.kinds[date]!;
+        if (!(k <= 1 && dt.addIsoBytes(b, t.starts[date]!, t.ends[date]!))) dt.add(t.field(date), row);
+      } else dt.add('', row);
+    }
+  }
+
+  private slowKey(k: string, row: number, pos: number): void {
+    if (pos === 0) this.firstKey = k;
+    if (k === '') {
+      this.blankKeys.add(row, 'blank key');
+      this.setLast('');
+      return;
+    }
+    this.hashes.add(hashString(k));
+    this.setLast(k);
+  }
+
+  private setLast(k: string): void {
+    this.lastKey = k;
+    this.lastLen = -1;
+  }
+
+  private amountText(text: string, row: number): void {
+    const p = parseAmount(text, { decimalComma: this.cols.decimalComma });
+    if (p) this.amounts!.add(p);
+    else this.badAmounts.add(row, text.trim() === '' ? 'blank amount' : 'not an amount', text);
+  }
+
+  /** One row given as texts (XLSX). `extra` tells that cells lie beyond the last named column. */
+  textRow(values: readonly string[], row: number, extra: boolean): void {
+    const pos = this.rows++;
+    const { key, amount, date } = this.cols;
+    if (extra) this.badRows.add(row, 'values beyond the last named column');
+    this.slowKey((values[key] ?? '').trim(), row, pos);
+    if (amount !== undefined) this.amountText(values[amount] ?? '', row);
+    if (date !== undefined) this.dates!.add(values[date] ?? '', row);
+  }
+
+  /** The key of the last data row. */
+  finalLastKey(): string {
+    return this.lastLen >= 0 ? Buffer.from(this.scratch.subarray(0, this.lastLen)).toString('utf8') : this.lastKey;
+  }
+
+  /** Key hash of a CSV record's key field, or undefined when blank (for the confirming pass). */
+  static csvKey(t: CsvTokenizer, key: number): { hash: number; text: () => string } | undefined {
+    if (key >= t.count) return undefined;
+    const b = t.buf;
+    const s = t.starts[key]!;
+    const e = t.ends[key]!;
+    const k = t.kinds[key]!;
+    if (k <= 1 && e > s && plain(b[s]!) && plain(b[e - 1]!)) {
+      return { hash: hashBytes(b, s, e), text: () => b.toString('utf8', s, e) };
+    }
+    const text = t.field(key).trim();
+    if (text === '') return undefined;
+    return { hash: hashString(text), text: () => text };
+  }
+}
+
+/** The key text of a CSV record (trimmed), '' when missing. */
+export function csvKeyText(t: CsvTokenizer, key: number): string {
+  return key < t.count ? t.field(key).trim() : '';
+}
+
+/** Exact duplicates found in the confirming pass. */
+export interface DuplicateResult {
+  count: number;
+  rows: number;
+  examples: DuplicateKeyExample[];
+}
+
+/** Collects rows per key for the candidate hashes, then keeps the real duplicates. */
+export class DuplicateCollector {
+  private byKey = new Map<string, { n: number; rows: number[] }>();
+  constructor(readonly candidates: Set<number>) {}
+  offer(hash: number, text: () => string, row: number): void {
+    if (!this.candidates.has(hash)) return;
+    const k = text();
+    const e = this.byKey.get(k);
+    if (e) {
+      e.n++;
+      if (e.rows.length < EXAMPLES) e.rows.push(row);
+    } else this.byKey.set(k, { n: 1, rows: [row] });
+  }
+  result(): DuplicateResult {
+    let count = 0;
+    let rows = 0;
+    const examples: DuplicateKeyExample[] = [];
+    for (const [key, e] of this.byKey) {
+      if (e.n < 2) continue;
+      count++;
+      rows += e.n;
+      examples.push({ key, occurrences: e.n, rows: e.rows });
+    }
+    examples.sort((a, b) => a.rows[0]! - b.rows[0]!);
+    return { count, rows, examples: examples.slice(0, DUPLICATE_EXAMPLES) };
+  }
+}
+
+const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+
+function exampleList(ex: RowExample[], withValue: boolean, rowWord: string): string {
+  return ex
+    .map((e) => `${rowWord} ${e.row}${withValue && e.value !== undefined ? ` ${JSON.stringify(e.value)}` : ''} (${e.reason})`)
+    .join('; ');
+}
+
+export interface ReportInput {
+  rowCount: number;
+  duplicates: DuplicateResult;
+  blankKeys: ProblemCount;
+  badRows: ProblemCount;
+  badAmounts: ProblemCount;
+  dates?: DateSummary;
+  badEncoding: ProblemCount;
+  blankLines: ProblemCount;
+  otherProblems?: string[];
+  notes?: string[];
+  /** 'line' for text files, 'row' for worksheets. */
+  rowWord: 'line' | 'row';
+  amountColumn?: string;
+  dateColumn?: string;
+}
+
+/** Turn the counts into the validation report with one sentence per problem. */
+export function buildValidation(r: ReportInput): PopulationValidation {
+  const messages: string[] = [];
+  const notes = [...(r.notes ?? [])];
+  const w = r.rowWord;
+  const d = r.duplicates;
+  if (d.count > 0) {
+    const ex = d.examples
+      .map((e) => `${JSON.stringify(e.key)} ×${e.occurrences} (${w}s ${e.rows.join(', ')}${e.occurrences > e.rows.length ? ', ...' : ''})`)
+      .join('; ');
+    messages.push(`${plural(d.count, 'key')} appear${d.count === 1 ? 's' : ''} on more than one row (${plural(d.rows, 'row')} in all): ${ex}${d.count > d.examples.length ? '; ...' : ''}.`);
+  }
+  const more = (p: ProblemCount) => (p.count > p.examples.length ? '; ...' : '');
+  if (r.blankKeys.count > 0) {
+    messages.push(`${plural(r.blankKeys.count, 'row')} ${r.blankKeys.count === 1 ? 'has' : 'have'} a blank key: ${w}s ${r.blankKeys.examples.map((e) => e.row).join(', ')}${more(r.blankKeys)}.`);
+  }
+  if (r.badRows.count > 0) {
+    messages.push(`${plural(r.badRows.count, 'row')} ${r.badRows.count === 1 ? 'does' : 'do'} not match the header: ${exampleList(r.badRows.examples, false, w)}${more(r.badRows)}.`);
+  }
+  if (r.badAmounts.count > 0) {
+    messages.push(`${plural(r.badAmounts.count, 'amount')} in column "${r.amountColumn}" cannot be read and ${r.badAmounts.count === 1 ? 'is' : 'are'} left out of the total: ${exampleList(r.badAmounts.examples, true, w)}${more(r.badAmounts)}.`);
+  }
+  const badDates = r.dates?.bad ?? { count: 0, examples: [] };
+  if (badDates.count > 0) {
+    messages.push(`${plural(badDates.count, 'date')} in column "${r.dateColumn}" cannot be read: ${exampleList(badDates.examples, true, w)}${more(badDates)}.`);
+  }
+  if (r.badEncoding.count > 0) {
+    messages.push(`${plural(r.badEncoding.count, 'line')} ${r.badEncoding.count === 1 ? 'is' : 'are'} not valid UTF-8 text (first: line ${r.badEncoding.examples[0]?.row}); save the file as "CSV UTF-8" and read it again.`);
+  }
+  const empty = r.rowCount === 0;
+  if (empty) messages.push('The population is empty: there are no data rows.');
+  for (const o of r.otherProblems ?? []) messages.push(o);
+  if (r.blankLines.count > 0) {
+    notes.push(`${plural(r.blankLines.count, `blank ${w}`)} ${r.blankLines.count === 1 ? 'is' : 'are'} not counted as rows: ${w}s ${r.blankLines.examples.map((e) => e.row).join(', ')}${more(r.blankLines)}.`);
+  }
+  if (r.dates?.order) {
+    const o = r.dates.order === 'dmy' ? 'day/month/year' : 'month/day/year';
+    notes.push(
+      r.dates.orderAssumed
+        ? `Dates such as 03/04/2024 could be day/month or month/day; they were read as ${o}. Give the date order if that is wrong.`
+        : `Dates with the day and month in numbers were read as ${o}.`,
+    );
+  }
+  return {
+    ok: messages.length === 0,
+    duplicateKeys: { count: d.count, rows: d.rows, examples: d.examples },
+    blankKeys: r.blankKeys,
+    badRows: r.badRows,
+    badAmounts: r.badAmounts,
+    badDates,
+    badEncoding: r.badEncoding,
+    emptyPopulation: empty,
+    otherProblems: r.otherProblems ?? [],
+    messages,
+    notes,
+  };
+}
+

@@ -1,0 +1,29 @@
+/** Population reading: CSV, XLSX and document-number ranges; fingerprint and validation. */
+export { scanPopulation, readRowsAt, findKeys } from './scan.js';
+export { parseAmount, amountText, groupDigits, AmountTotal } from './amount.js';
+export type { ParsedAmount, AmountOptions } from './amount.js';
+export { parseDate, ymdText } from './date.js';
+export { detectDelimiter, delimiterOption, delimiterName } from './csv.js';
+export { parseRanges, RANGES_COLUMN } from './ranges.js';
+export { cellText } from './xlsx.js';
+export { nearestColumn } from './columns.js';
+export { PROGRESS_DELAY_MS } from './progress.js';
+export type {
+  PopulationSource,
+  CsvSource,
+  XlsxSource,
+  RangesSource,
+  DateOrder,
+  PopulationScan,
+  PopulationFingerprint,
+  PopulationValidation,
+  ProblemCount,
+  RowExample,
+  DuplicateKeyExample,
+  PopulationRow,
+  KeyLookup,
+  ScanProgress,
+  ProgressStream,
+  ReadOptions,
+  ReadRowsOptions,
+} from './types.js';

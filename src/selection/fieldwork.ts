@@ -1,0 +1,148 @@
+import { randomBytes } from 'node:crypto';
+import { mkdir, rename, rm, writeFile } from 'node:fs/promises';
+import { basename, dirname, extname, join } from 'node:path';
+import { FileInputError, TolrateInputError } from '../errors.js';
+import type { PopulationRow } from '../population/types.js';
+import type { Selection } from './types.js';
+
+/**
+ * The fieldwork sheet: one row per selected item, in selection order, with
+ *   Seq | Role | Row | Key | the population's own columns | one result column per attribute | Note
+ * Seq is the selection order (1, 2, ...), Role is sample or spare, Row is the row (line) number in
+ * the source as a user sees it, Key is the sampling unit's key.
+ *
+ * CSV: UTF-8 with a byte order mark (so spreadsheets read accents right), CRLF line ends, fields
+ * quoted when needed. A cell that a spreadsheet would run as a formula (it starts with = + - @,
+ * TAB or CR) gets a leading single quote; `restoreCell` undoes that when the sheet is read back.
+ * XLSX (a path ending in .xlsx): the same table in a sheet "Fieldwork" (cells are text, never
+ * formulas), and the notes, if any, in a sheet "About".
+ * Either is written to a temporary file beside the target and renamed over it.
+ */
+
+export const SEQ_COLUMN = 'Seq';
+export const ROLE_COLUMN = 'Role';
+export const ROW_COLUMN = 'Row';
+export const KEY_COLUMN = 'Key';
+export const NOTE_COLUMN = 'Note';
+
+export interface FieldworkItem {
+  seq: number;
+  role: 'sample' | 'spare';
+  /** Row (line) number in the source, 1-based as a user sees it. */
+  row: number;
+  key: string;
+  values: Record<string, string>;
+}
+
+export interface FieldworkSheet {
+  /** The population's columns, in order, with their own names. */
+  columns: string[];
+  items: FieldworkItem[];
+  /** One empty result column per attribute, headed "<id> result". */
+  attributes?: Array<{ id: string; description?: string }>;
+  /** Use these result columns instead (e.g. the interview's own set); the Note column follows. */
+  resultColumns?: string[];
+  /** Lines for the XLSX "About" sheet (seed, algorithm, fingerprint...). Not written to CSV. */
+  notes?: string[];
+}
+
+const RISKY = /^[=+\-@\t\r]/;
+
+/** Neutralise a cell a spreadsheet would take as a formula: a leading single quote. */
+export function neutraliseCell(text: string): string {
+  return RISKY.test(text) ? `'${text}` : text;
+}
+
+/** Undo neutraliseCell when reading a sheet back. */
+export function restoreCell(text: string): string {
+  return text.length > 1 && text[0] === "'" && RISKY.test(text.slice(1)) ? text.slice(1) : text;
+}
+
+function csvField(text: string): string {
+  const t = neutraliseCell(text);
+  return /[",\r\n]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t;
+}
+
+/** The header and the rows of the sheet, as text. */
+export function fieldworkTable(sheet: FieldworkSheet): { header: string[]; rows: string[][] } {
+  const ours = [SEQ_COLUMN, ROLE_COLUMN, ROW_COLUMN, KEY_COLUMN];
+  const results = sheet.resultColumns ?? (sheet.attributes?.length ? sheet.attributes.map((a) => `${a.id} result`) : ['Result']);
+  const reserved = new Set([...ours, ...results, NOTE_COLUMN].map((c) => c.toLowerCase()));
+  // A population column that shares a name with one of ours is shown as "<name> (population)".
+  const shown = sheet.columns.map((c) => (reserved.has(c.toLowerCase()) ? `${c} (population)` : c));
+  const header = [...ours, ...shown, ...results, NOTE_COLUMN];
+  const rows = sheet.items.map((it) => [
+    String(it.seq),
+    it.role,
+    String(it.row),
+    it.key,
+    ...sheet.columns.map((c) => it.values[c] ?? ''),
+    ...results.map(() => ''),
+    '',
+  ]);
+  return { header, rows };
+}
+
+/** The CSV text of the sheet (with BOM). */
+export function fieldworkCsv(sheet: FieldworkSheet): string {
+  const { header, rows } = fieldworkTable(sheet);
+  return '\uFEFF' + [header, ...rows].map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n';
+}
+
+async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
+  const ExcelJS = (await import('exceljs')).default;
+  const wb = new ExcelJS.Workbook();
+  wb.creator = 'tolrate';
+  const ws = wb.addWorksheet('Fieldwork', { views: [{ state: 'frozen', ySplit: 1 }] });
+  const { header, rows } = fieldworkTable(sheet);
+  ws.addRow(header).font = { bold: true };
+  for (const r of rows) ws.addRow(r);
+  ws.columns.forEach((col, i) => {
+    const longest = Math.max(header[i]!.length, ...rows.slice(0, 200).map((r) => (r[i] ?? '').length));
+    col.width = Math.min(50, Math.max(6, longest + 2));
+  });
+  ws.autoFilter = { from: { row: 1, column: 1 }, to: { row: 1, column: header.length } };
+  if (sheet.notes?.length) {
+    const about = wb.addWorksheet('About');
+    about.getColumn(1).width = 100;
+    for (const line of sheet.notes) about.addRow([line]);
+  }
+  return Buffer.from(await wb.xlsx.writeBuffer());
+}
+
+/** Write a file by a temporary file in the same folder and a rename, so it is never half written. */
+export async function writeAtomic(path: string, data: string | Buffer): Promise<void> {
+  const dir = dirname(path);
+  await mkdir(dir, { recursive: true }).catch(() => undefined);
+  const tmp = join(dir, `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+  try {
+    await writeFile(tmp, data);
+    await rename(tmp, path);
+  } catch (e) {
+    await rm(tmp, { force: true }).catch(() => undefined);
+    const code = (e as { code?: string }).code;
+    if (code === 'ENOENT' || code === 'EACCES' || code === 'EPERM' || code === 'EISDIR' || code === 'ENOTDIR' || code === 'EROFS') {
+      throw new FileInputError(path, `Cannot write ${path} (${code}).`);
+    }
+    throw e;
+  }
+}
+
+/** Write the fieldwork sheet (CSV, or XLSX when the path ends in .xlsx). */
+export async function writeFieldworkSheet(path: string, sheet: FieldworkSheet): Promise<{ path: string; format: 'csv' | 'xlsx'; rows: number }> {
+  if (!sheet.items.length) throw new TolrateInputError('There are no items to write to the fieldwork sheet.', 'INVALID_SELECTION');
+  const ext = extname(path).toLowerCase();
+  if (ext === '.xls' || ext === '.xlsm') throw new TolrateInputError(`Write the fieldwork sheet as .csv or .xlsx, not ${ext}.`, 'INVALID_OUTPUT');
+  const format = ext === '.xlsx' ? 'xlsx' : 'csv';
+  await writeAtomic(path, format === 'xlsx' ? await fieldworkXlsx(sheet) : fieldworkCsv(sheet));
+  return { path, format, rows: sheet.items.length };
+}
+
+/** The sheet's items from a selection and the rows read at its positions (same order). */
+export function fieldworkItems(selection: Pick<Selection, 'sampleSize' | 'positions'>, rows: readonly PopulationRow[]): FieldworkItem[] {
+  if (rows.length !== selection.positions.length) throw new Error('internal: rows and positions differ in number');
+  return rows.map((r, i) => {
+    if (r.position !== selection.positions[i]) throw new Error('internal: rows are not in the order of the positions');
+    return { seq: i + 1, role: i < selection.sampleSize ? 'sample' : 'spare', row: r.row, key: r.key, values: r.values };
+  });
+}
