@@ -18,13 +18,20 @@ export function editDistance(a: string, b: string): number {
   return prev[n]!;
 }
 
+function commonPrefix(a: string, b: string): number {
+  let i = 0;
+  while (i < a.length && i < b.length && a[i] === b[i]) i++;
+  return i;
+}
+
 /** The closest candidate to `word`, or undefined when nothing is reasonably close. */
 export function nearest(word: string, candidates: readonly string[]): string | undefined {
   let best: string | undefined;
   let bestD = Infinity;
   for (const c of candidates) {
     const d = c.startsWith(word) || word.startsWith(c) ? Math.min(1, editDistance(word, c)) : editDistance(word, c);
-    if (d < bestD) {
+    // On a tie, prefer the longer common prefix (--sede -> --seed, not --size).
+    if (d < bestD || (d === bestD && best !== undefined && commonPrefix(c, word) > commonPrefix(best, word))) {
       bestD = d;
       best = c;
     }

@@ -96,6 +96,10 @@ export const PopulationSource = z.discriminatedUnion('kind', [
     amountColumn: optText,
     dateColumn: optText,
     delimiter: z.string().optional(),
+    /** Amounts written with a decimal comma (1.234,56). */
+    decimalComma: z.boolean().optional(),
+    /** How dates such as 03/04/2026 are read. */
+    dateOrder: z.enum(['dmy', 'mdy']).optional(),
   }),
   z.object({
     kind: z.literal('xlsx'),
@@ -104,6 +108,8 @@ export const PopulationSource = z.discriminatedUnion('kind', [
     keyColumn: text,
     amountColumn: optText,
     dateColumn: optText,
+    decimalComma: z.boolean().optional(),
+    dateOrder: z.enum(['dmy', 'mdy']).optional(),
   }),
   z.object({
     kind: z.literal('ranges'),
@@ -121,6 +127,16 @@ export const Fingerprint = z.object({
   amountTotal: decimal.optional(),
   format: z.string(),
   sheet: z.string().optional(),
+  /** The CSV delimiter used (detected or given). */
+  delimiter: z.string().optional(),
+  /** Amounts read and added to the total. */
+  amountCount: count.optional(),
+  bytes: count.optional(),
+  file: z.string().optional(),
+  dateRange: z.object({ earliest: z.string(), latest: z.string() }).optional(),
+  /** Ranges: the canonical text hashed, and how many numbers the exclusions removed. */
+  canonical: z.string().optional(),
+  excludedCount: count.optional(),
 });
 
 export const Population = z.object({

@@ -1,0 +1,55 @@
+import { parseFlags, str } from '../../cli/args.js';
+import { UsageError } from '../../errors.js';
+import type { CommandContext } from '../types.js';
+
+const HELP = `Usage: tolrate reperform FILE [--population PATH] [--memo MEMO.docx] [--json]
+
+Re-derive a test from its workpaper file and report any difference:
+  - the change log (hash chain, and edits made outside tolrate, named by field);
+  - the population (SHA-256, row count, first and last key, amount total);
+  - the selection, drawn again from the recorded seed and algorithm, item by item;
+  - the sample size, every rate, upper limit, risk of overreliance, decision and extension;
+  - the conclusion against the recomputed figures and recorded causes;
+  - with --memo, that the memo carries the same figures.
+
+Options:
+  --population PATH  the population file, when it has moved (default: the path recorded in the
+                     workpaper, relative to the workpaper file's folder)
+  --memo PATH        also check this DOCX memo
+  --json             print the report as JSON
+  -h, --help         this text
+
+Exit codes: 0 everything agrees; 1 a difference was found (each is named); 2 unusable input.
+
+Example:
+  tolrate reperform demo-output/ap-approval.tolrate.json --memo demo-output/ap-approval.memo.docx
+
+A re-performance checks the arithmetic and the record; it does not re-test the items.
+`;
+
+export async function run(args: string[], ctx: CommandContext): Promise<number> {
+  const p = parseFlags('reperform', args, { population: { type: 'string' }, memo: { type: 'string' }, json: { type: 'boolean' } }, 1);
+  if (p.values.help) {
+    ctx.stdout.write(HELP);
+    return 0;
+  }
+  const file = p.positionals[0];
+  if (!file) throw new UsageError('tolrate reperform: name the workpaper file, e.g. tolrate reperform test.tolrate.json', ['See: tolrate reperform --help']);
+  const { resolve } = await import('node:path');
+  const { loadWorkpaper } = await import('../../workpaper/index.js');
+  const { reperform, formatReport } = await import('../../reperform/index.js');
+  const workpaperPath = resolve(ctx.cwd, file);
+  const workpaper = loadWorkpaper(workpaperPath);
+  const population = str(p, 'population');
+  const memo = str(p, 'memo');
+  const report = await reperform({
+    workpaper,
+    workpaperPath,
+    ...(population ? { populationPath: resolve(ctx.cwd, population) } : {}),
+    ...(memo ? { memoPath: resolve(ctx.cwd, memo) } : {}),
+    ...(ctx.isTTY ? { progress: process.stderr } : {}),
+  });
+  if (p.values.json) ctx.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
+  else ctx.stdout.write(formatReport({ ...report, workpaperPath: file }));
+  return report.ok ? 0 : 1;
+}

@@ -1,0 +1,417 @@
+/**
+ * Re-performance: re-derive a test from its workpaper file and its population, and name every
+ * difference. A reviewer (or an inspector years later) runs this instead of redoing the
+ * arithmetic by hand:
+ *
+ *  1. the workpaper's change log: hash chain intact, and the file is what its log says (an edit
+ *     made outside tolrate is named by its path);
+ *  2. the population: SHA-256, row count, first and last key, amount total;
+ *  3. the selection: drawn again from the recorded method, seed and algorithm and compared item
+ *     by item (position, key, source row); a haphazard list is checked against the population;
+ *  4. the sample size: recomputed from the recorded confidence, rates and model;
+ *  5. the evaluation: every rate, limit, risk, decision and extension recomputed from the
+ *     recorded results;
+ *  6. the conclusion: no attribute concluded as supporting reliance that the figures or the
+ *     qualitative review do not support;
+ *  7. optionally the memo: it carries the same figures as the workpaper.
+ */
+import { dirname, isAbsolute, resolve } from 'node:path';
+import { accessSync, constants, readFileSync } from 'node:fs';
+import { FileInputError, TolrateInputError } from '../errors.js';
+import { sampleSize as computeSampleSize } from '../stats/index.js';
+import { evaluate, proposeConclusion } from '../evaluation/index.js';
+import { verifyLog, type Workpaper } from '../workpaper/index.js';
+import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
+import { pct, pctExact, pctUp } from '../util/format.js';
+
+export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'evaluation' | 'conclusion' | 'memo';
+
+export interface Check {
+  area: Area;
+  /** One line saying what was checked and what was found. */
+  summary: string;
+  /** Each difference, named. Empty when the area agrees. */
+  differences: string[];
+  /** True when the area could not be checked (not recorded yet); not a difference. */
+  skipped?: boolean;
+}
+
+export interface ReperformReport {
+  workpaperPath: string;
+  populationPath?: string;
+  memoPath?: string;
+  checks: Check[];
+  /** True when every check that ran agrees. */
+  ok: boolean;
+}
+
+export interface ReperformOptions {
+  workpaper: Workpaper;
+  workpaperPath: string;
+  /** Overrides the population path recorded in the workpaper. */
+  populationPath?: string;
+  memoPath?: string;
+  /** Progress bar stream for big populations (a terminal), or nothing. */
+  progress?: { write(text: string): unknown; isTTY?: boolean };
+}
+
+const LIMIT_TOLERANCE = 1e-9;
+
+function close(a: number, b: number, tol = LIMIT_TOLERANCE): boolean {
+  return Math.abs(a - b) <= tol * Math.max(1, Math.abs(a), Math.abs(b));
+}
+
+/** The population source as the population reader wants it, with its path resolved. */
+export function resolveSource(wp: Workpaper, workpaperPath: string, override?: string): { source: import('../population/index.js').PopulationSource; path?: string } {
+  const s = wp.population!.source as WorkpaperSource;
+  if (s.kind === 'ranges') return { source: { kind: 'ranges', ranges: s.ranges, exclusions: s.exclusions } };
+  const base = dirname(resolve(workpaperPath));
+  const path = override ? resolve(override) : isAbsolute(s.path) ? s.path : resolve(base, s.path);
+  const cols = {
+    keyColumn: s.keyColumn,
+    ...(s.amountColumn ? { amountColumn: s.amountColumn } : {}),
+    ...(s.dateColumn ? { dateColumn: s.dateColumn } : {}),
+    ...(s.decimalComma ? { decimalComma: s.decimalComma } : {}),
+    ...(s.dateOrder ? { dateOrder: s.dateOrder } : {}),
+  };
+  if (s.kind === 'csv') return { source: { kind: 'csv', path, ...cols, ...(s.delimiter ? { delimiter: s.delimiter } : {}) }, path };
+  return { source: { kind: 'xlsx', path, ...cols, ...(s.sheet ? { sheet: s.sheet } : {}) }, path };
+}
+
+async function checkPopulation(wp: Workpaper, opts: ReperformOptions): Promise<{ check: Check; source?: import('../population/index.js').PopulationSource; rowCount?: number }> {
+  const pop = await import('../population/index.js');
+  if (!wp.population) return { check: { area: 'population', summary: 'not recorded yet', differences: [], skipped: true } };
+  const { source, path } = resolveSource(wp, opts.workpaperPath, opts.populationPath);
+  if (path) {
+    try {
+      accessSync(path, constants.R_OK);
+    } catch {
+      throw new FileInputError(path, `Cannot read the population file ${path}.`, [
+        `The workpaper records it as "${(wp.population.source as { path: string }).path}" relative to the workpaper's folder.`,
+        'Give its current location with --population PATH.',
+      ]);
+    }
+  }
+  const scan = await pop.scanPopulation(source, opts.progress ? { progress: opts.progress } : {});
+  const rec = wp.population.fingerprint;
+  const got = scan.fingerprint;
+  const diffs: string[] = [];
+  if (got.sha256 !== rec.sha256) diffs.push(`population SHA-256 differs: recorded ${rec.sha256}, file has ${got.sha256} — the file is not the one tested`);
+  if (got.rowCount !== rec.rowCount) diffs.push(`population row count differs: recorded ${rec.rowCount}, file has ${got.rowCount}`);
+  if (got.firstKey !== rec.firstKey) diffs.push(`first key differs: recorded "${rec.firstKey}", file has "${got.firstKey}"`);
+  if (got.lastKey !== rec.lastKey) diffs.push(`last key differs: recorded "${rec.lastKey}", file has "${got.lastKey}"`);
+  if (rec.amountTotal !== undefined && got.amountTotal !== rec.amountTotal) {
+    diffs.push(`amount total differs: recorded ${rec.amountTotal}, file has ${got.amountTotal ?? '(none)'}`);
+  }
+  const where = path ?? `ranges ${(wp.population.source as { ranges: string }).ranges}`;
+  const summary = diffs.length === 0
+    ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${got.amountTotal}` : ''} — as recorded`
+    : `${where}: ${diffs.length} difference(s)`;
+  return { check: { area: 'population', summary, differences: diffs }, source, rowCount: got.rowCount };
+}
+
+async function checkSelection(wp: Workpaper, source: import('../population/index.js').PopulationSource | undefined, rowCount: number | undefined): Promise<Check> {
+  const sel = wp.selection;
+  if (!sel) return { area: 'selection', summary: 'not recorded yet', differences: [], skipped: true };
+  const items = [...sel.items].sort((a, b) => a.seq - b.seq);
+  const diffs: string[] = [];
+  const samples = items.filter((i) => i.role === 'sample').length;
+  const spares = items.filter((i) => i.role === 'spare').length;
+  if (samples !== sel.sampleSize) diffs.push(`the workpaper lists ${samples} sample items but records a sample size of ${sel.sampleSize}`);
+  if (spares !== sel.spares) diffs.push(`the workpaper lists ${spares} spares but records ${sel.spares}`);
+  if (wp.approach && sel.method !== 'haphazard' && sel.sampleSize !== wp.approach.sampleSize) {
+    diffs.push(`the selection drew ${sel.sampleSize} items but the approach adopted a sample size of ${wp.approach.sampleSize}`);
+  }
+  if (!source || rowCount === undefined) {
+    return { area: 'selection', summary: 'population not available, selection not re-drawn', differences: diffs, skipped: diffs.length === 0 };
+  }
+  const pop = await import('../population/index.js');
+  const selection = await import('../selection/index.js');
+  if (sel.method === 'haphazard') {
+    const found = await pop.findKeys(source, items.map((i) => i.key));
+    for (const k of found.unknown) diffs.push(`haphazard item ${k} is not in the population`);
+    const byKey = new Map(found.found.map((r) => [r.key, r]));
+    for (const it of items) {
+      const r = byKey.get(it.key);
+      if (r && r.position !== it.position) diffs.push(`item ${it.seq} (${it.key}): recorded at position ${it.position}, found at ${r.position}`);
+    }
+    const summary = diffs.length === 0
+      ? `haphazard list of ${items.length} items: every key found in the population where recorded (a haphazard selection cannot be re-drawn)`
+      : `haphazard list of ${items.length} items: ${diffs.length} difference(s)`;
+    return { area: 'selection', summary, differences: diffs };
+  }
+  let redrawn;
+  try {
+    redrawn = selection.redraw(
+      { method: sel.method, algorithm: sel.algorithm, ...(sel.seed !== undefined ? { seed: sel.seed } : {}), sampleSize: sel.sampleSize, spares: sel.spares, ...(sel.starts ? { starts: sel.starts } : {}) },
+      rowCount,
+    );
+  } catch (e) {
+    if (e instanceof TolrateInputError) {
+      diffs.push(`the selection cannot be drawn again: ${e.message}`);
+      return { area: 'selection', summary: 'not re-drawn', differences: diffs };
+    }
+    throw e;
+  }
+  const positions = redrawn.positions;
+  const rows = await pop.readRowsAt(source, positions);
+  const n = Math.max(positions.length, items.length);
+  let itemDiffs = 0;
+  for (let i = 0; i < n; i++) {
+    const it = items[i];
+    const p = positions[i];
+    const row = rows[i];
+    if (!it) {
+      diffs.push(`re-drawing gives an item ${i + 1} (position ${p}) that the workpaper does not list`);
+      itemDiffs++;
+      continue;
+    }
+    if (p === undefined) {
+      diffs.push(`item ${it.seq} (${it.key}) is listed but re-drawing gives only ${positions.length} items`);
+      itemDiffs++;
+      continue;
+    }
+    const label = `item ${it.seq} (${it.role})`;
+    if (it.position !== p) {
+      diffs.push(`${label}: recorded position ${it.position} (key ${it.key}), re-drawn position ${p}${row ? ` (key ${row.key})` : ''}`);
+      itemDiffs++;
+    } else if (row && row.key !== it.key) {
+      diffs.push(`${label}: recorded key ${it.key}, the population has ${row.key} at that position (row ${row.row})`);
+      itemDiffs++;
+    } else if (row && row.row !== it.row) {
+      diffs.push(`${label} (${it.key}): recorded source row ${it.row}, found at row ${row.row}`);
+      itemDiffs++;
+    }
+  }
+  if (sel.interval !== undefined && redrawn.interval !== undefined && !close(sel.interval, redrawn.interval)) {
+    diffs.push(`systematic interval: recorded ${sel.interval}, re-derived ${redrawn.interval}`);
+  }
+  const what = `${sel.method}, ${sel.algorithm.split(':')[0]}, seed ${sel.seed}, ${sel.sampleSize} items + ${sel.spares} spares`;
+  const summary = diffs.length === 0 ? `${what}: every item re-drawn the same, in the same order` : `${what}: ${diffs.length} difference(s)${itemDiffs ? `, ${itemDiffs} item(s)` : ''}`;
+  return { area: 'selection', summary, differences: diffs };
+}
+
+function checkSampleSize(wp: Workpaper): Check {
+  const a = wp.approach;
+  if (!a) return { area: 'sample size', summary: 'not planned yet', differences: [], skipped: true };
+  const diffs: string[] = [];
+  if (a.kind === 'non-statistical') {
+    if (a.policy && a.sampleSize < a.policy.size) diffs.push(`adopted size ${a.sampleSize} is below the policy's ${a.policy.size}`);
+    return {
+      area: 'sample size',
+      summary: diffs.length ? `non-statistical: ${diffs.length} difference(s)` : `non-statistical: ${a.sampleSize} items${a.policy ? ` (policy "${a.policy.name}": ${a.policy.size})` : ''}; sampling risk not quantified`,
+      differences: diffs,
+    };
+  }
+  const N = a.model === 'hypergeometric' ? wp.population?.fingerprint.rowCount : undefined;
+  const planned = a.sizes.length > 0
+    ? a.sizes.map((s) => ({ label: s.attributeId, tolerableRate: s.tolerableRate, recorded: s }))
+    : [{ label: 'the test', tolerableRate: a.tolerableRate, recorded: undefined }];
+  let largest = 0;
+  for (const p of planned) {
+    let r;
+    try {
+      r = computeSampleSize({ confidence: a.confidence, tolerableRate: p.tolerableRate, expectedRate: a.expectedRate, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) });
+    } catch (e) {
+      if (e instanceof TolrateInputError) {
+        diffs.push(`${p.label}: the recorded parameters give no sample size: ${e.message}`);
+        continue;
+      }
+      throw e;
+    }
+    largest = Math.max(largest, r.sampleSize);
+    if (p.recorded) {
+      if (p.recorded.sampleSize !== r.sampleSize) diffs.push(`${p.label}: recorded sample size ${p.recorded.sampleSize}, recomputed ${r.sampleSize}`);
+      if (p.recorded.expectedDeviations !== r.expectedDeviations) diffs.push(`${p.label}: recorded expected deviations ${p.recorded.expectedDeviations}, recomputed ${r.expectedDeviations}`);
+      if (!close(p.recorded.achievedRisk, r.achievedRisk)) diffs.push(`${p.label}: recorded planned risk ${p.recorded.achievedRisk}, recomputed ${r.achievedRisk}`);
+    }
+    if (a.finitePopulationCorrection && r.finitePopulationCorrection && p === planned[0]) {
+      const f = a.finitePopulationCorrection;
+      const g = r.finitePopulationCorrection;
+      if (f.binomialSampleSize !== g.binomialSampleSize || f.correctedSampleSize !== g.correctedSampleSize) {
+        diffs.push(`finite population correction: recorded ${f.binomialSampleSize} → ${f.correctedSampleSize}, recomputed ${g.binomialSampleSize} → ${g.correctedSampleSize}`);
+      }
+    }
+  }
+  if (largest > 0 && a.sampleSize < largest) diffs.push(`adopted sample size ${a.sampleSize} is below the ${largest} the parameters require`);
+  const summary = diffs.length === 0
+    ? `${a.model}, ${pct(a.confidence, 0)} confidence, tolerable ${pct(a.tolerableRate)}, expected ${pct(a.expectedRate)}${N ? `, N = ${N.toLocaleString('en-US')}` : ''}: ${largest} required, ${a.sampleSize} adopted — as recorded`
+    : `${diffs.length} difference(s)`;
+  return { area: 'sample size', summary, differences: diffs };
+}
+
+function checkEvaluation(wp: Workpaper): Check {
+  if (!wp.results) return { area: 'evaluation', summary: 'no results recorded yet', differences: [], skipped: true };
+  if (!wp.evaluation) return { area: 'evaluation', summary: 'results recorded but not evaluated yet', differences: [], skipped: true };
+  const diffs: string[] = [];
+  let fresh;
+  try {
+    fresh = evaluate(wp);
+  } catch (e) {
+    if (e instanceof TolrateInputError) return { area: 'evaluation', summary: 'cannot be recomputed', differences: [`the recorded results cannot be evaluated: ${e.message}`] };
+    throw e;
+  }
+  for (const f of fresh.attributes) {
+    const r = wp.evaluation.attributes.find((x) => x.attributeId === f.attributeId);
+    if (!r) {
+      diffs.push(`${f.attributeId}: no recorded evaluation`);
+      continue;
+    }
+    const id = f.attributeId;
+    if (r.sampleSize !== f.sampleSize) diffs.push(`${id}: recorded n = ${r.sampleSize}, the results give ${f.sampleSize}`);
+    if (r.deviations !== f.deviations) diffs.push(`${id}: recorded ${r.deviations} deviation(s), the results give ${f.deviations}`);
+    if (r.model !== f.model) diffs.push(`${id}: recorded model ${r.model}, the approach gives ${f.model}`);
+    if (!close(r.tolerableRate, f.tolerableRate)) diffs.push(`${id}: recorded tolerable rate ${pct(r.tolerableRate)}, the plan gives ${pct(f.tolerableRate)}`);
+    if (!close(r.confidence, f.confidence)) diffs.push(`${id}: recorded confidence ${pct(r.confidence)}, the plan gives ${pct(f.confidence)}`);
+    if (!close(r.sampleRate, f.sampleRate)) diffs.push(`${id}: recorded sample deviation rate ${pctExact(r.sampleRate)}, recomputed ${pctExact(f.sampleRate)}`);
+    if (!close(r.upperLimit, f.upperLimit)) diffs.push(`${id}: recorded upper deviation limit ${pctExact(r.upperLimit)}, recomputed ${pctExact(f.upperLimit)}`);
+    if (!close(r.achievedRisk, f.achievedRisk)) diffs.push(`${id}: recorded risk of overreliance ${pctExact(r.achievedRisk)}, recomputed ${pctExact(f.achievedRisk)}`);
+    if (r.supportedByRates !== f.supportedByRates) diffs.push(`${id}: recorded that the rates ${r.supportedByRates ? 'support' : 'do not support'} reliance; recomputed: they ${f.supportedByRates ? 'do' : 'do not'}`);
+    if (r.extension !== f.extension) diffs.push(`${id}: recorded extension ${r.extension ?? 'not practical'}, recomputed ${f.extension ?? 'not practical'}`);
+    if (r.illustrative !== f.illustrative) diffs.push(`${id}: recorded as ${r.illustrative ? '' : 'not '}illustrative, recomputed ${f.illustrative ? '' : 'not '}illustrative`);
+    if ((r.deviationsInPopulation ?? null) !== (f.deviationsInPopulation ?? null)) {
+      diffs.push(`${id}: recorded upper limit count ${r.deviationsInPopulation ?? '(none)'}, recomputed ${f.deviationsInPopulation ?? '(none)'}`);
+    }
+  }
+  const summary = diffs.length === 0
+    ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctUp(f.upperLimit)}`).join('; ') + ' — as recorded'
+    : `${diffs.length} difference(s)`;
+  return { area: 'evaluation', summary, differences: diffs };
+}
+
+function checkConclusion(wp: Workpaper): Check {
+  if (!wp.conclusion || !wp.results) return { area: 'conclusion', summary: 'not concluded yet', differences: [], skipped: true };
+  const diffs: string[] = [];
+  let proposal;
+  try {
+    proposal = proposeConclusion(wp, evaluate(wp));
+  } catch (e) {
+    if (e instanceof TolrateInputError) return { area: 'conclusion', summary: 'cannot be checked', differences: [`cannot re-derive the conclusion: ${e.message}`] };
+    throw e;
+  }
+  for (const f of proposal.findings) {
+    const r = wp.conclusion.attributes.find((a) => a.attributeId === f.attributeId);
+    if (!r) diffs.push(`${f.attributeId}: no recorded conclusion`);
+    else if (r.supportsReliance && !f.supportsReliance) {
+      diffs.push(`${f.attributeId}: concluded as supporting reliance, but the recomputed figures and recorded causes do not support it`);
+    }
+  }
+  const allAttr = wp.conclusion.attributes.every((a) => a.supportsReliance);
+  if (wp.conclusion.control.supportsReliance && !allAttr) diffs.push('the control is concluded as supporting reliance although an attribute does not');
+  if (wp.conclusion.control.supportsReliance && !proposal.control.supportsReliance) {
+    diffs.push('the control is concluded as supporting reliance, but the recomputed results do not support it');
+  }
+  if (wp.conclusion.qualitative.intentionalFound !== proposal.qualitative.intentionalFound) diffs.push(`recorded that intentional deviations were ${wp.conclusion.qualitative.intentionalFound ? '' : 'not '}found; the results say otherwise`);
+  if (wp.conclusion.qualitative.systemicFound !== proposal.qualitative.systemicFound) diffs.push(`recorded that systemic deviations were ${wp.conclusion.qualitative.systemicFound ? '' : 'not '}found; the results say otherwise`);
+  const summary = diffs.length === 0
+    ? `${wp.conclusion.control.supportsReliance ? 'supports' : 'does not support'} reliance — consistent with the figures and causes`
+    : `${diffs.length} difference(s)`;
+  return { area: 'conclusion', summary, differences: diffs };
+}
+
+/** The plain text of a DOCX body (paragraph per line). */
+export async function docxText(path: string): Promise<string> {
+  let data: Buffer;
+  try {
+    data = readFileSync(path);
+  } catch {
+    throw new FileInputError(path, `Cannot read the memo ${path}.`);
+  }
+  const { default: JSZip } = await import('jszip');
+  let xml: string | undefined;
+  try {
+    const zip = await JSZip.loadAsync(data);
+    xml = await zip.file('word/document.xml')?.async('string');
+  } catch {
+    xml = undefined;
+  }
+  if (!xml) throw new FileInputError(path, `${path} is not a DOCX file (no word/document.xml inside).`);
+  return xml
+    .replace(/<w:tab\/>/g, '\t')
+    .replace(/<\/w:p>/g, '\n')
+    .replace(/<[^>]+>/g, '')
+    .replace(/&lt;/g, '<')
+    .replace(/&gt;/g, '>')
+    .replace(/&quot;/g, '"')
+    .replace(/&apos;/g, "'")
+    .replace(/&amp;/g, '&');
+}
+
+/** The figures a memo must carry, each with a label, in the memo's own format. */
+export function memoFigures(wp: Workpaper): Array<{ label: string; text: string }> {
+  const out: Array<{ label: string; text: string }> = [];
+  if (wp.engagement) out.push({ label: 'workpaper reference', text: wp.engagement.reference });
+  if (wp.population) {
+    out.push({ label: 'population SHA-256', text: wp.population.fingerprint.sha256 });
+    out.push({ label: 'population row count', text: wp.population.fingerprint.rowCount.toLocaleString('en-US') });
+  }
+  if (wp.selection?.seed) out.push({ label: 'selection seed', text: wp.selection.seed });
+  if (wp.approach) out.push({ label: 'sample size', text: wp.approach.sampleSize.toLocaleString('en-US') });
+  for (const ev of wp.evaluation?.attributes ?? []) {
+    const id = ev.attributeId;
+    out.push({ label: `${id} sample deviation rate`, text: pct(ev.sampleRate) });
+    out.push({ label: `${id} upper deviation limit`, text: pctUp(ev.upperLimit) });
+    out.push({ label: `${id} exact upper deviation limit`, text: pctExact(ev.upperLimit) });
+    out.push({ label: `${id} exact risk of overreliance`, text: pctExact(ev.achievedRisk) });
+  }
+  for (const it of wp.selection?.items ?? []) out.push({ label: `item ${it.seq}`, text: it.key });
+  const last = wp.log[wp.log.length - 1];
+  if (last) out.push({ label: 'hash of the last change-log entry (a memo written before the last save of the workpaper lacks it)', text: last.hash });
+  return out;
+}
+
+async function checkMemo(wp: Workpaper, memoPath: string): Promise<Check> {
+  const text = await docxText(memoPath);
+  const flat = text.replace(/\s+/g, ' ');
+  const diffs: string[] = [];
+  for (const f of memoFigures(wp)) {
+    if (!flat.includes(f.text)) diffs.push(`the memo does not show the ${f.label} (${f.text})`);
+  }
+  const summary = diffs.length === 0 ? `${memoPath}: every figure of the workpaper found in the memo` : `${memoPath}: ${diffs.length} figure(s) missing or different`;
+  return { area: 'memo', summary, differences: diffs };
+}
+
+/** Re-perform the test recorded in a workpaper. Throws TolrateInputError on unusable input. */
+export async function reperform(opts: ReperformOptions): Promise<ReperformReport> {
+  const wp = opts.workpaper;
+  const checks: Check[] = [];
+  const problems = verifyLog(wp);
+  checks.push({
+    area: 'integrity',
+    summary: problems.length === 0
+      ? `change log of ${wp.log.length} entries intact; the file is as tolrate last wrote it`
+      : `${problems.length} problem(s) with the file or its change log`,
+    differences: problems.map((p) => `${p.where}: ${p.message}`),
+  });
+  const { check: popCheck, source, rowCount } = await checkPopulation(wp, opts);
+  checks.push(popCheck);
+  checks.push(checkSampleSize(wp));
+  checks.push(await checkSelection(wp, source, rowCount));
+  checks.push(checkEvaluation(wp));
+  checks.push(checkConclusion(wp));
+  if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath));
+  return {
+    workpaperPath: opts.workpaperPath,
+    ...(opts.populationPath ? { populationPath: opts.populationPath } : {}),
+    ...(opts.memoPath ? { memoPath: opts.memoPath } : {}),
+    checks,
+    ok: checks.every((c) => c.differences.length === 0),
+  };
+}
+
+/** The report as text for a terminal or a file. */
+export function formatReport(r: ReperformReport): string {
+  const lines: string[] = [];
+  lines.push(`Re-performance of ${r.workpaperPath}`);
+  lines.push('');
+  for (const c of r.checks) {
+    const status = c.differences.length > 0 ? 'DIFFERS' : c.skipped ? 'skipped' : 'agrees';
+    lines.push(`  ${c.area.padEnd(12)} ${status.padEnd(8)} ${c.summary}`);
+    for (const d of c.differences) lines.push(`  ${''.padEnd(12)} - ${d}`);
+  }
+  lines.push('');
+  const n = r.checks.reduce((s, c) => s + c.differences.length, 0);
+  lines.push(r.ok ? 'Everything re-derived agrees with the workpaper.' : `${n} difference(s) found. The workpaper does not re-perform as recorded.`);
+  return `${lines.join('\n')}\n`;
+}
+
