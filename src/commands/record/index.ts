@@ -1,0 +1,53 @@
+import { parseFlags } from '../../cli/args.js';
+import { UsageError } from '../../errors.js';
+import type { CommandContext } from '../types.js';
+import type { Asker } from '../../interview/asker.js';
+import { needsTerminal, terminalAsker, type InterviewOptions } from '../../interview/command.js';
+import { recordInterview } from '../../interview/stages.js';
+
+export function help(): string {
+  return `tolrate record — record each item's result and the cause of every deviation
+
+Usage: tolrate record FILE
+
+  FILE               the workpaper file, planned and selected with \`tolrate plan\`
+  -h, --help         show this help
+
+Per item and attribute: conforms, deviation (what was found, the cause, whether it looks
+intentional, isolated or systemic) or void (a properly cancelled document, replaced by the
+next spare). A document that cannot be found is a deviation, not a void.
+
+The results can be typed item by item (saved after each item; run the command again to go on
+at the first unrecorded item) or read from the filled fieldwork sheet written at selection.
+Column conventions of the sheet, per attribute (A1, A2, ...):
+  A1 result          C = conforms, D = deviation, V = void
+  A1 found           what was found (for a D)
+  A1 cause           not-performed, performed-late, wrong-performer, evidence-missing,
+                     system, other (for a D)
+  A1 intent          no, suspected or yes (for a D)
+  A1 pattern         isolated, systemic or unclear (for a D)
+  Void reason        why the document is void (for a V)
+Every cell that cannot be read is listed (row, column, value, why); nothing is guessed.
+
+Example:
+  tolrate record supplier-invoices.tolrate.json
+`;
+}
+
+export async function runWith(args: string[], ctx: CommandContext, asker: Asker, o: InterviewOptions = {}): Promise<number> {
+  const p = parseFlags('record', args, {}, 1);
+  const file = p.positionals[0];
+  if (!file) throw new UsageError('tolrate record: name the workpaper file.', ['Usage: tolrate record FILE']);
+  return recordInterview(ctx, asker, { file, ...o });
+}
+
+export async function run(args: string[], ctx: CommandContext): Promise<number> {
+  const p = parseFlags('record', args, {}, 1);
+  if (p.values.help) {
+    ctx.stdout.write(help());
+    return 0;
+  }
+  if (!p.positionals[0]) throw new UsageError('tolrate record: name the workpaper file.', ['Usage: tolrate record FILE']);
+  if (!ctx.isTTY) return needsTerminal(ctx, 'record');
+  return runWith(args, ctx, terminalAsker(ctx));
+}

@@ -1,0 +1,109 @@
+import { readdirSync } from 'node:fs';
+import { parseFlags } from '../../cli/args.js';
+import type { CommandContext, CommandRun } from '../types.js';
+import type { Asker } from '../../interview/asker.js';
+import { needsTerminal, terminalAsker, workpaperPath, type InterviewOptions } from '../../interview/command.js';
+import { wholeInterview } from '../../interview/stages.js';
+import { count, existingFile, optionalCount, optionalRate, rate } from '../../interview/parse.js';
+import { WORKPAPER_SUFFIX } from '../../workpaper/file.js';
+import { pctPlain } from '../../util/format.js';
+
+export function help(): string {
+  return `tolrate — on a terminal, with no command: start a new test, continue a workpaper file in
+this folder, or use a calculator. Each stage also runs on its own:
+  tolrate plan [FILE]    tolrate record FILE    tolrate conclude FILE
+See: tolrate --help
+`;
+}
+
+/** Loaded only when chosen, like every command. */
+const CALCULATORS: Record<'size' | 'limit' | 'table', () => Promise<{ run: CommandRun }>> = {
+  size: () => import('../size/index.js'),
+  limit: () => import('../limit/index.js'),
+  table: () => import('../table/index.js'),
+};
+
+/** Flags for a calculator, asked one by one (same checks as the calculator's own flags). */
+async function calculator(ctx: CommandContext, a: Asker): Promise<number> {
+  const which = await a.select({
+    id: 'start.calculator',
+    message: 'Which calculator?',
+    choices: [
+      { value: 'size', name: 'Sample size (confidence, tolerable and expected rates)' },
+      { value: 'limit', name: 'Evaluate a sample (upper deviation limit, risk of overreliance)' },
+      { value: 'table', name: 'Planning table of sample sizes' },
+    ],
+  });
+  const args: string[] = [];
+  const pct = (v: number) => pctPlain(v).replace('%', '');
+  const confidence = await a.text({ id: `start.${which}.confidence`, message: 'Confidence (%)', default: '95', parse: rate('Confidence') });
+  args.push('--confidence', pct(confidence));
+  if (which === 'size') {
+    const t = await a.text({ id: 'start.size.tolerable', message: 'Tolerable deviation rate (%)', parse: rate('Tolerable rate') });
+    const e = await a.text({ id: 'start.size.expected', message: 'Expected deviation rate (%)', default: '0', parse: rate('Expected rate', { allowZero: true, below: t, belowWhat: 'the tolerable rate' }) });
+    args.push('--tolerable', pct(t), '--expected', pct(e));
+  }
+  if (which === 'limit') {
+    const n = await a.text({ id: 'start.limit.sample', message: 'Items tested', parse: count('Items tested', { min: 1 }) });
+    const k = await a.text({ id: 'start.limit.deviations', message: 'Deviations found', parse: count('Deviations', { max: n, maxWhat: 'the items tested' }) });
+    const t = await a.text({ id: 'start.limit.tolerable', message: 'Tolerable deviation rate (%), blank = none', default: '', parse: optionalRate('Tolerable rate') });
+    args.push('--sample', String(n), '--deviations', String(k));
+    if (t !== undefined) args.push('--tolerable', pct(t));
+  }
+  const N = await a.text({ id: `start.${which}.population`, message: 'Population size (blank = large or unknown)', default: '', parse: optionalCount('Population size', { min: 1 }) });
+  if (N !== undefined) args.push('--population', String(N));
+  const mod: { run: CommandRun } = await CALCULATORS[which]();
+  ctx.stdout.write(`\n$ tolrate ${which} ${args.join(' ')}\n`);
+  return mod.run(args, ctx);
+}
+
+export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: InterviewOptions = {}): Promise<number> {
+  parseFlags('', args, {}, 0);
+  ctx.stdout.write('tolrate — tests of controls by attribute sampling\n\n');
+  let files: string[] = [];
+  try {
+    files = readdirSync(ctx.cwd).filter((f) => f.endsWith(WORKPAPER_SUFFIX)).sort();
+  } catch {
+    files = [];
+  }
+  const action = await a.select({
+    id: 'start.action',
+    message: 'What do you want to do?',
+    choices: [
+      { value: 'new', name: 'Start a new test' },
+      { value: 'continue', name: `Continue a workpaper file${files.length ? ` (${files.length} in this folder)` : ''}` },
+      { value: 'calculator', name: 'Use a calculator (sample size, evaluation, planning table)' },
+      { value: 'quit', name: 'Quit' },
+    ],
+    default: files.length > 0 ? 'continue' : 'new',
+  });
+  if (action === 'quit') return 0;
+  if (action === 'calculator') return calculator(ctx, a);
+  if (action === 'new') return wholeInterview(ctx, a, { ...o });
+  let file: string;
+  const OTHER = '\u0000other';
+  const pick = files.length
+    ? await a.select({
+        id: 'start.continue.file',
+        message: 'Which workpaper?',
+        choices: [...files.map((f) => ({ value: f, name: f })), { value: OTHER, name: 'Another file (type its path)' }],
+      })
+    : OTHER;
+  if (pick === OTHER) {
+    file = await a.text({
+      id: 'start.continue.path',
+      message: 'Workpaper file',
+      parse: (t) => existingFile('The workpaper file', ctx.cwd)(workpaperPath(ctx.cwd, t)),
+    });
+  } else file = pick;
+  return wholeInterview(ctx, a, { ...o, file });
+}
+
+export async function run(args: string[], ctx: CommandContext): Promise<number> {
+  if (args.includes('--help') || args.includes('-h')) {
+    ctx.stdout.write(help());
+    return 0;
+  }
+  if (!ctx.isTTY) return needsTerminal(ctx, 'start');
+  return runWith(args, ctx, terminalAsker(ctx));
+}

@@ -1,0 +1,261 @@
+/**
+ * Evaluate, conclude and sign off: the figures per attribute, the qualitative review, the
+ * practitioner's conclusion, the follow-up actions, the severity (asked, never chosen by the
+ * tool) and the preparer's sign-off.
+ */
+import { evaluate } from '../evaluation/evaluate.js';
+import { proposeConclusion, SEVERITY_QUESTIONS } from '../evaluation/conclude.js';
+import {
+  FOLLOW_UP_KINDS,
+  SEVERITIES,
+  SEVERITY_LABELS,
+  type Conclusion,
+  type Evaluation,
+  type FollowUp,
+  type FollowUpKind,
+  type Workpaper,
+} from '../workpaper/schema.js';
+import { canonicalJson } from '../workpaper/log.js';
+import { int, pct, pctPlain, pctUp } from '../util/format.js';
+import type { Session } from './session.js';
+import { date, optionalDate, optionalText, requiredText, today } from './parse.js';
+import { CAUTION, table, wrap } from './show.js';
+
+export const FOLLOW_UP_LABELS: Record<FollowUpKind, string> = {
+  'extend-sample': 'Extend the sample',
+  'test-compensating-control': 'Test a compensating control',
+  'reduce-reliance': 'Reduce reliance, expand substantive work',
+  communicate: 'Communicate',
+  'assess-severity': 'Assess severity',
+  other: 'Other',
+};
+
+/** The evaluation table as text lines (also used by the demo narrative). */
+export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
+  const rows = ev.attributes.map((a) => [
+    a.attributeId,
+    int(a.sampleSize),
+    int(a.deviations),
+    pct(a.sampleRate),
+    pctUp(a.upperLimit),
+    pctPlain(a.tolerableRate),
+    `${pctUp(a.achievedRisk)} / ${pct(1 - a.confidence)}`,
+    a.illustrative ? 'illustrative' : a.supportedByRates ? 'supported' : 'not supported',
+  ]);
+  const lines = table(['Attribute', 'n', 'k', 'Sample rate', 'Upper limit', 'Tolerable', 'Risk / allowed', 'By the rates'], rows);
+  const first = ev.attributes[0];
+  if (first) {
+    const model = first.model === 'hypergeometric' ? `hypergeometric, N = ${int(wp.population?.fingerprint.rowCount ?? 0)}` : first.model;
+    lines.push(`  Upper limits at ${pct(first.confidence, 0)} confidence (${model}), rounded up. Risk = the risk of overreliance at the tolerable rate.`);
+  }
+  if (ev.attributes.some((a) => a.illustrative)) {
+    lines.push(
+      '  The sample is non-statistical or was selected haphazardly: sampling risk cannot be quantified, so these',
+      '  figures are illustrative only and cannot support a statistical conclusion.',
+    );
+  }
+  return lines;
+}
+
+/** Run the evaluation and save it (computed: saved by "tolrate"). */
+export function runEvaluation(s: Session): Evaluation {
+  const ev = evaluate(s.wp, s.now());
+  const same = s.wp.evaluation && canonicalJson(s.wp.evaluation.attributes) === canonicalJson(ev.attributes);
+  if (!same) {
+    s.wp = { ...s.wp, evaluation: ev };
+    s.save('evaluate', 'tolrate');
+  }
+  return s.wp.evaluation!;
+}
+
+async function askFollowUpDetails(s: Session, id: string, f: FollowUp, editDescription: boolean): Promise<FollowUp> {
+  const a = s.asker;
+  const description = editDescription
+    ? await a.text({ id: `${id}.description`, message: 'Description', default: f.description, editable: true, parse: requiredText('The description') })
+    : f.description;
+  const owner = await a.text({
+    id: `${id}.owner`,
+    message: 'Owner (blank = none yet)',
+    default: f.owner ?? '',
+    parse: optionalText,
+  });
+  const periodStart = s.wp.engagement?.periodStart;
+  const due = await a.text({
+    id: `${id}.due`,
+    message: 'Due date (YYYY-MM-DD, blank = none yet)',
+    default: f.due ?? '',
+    parse: optionalDate('Due date', periodStart ? { notBefore: periodStart, notBeforeWhat: 'the start of the period' } : {}),
+  });
+  const out: FollowUp = { kind: f.kind, description };
+  if (owner) out.owner = owner;
+  if (due) out.due = due;
+  if (f.items !== undefined) out.items = f.items;
+  return out;
+}
+
+async function askFollowUps(s: Session, proposed: FollowUp[]): Promise<FollowUp[]> {
+  const a = s.asker;
+  const out: FollowUp[] = [];
+  s.heading('Follow-up actions');
+  if (proposed.length === 0) s.print('The tool proposes no follow-up action.');
+  for (const [i, f] of proposed.entries()) {
+    const id = `conclude.followUps.${i + 1}`;
+    s.print('', `${i + 1}. ${FOLLOW_UP_LABELS[f.kind]}:`, ...wrap(f.description, 92, '   '));
+    const what = await a.select({
+      id: `${id}.action`,
+      message: 'Keep this action?',
+      choices: [
+        { value: 'keep', name: 'Keep it as proposed' },
+        { value: 'edit', name: 'Keep it, with my own wording' },
+        { value: 'remove', name: 'Remove it' },
+      ],
+      default: 'keep',
+    });
+    if (what === 'remove') continue;
+    out.push(await askFollowUpDetails(s, id, f, what === 'edit'));
+  }
+  for (let j = 1; ; j++) {
+    const more = await a.confirm({ id: `conclude.followUps.add.${j}`, message: 'Add a follow-up action of your own?', default: false });
+    if (!more) break;
+    const id = `conclude.followUps.own.${j}`;
+    const kind = await a.select({
+      id: `${id}.kind`,
+      message: 'Kind of action',
+      choices: FOLLOW_UP_KINDS.map((k) => ({ value: k, name: FOLLOW_UP_LABELS[k] })),
+      default: 'other',
+    });
+    out.push(await askFollowUpDetails(s, id, { kind, description: '' }, true));
+  }
+  return out;
+}
+
+async function askSeverity(s: Session): Promise<NonNullable<Conclusion['severity']>> {
+  const a = s.asker;
+  s.heading('Severity of the deficiency');
+  s.print(...wrap('Reliance is not supported. Answer these questions; then choose the classification yourself. The tool does not classify the deficiency.'));
+  const answers: Array<{ question: string; answer: string }> = [];
+  for (const [i, q] of SEVERITY_QUESTIONS.entries()) {
+    const answer = await a.text({ id: `conclude.severity.q${i + 1}`, message: q, parse: requiredText('The answer') });
+    answers.push({ question: q, answer });
+  }
+  const order = ['deficiency', 'significant-deficiency', 'material-weakness', 'none'] as const;
+  if (order.length !== SEVERITIES.length) throw new Error('severity list out of date');
+  const classification = await a.select({
+    id: 'conclude.severity.classification',
+    message: 'Your classification',
+    help: 'Your judgement under the applicable standards and the firm\'s methodology.',
+    choices: order.map((v) => ({ value: v, name: SEVERITY_LABELS[v] })),
+  });
+  const rationale = await a.text({
+    id: 'conclude.severity.rationale',
+    message: 'Why this classification?',
+    parse: requiredText('The rationale'),
+  });
+  return { answers, classification, rationale };
+}
+
+/** The conclude step: evaluate, review, conclude, follow-ups, severity. */
+export async function askConclusion(s: Session): Promise<Conclusion> {
+  const a = s.asker;
+  s.heading('Evaluation');
+  const ev = runEvaluation(s);
+  s.print(...evaluationLines(s.wp, ev));
+  const proposal = proposeConclusion(s.wp, ev, s.now());
+
+  s.heading('Qualitative review');
+  for (const f of proposal.findings) s.print(...wrap(`${f.attributeId}: ${f.reasoning}`, 92, '  '), '');
+  if (proposal.qualitative.intentionalFound) {
+    s.print('  An intentional or possibly intentional deviation was recorded: it is escalated whatever the rates say.');
+  }
+  const compensatingControls = await a.text({
+    id: 'conclude.compensatingControls',
+    message: 'Compensating controls considered (blank = none)',
+    help: 'Another control over the same risk, and whether it has been tested.',
+    default: s.wp.conclusion?.qualitative.compensatingControls ?? '',
+    parse: optionalText,
+  });
+  const notes = await a.text({
+    id: 'conclude.notes',
+    message: 'Other notes on the qualitative review (blank = none)',
+    default: s.wp.conclusion?.qualitative.notes ?? '',
+    parse: optionalText,
+  });
+
+  s.heading('Conclusion');
+  const attributes: Conclusion['attributes'] = [];
+  for (const f of proposal.findings) {
+    const word = f.supportsReliance ? 'supports' : 'does not support';
+    const agree = await a.confirm({
+      id: `conclude.attribute.${f.attributeId}.agree`,
+      message: `${f.attributeId}: the evidence ${word} the planned reliance. Do you agree?`,
+      default: true,
+    });
+    if (agree) {
+      attributes.push({ attributeId: f.attributeId, supportsReliance: f.supportsReliance, reasoning: f.reasoning });
+      continue;
+    }
+    if (!f.supportsReliance) {
+      s.print('  Warning: the rates or the qualitative review do not support reliance; concluding otherwise needs a strong, documented reason.');
+    }
+    const why = await a.text({
+      id: `conclude.attribute.${f.attributeId}.reason`,
+      message: `Why do you conclude that ${f.attributeId} ${f.supportsReliance ? 'does not support' : 'supports'} reliance?`,
+      parse: requiredText('The reason'),
+    });
+    attributes.push({
+      attributeId: f.attributeId,
+      supportsReliance: !f.supportsReliance,
+      reasoning: `${f.reasoning} The practitioner concluded otherwise: ${why}`,
+    });
+  }
+  const all = attributes.every((x) => x.supportsReliance);
+  const controlId = s.wp.control?.id ?? 'the control';
+  const proposedText =
+    all === proposal.control.supportsReliance
+      ? proposal.control.text
+      : all
+        ? `The results support the planned reliance on ${controlId} for the period tested, as concluded by the practitioner.`
+        : `The results do not support the planned reliance on ${controlId} (${attributes.filter((x) => !x.supportsReliance).map((x) => x.attributeId).join(', ')}). The follow-up actions below apply.`;
+  const text = await a.text({
+    id: 'conclude.control.text',
+    message: 'Conclusion on the control (edit it, or press Enter to keep it)',
+    default: proposedText,
+    editable: true,
+    parse: requiredText('The conclusion'),
+  });
+  const followUps = await askFollowUps(s, proposal.followUps);
+  const severity = all ? undefined : await askSeverity(s);
+  s.print('', ...wrap(CAUTION));
+  return {
+    attributes,
+    qualitative: {
+      intentionalFound: proposal.qualitative.intentionalFound,
+      systemicFound: proposal.qualitative.systemicFound,
+      ...(compensatingControls ? { compensatingControls } : {}),
+      ...(notes ? { notes } : {}),
+    },
+    control: { supportsReliance: all, text },
+    ...(severity ? { severity } : {}),
+    followUps,
+    concludedAt: s.now().toISOString(),
+  };
+}
+
+export async function askSignoff(s: Session): Promise<{ name: string; date: string }> {
+  const a = s.asker;
+  s.heading('Sign-off');
+  const name = await a.text({
+    id: 'signoff.name',
+    message: 'Prepared by',
+    ...(s.wp.engagement ? { default: s.wp.engagement.preparer } : {}),
+    parse: requiredText('The preparer'),
+  });
+  const start = s.wp.engagement?.periodStart;
+  const d = await a.text({
+    id: 'signoff.date',
+    message: 'Date (YYYY-MM-DD)',
+    default: today(s.now()),
+    parse: date('Sign-off date', start ? { notBefore: start, notBeforeWhat: 'the start of the period' } : {}),
+  });
+  return { name, date: d };
+}

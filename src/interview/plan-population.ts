@@ -1,0 +1,313 @@
+/**
+ * Planning, the population: the source (CSV or XLSX file, or document-number ranges), its key
+ * column (picked from the columns found) and optional amount and date columns, the validation
+ * report (going on despite problems needs a recorded reason), the sampling unit and the
+ * completeness tie-out against the ledger figures the user enters.
+ */
+import { relative, resolve, sep } from 'node:path';
+import { groupDigits, parseRanges, scanPopulation, type PopulationScan, type PopulationSource as ReadSource } from '../population/index.js';
+import { TolrateInputError } from '../errors.js';
+import type { Population, PopulationSource } from '../workpaper/schema.js';
+import { int } from '../util/format.js';
+import type { Session } from './session.js';
+import { existingFile, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
+import { csvColumns, xlsxColumns } from './columns.js';
+import { wrap } from './show.js';
+
+/** a − b for decimal strings, exactly. */
+export function decimalDifference(a: string, b: string): string {
+  const scale = Math.max((a.split('.')[1] ?? '').length, (b.split('.')[1] ?? '').length);
+  const big = (x: string) => {
+    const neg = x.startsWith('-');
+    const [i, f = ''] = x.replace(/^-/, '').split('.');
+    const v = BigInt(`${i}${f.padEnd(scale, '0')}`);
+    return neg ? -v : v;
+  };
+  const d = big(a) - big(b);
+  const neg = d < 0n;
+  const abs = (neg ? -d : d).toString().padStart(scale + 1, '0');
+  const text = scale > 0 ? `${abs.slice(0, abs.length - scale)}.${abs.slice(abs.length - scale)}` : abs;
+  return `${neg ? '-' : ''}${text}`;
+}
+
+export function isZeroDecimal(d: string): boolean {
+  return /^-?0*(\.0*)?$/.test(d);
+}
+
+/** Where the population is read from, with the path resolved against the workpaper's folder. */
+export function readSource(src: PopulationSource, workpaperDir: string): ReadSource {
+  if (src.kind === 'ranges') return { kind: 'ranges', ranges: src.ranges, exclusions: src.exclusions };
+  return { ...src, path: resolve(workpaperDir, src.path) } as ReadSource;
+}
+
+/** The population report: fingerprint and validation, as lines. */
+export function scanLines(scan: PopulationScan): string[] {
+  const f = scan.fingerprint;
+  const v = scan.validation;
+  const lines = [
+    `  Sampling units: ${int(f.rowCount)} (${f.format}${f.sheet ? `, sheet "${f.sheet}"` : ''})`,
+    `  First key ${f.firstKey || '-'}, last key ${f.lastKey || '-'}`,
+  ];
+  if (f.amountTotal !== undefined) lines.push(`  Total of ${f.amountColumn}: ${groupDigits(f.amountTotal)}`);
+  if (f.dateRange) lines.push(`  Dates in ${f.dateColumn}: ${f.dateRange.earliest} to ${f.dateRange.latest}`);
+  lines.push(`  SHA-256 ${f.sha256}`);
+  if (v.ok) lines.push('  Validation: no problems found.');
+  else {
+    lines.push('  Validation found problems:');
+    for (const m of v.messages) lines.push(...wrap(m, 92, '    - ').map((l, i) => (i === 0 ? l : `      ${l.trimStart()}`)));
+  }
+  for (const n of v.notes) lines.push(...wrap(`Note: ${n}`, 92, '    '));
+  return lines;
+}
+
+function guessColumn(columns: readonly string[], re: RegExp): string | undefined {
+  return columns.find((c) => re.test(c));
+}
+
+async function askSource(s: Session): Promise<{ source: PopulationSource; read: ReadSource; scan: PopulationScan } | undefined> {
+  const a = s.asker;
+  const old = s.wp.population?.source;
+  const kind = await a.select({
+    id: 'plan.population.kind',
+    message: 'Where is the population?',
+    choices: [
+      { value: 'file', name: 'A file listing the items (CSV or XLSX)' },
+      { value: 'ranges', name: 'Document-number ranges (e.g. 40001-52650), less voided numbers' },
+    ],
+    default: old?.kind === 'ranges' ? 'ranges' : 'file',
+  });
+  if (kind === 'ranges') {
+    const ranges = await a.text({
+      id: 'plan.population.ranges',
+      message: 'Document-number ranges',
+      help: 'FIRST-LAST, separated by commas: 40001-52650,60001-61200',
+      ...(old?.kind === 'ranges' ? { default: old.ranges } : {}),
+      parse: (t) => {
+        const v = requiredText('The ranges')(t);
+        parseRanges({ kind: 'ranges', ranges: v });
+        return v;
+      },
+    });
+    const excl = await a.text({
+      id: 'plan.population.exclusions',
+      message: 'Numbers to leave out (voided or unused), blank = none',
+      default: old?.kind === 'ranges' ? old.exclusions.join(',') : '',
+      parse: (t) => {
+        const v = optionalText(t);
+        if (v) parseRanges({ kind: 'ranges', ranges, exclusions: [v] });
+        return v;
+      },
+    });
+    const source: PopulationSource = { kind: 'ranges', ranges, exclusions: excl ? [excl] : [] };
+    const read = readSource(source, s.dir);
+    try {
+      return { source, read, scan: await scanPopulation(read) };
+    } catch (e) {
+      if (e instanceof TolrateInputError) {
+        s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
+        return undefined;
+      }
+      throw e;
+    }
+  }
+  const oldAbs = old && old.kind !== 'ranges' ? resolve(s.dir, old.path) : undefined;
+  const abs = await a.text({
+    id: 'plan.population.file',
+    message: 'Population file (CSV or XLSX)',
+    help: 'A path relative to this folder, or absolute.',
+    ...(oldAbs ? { default: relative(s.cwd, oldAbs) || oldAbs } : {}),
+    parse: existingFile('The population file', s.cwd, ['.csv', '.txt', '.tsv', '.xlsx']),
+  });
+  const isXlsx = abs.toLowerCase().endsWith('.xlsx');
+  let columns: string[];
+  let sheet: string | undefined;
+  try {
+    if (isXlsx) {
+      const want = await a.text({
+        id: 'plan.population.sheet',
+        message: 'Worksheet (blank = the first)',
+        default: old?.kind === 'xlsx' ? (old.sheet ?? '') : '',
+        parse: optionalText,
+      });
+      const got = await xlsxColumns(abs, want);
+      sheet = got.sheet;
+      columns = got.columns;
+    } else columns = await csvColumns(abs);
+  } catch (e) {
+    if (e instanceof TolrateInputError) {
+      s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
+      return undefined;
+    }
+    throw e;
+  }
+  s.print(`  Columns found: ${columns.join(', ')}`);
+  const prevKey = old && old.kind !== 'ranges' && columns.includes(old.keyColumn) ? old.keyColumn : undefined;
+  const keyColumn = await a.select({
+    id: 'plan.population.keyColumn',
+    message: 'Key column (identifies each sampling unit, e.g. the document number)',
+    choices: columns.map((c) => ({ value: c, name: c })),
+    default: prevKey ?? columns[0]!,
+  });
+  const NONE = '(none)';
+  const optChoices = [{ value: NONE, name: 'None' }, ...columns.filter((c) => c !== keyColumn).map((c) => ({ value: c, name: c }))];
+  const prevAmount = old && old.kind !== 'ranges' ? old.amountColumn : undefined;
+  const amount = await a.select({
+    id: 'plan.population.amountColumn',
+    message: 'Amount column (totalled for the tie-out), if any',
+    choices: optChoices,
+    default: prevAmount && columns.includes(prevAmount) ? prevAmount : (guessColumn(columns, /amount|value|total|gross/i) ?? NONE),
+  });
+  const prevDate = old && old.kind !== 'ranges' ? old.dateColumn : undefined;
+  const dateCol = await a.select({
+    id: 'plan.population.dateColumn',
+    message: 'Date column (checked against the period), if any',
+    choices: optChoices,
+    default: prevDate && columns.includes(prevDate) ? prevDate : (guessColumn(columns, /date|posted|_on$/i) ?? NONE),
+  });
+  const rel = relative(s.dir, abs).split(sep).join('/') || abs;
+  const source: PopulationSource = isXlsx
+    ? { kind: 'xlsx', path: rel, keyColumn, ...(sheet ? { sheet } : {}), ...(amount !== NONE ? { amountColumn: amount } : {}), ...(dateCol !== NONE ? { dateColumn: dateCol } : {}) }
+    : { kind: 'csv', path: rel, keyColumn, ...(amount !== NONE ? { amountColumn: amount } : {}), ...(dateCol !== NONE ? { dateColumn: dateCol } : {}) };
+  const read = readSource(source, s.dir);
+  s.print('  Reading the population...');
+  try {
+    return { source, read, scan: await scanPopulation(read) };
+  } catch (e) {
+    if (e instanceof TolrateInputError) {
+      s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
+      return undefined;
+    }
+    throw e;
+  }
+}
+
+export async function askPopulation(s: Session): Promise<Population> {
+  const a = s.asker;
+  const old = s.wp.population;
+  s.heading('Population');
+  let got: Awaited<ReturnType<typeof askSource>>;
+  let acceptedReason: string | undefined;
+  for (;;) {
+    got = await askSource(s);
+    if (!got) {
+      s.print('  Choose the population again.');
+      continue;
+    }
+    s.print('', ...scanLines(got.scan));
+    const e = s.wp.engagement;
+    const dr = got.scan.fingerprint.dateRange;
+    if (e && dr && (dr.earliest < e.periodStart || dr.latest > e.periodEnd)) {
+      s.print(`  Warning: the dates run from ${dr.earliest} to ${dr.latest}, outside the period ${e.periodStart} to ${e.periodEnd}.`);
+    }
+    if (got.scan.fingerprint.rowCount === 0) {
+      s.print('  The population is empty: there is nothing to sample.');
+      continue;
+    }
+    if (got.scan.validation.ok) break;
+    const go = await a.confirm({
+      id: 'plan.population.goOn',
+      message: 'Go on with this population despite the problems listed?',
+      help: 'If you go on, your reason is recorded in the workpaper and the memo.',
+      default: false,
+    });
+    if (!go) {
+      s.print('  Fix the population (or choose another) and answer again.');
+      continue;
+    }
+    acceptedReason = await a.text({
+      id: 'plan.population.acceptedReason',
+      message: 'Why is it right to go on?',
+      ...(old?.validation.acceptedReason ? { default: old.validation.acceptedReason } : {}),
+      parse: requiredText('The reason'),
+    });
+    break;
+  }
+  const { source, scan } = got;
+  const f = scan.fingerprint;
+  const samplingUnit = await a.text({
+    id: 'plan.population.samplingUnit',
+    message: 'Sampling unit (what one row is)',
+    help: 'E.g. "one supplier invoice paid in the period".',
+    ...(old ? { default: old.samplingUnit } : {}),
+    parse: requiredText('The sampling unit'),
+  });
+  const description = await a.text({
+    id: 'plan.population.description',
+    message: 'Description of the population (what it holds, where it came from)',
+    ...(old ? { default: old.description } : {}),
+    parse: requiredText('The description'),
+  });
+
+  s.heading('Completeness');
+  s.print('  Agree the population to the ledger: enter the figures the ledger (or system report) shows.');
+  const ledgerCount = await a.text({
+    id: 'plan.population.ledgerCount',
+    message: `Ledger count of items (the population has ${int(f.rowCount)}; blank = not available)`,
+    default: old?.tieOut.ledgerCount !== undefined ? String(old.tieOut.ledgerCount) : '',
+    parse: optionalCount('The ledger count'),
+  });
+  const ledgerTotal =
+    f.amountTotal !== undefined
+      ? await a.text({
+          id: 'plan.population.ledgerTotal',
+          message: `Ledger total (the population totals ${groupDigits(f.amountTotal)}; blank = not available)`,
+          default: old?.tieOut.ledgerTotal ?? '',
+          parse: optionalDecimal('The ledger total'),
+        })
+      : undefined;
+  const tieOut: Population['tieOut'] = {};
+  const notes: string[] = [];
+  if (ledgerCount !== undefined) {
+    tieOut.ledgerCount = ledgerCount;
+    tieOut.countDifference = f.rowCount - ledgerCount;
+    notes.push(`Count: population ${int(f.rowCount)}, ledger ${int(ledgerCount)}, difference ${int(tieOut.countDifference)}`);
+  }
+  if (ledgerTotal !== undefined && f.amountTotal !== undefined) {
+    tieOut.ledgerTotal = ledgerTotal;
+    tieOut.totalDifference = decimalDifference(f.amountTotal, ledgerTotal);
+    notes.push(`Total: population ${groupDigits(f.amountTotal)}, ledger ${groupDigits(ledgerTotal)}, difference ${groupDigits(tieOut.totalDifference)}`);
+  }
+  for (const n of notes) s.print(`  ${n}`);
+  const differs = (tieOut.countDifference ?? 0) !== 0 || (tieOut.totalDifference !== undefined && !isZeroDecimal(tieOut.totalDifference));
+  const missing = ledgerCount === undefined;
+  if (differs || missing) {
+    tieOut.explanation = await a.text({
+      id: 'plan.population.tieOutExplanation',
+      message: missing ? 'The population is not agreed to a ledger count. Why, and how is completeness shown?' : 'The population does not agree to the ledger. Explain the difference',
+      ...(old?.tieOut.explanation ? { default: old.tieOut.explanation } : {}),
+      parse: requiredText('The explanation'),
+    });
+  } else if (notes.length > 0) s.print('  The population agrees to the ledger.');
+  if (ledgerCount !== undefined || ledgerTotal !== undefined) {
+    const src = await a.text({
+      id: 'plan.population.ledgerSource',
+      message: 'Where the ledger figures come from (report, date run)',
+      default: old?.tieOut.ledgerSource ?? '',
+      parse: optionalText,
+    });
+    if (src) tieOut.ledgerSource = src;
+  }
+  const v = scan.validation;
+  return {
+    description,
+    samplingUnit,
+    source,
+    fingerprint: {
+      sha256: f.sha256,
+      rowCount: f.rowCount,
+      firstKey: f.firstKey,
+      lastKey: f.lastKey,
+      columns: f.columns,
+      ...(f.amountTotal !== undefined ? { amountTotal: f.amountTotal } : {}),
+      format: f.format,
+      ...(f.sheet !== undefined ? { sheet: f.sheet } : {}),
+    },
+    validation: {
+      ok: v.ok,
+      messages: [...v.messages, ...v.notes.map((n) => `Note: ${n}`)],
+      ...(acceptedReason ? { acceptedReason } : {}),
+    },
+    tieOut,
+    scannedAt: s.now().toISOString(),
+  };
+}

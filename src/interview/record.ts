@@ -1,0 +1,362 @@
+/**
+ * Recording the results: per item and attribute conforms, deviation (what was found, cause,
+ * intent, pattern) or void (replaced by the next unused spare). Typed here, or read from the
+ * filled fieldwork sheet. Saved after every item, so recording can take several sittings and
+ * resumes at the first unrecorded item.
+ */
+import { isAbsolute, relative, resolve } from 'node:path';
+import { CAUSES, CAUSE_LABELS, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
+import { int } from '../util/format.js';
+import type { Session } from './session.js';
+import { existingFile, requiredText } from './parse.js';
+import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
+import { table } from './show.js';
+
+export interface Worklist {
+  /** The items to test, in order: each sample item, and after a voided one the spare that replaces it. */
+  items: Array<{ item: SelectedItem; replaces?: string }>;
+  /** The first item with no result, or undefined when all are recorded. */
+  next: { item: SelectedItem; replaces?: string } | undefined;
+  /** The next spare not yet used, if any. */
+  nextSpare: SelectedItem | undefined;
+  /** Voided items for which no spare was left. */
+  shortBy: number;
+}
+
+export function worklist(wp: Workpaper): Worklist {
+  const sel = wp.selection;
+  if (!sel) throw new Error('no selection');
+  const results = new Map((wp.results?.items ?? []).map((r) => [r.key, r]));
+  const spares = sel.items.filter((i) => i.role === 'spare').sort((a, b) => a.seq - b.seq);
+  const sample = sel.items.filter((i) => i.role === 'sample').sort((a, b) => a.seq - b.seq);
+  const used = new Set([...results.values()].map((r) => r.void?.replacedBy).filter((k): k is string => k !== undefined));
+  const items: Worklist['items'] = [];
+  let shortBy = 0;
+  const visit = (item: SelectedItem, replaces?: string) => {
+    items.push({ item, ...(replaces ? { replaces } : {}) });
+    const r = results.get(item.key);
+    if (r?.void) {
+      const spare = r.void.replacedBy ? spares.find((s) => s.key === r.void!.replacedBy) : undefined;
+      if (spare) visit(spare, item.key);
+      else shortBy++;
+    }
+  };
+  for (const it of sample) visit(it);
+  const attrs = (wp.attributes ?? []).map((a) => a.id);
+  const complete = (key: string) => {
+    const r = results.get(key);
+    return r !== undefined && (r.void !== undefined || attrs.every((id) => r.attributes[id] !== undefined));
+  };
+  return {
+    items,
+    next: items.find((x) => !complete(x.item.key)),
+    nextSpare: spares.find((s) => !used.has(s.key) && !results.has(s.key)),
+    shortBy,
+  };
+}
+
+/** True when the item has its result: void, or a result for every attribute. */
+export function isRecorded(wp: Workpaper, key: string): boolean {
+  const r = wp.results?.items.find((x) => x.key === key);
+  return r !== undefined && (r.void !== undefined || (wp.attributes ?? []).every((a) => r.attributes[a.id] !== undefined));
+}
+
+/** Items of the worklist with their result, and in all. */
+export function progress(wp: Workpaper): { recorded: number; total: number } {
+  const wl = worklist(wp);
+  return { recorded: wl.items.filter((x) => isRecorded(wp, x.item.key)).length, total: wl.items.length };
+}
+
+export function recordingComplete(wp: Workpaper): boolean {
+  return wp.selection !== undefined && wp.results !== undefined && worklist(wp).next === undefined;
+}
+
+function describe(item: SelectedItem, max = 6): string {
+  const vals = Object.entries(item.values).filter(([k, v]) => k !== '' && v !== item.key).slice(0, max);
+  return vals.map(([k, v]) => `${k} ${v}`).join(', ');
+}
+
+/**
+ * results.items in the order of the worklist: the recorded results, and a placeholder (no result
+ * yet) for every other item to test. Keeping every item in place means each later save changes
+ * one element, so the change log names the item recorded.
+ */
+function arranged(wp: Workpaper, items: readonly ItemResult[]): ItemResult[] {
+  const probe: Workpaper = { ...wp, results: { source: 'interview', items: [...items], recordedAt: wp.updatedAt } };
+  const by = new Map(items.map((r) => [r.key, r]));
+  return worklist(probe).items.map(
+    ({ item, replaces }) => by.get(item.key) ?? { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: {} },
+  );
+}
+
+/**
+ * Store one item's result (and save, unless `save` is false). An evaluation or conclusion made
+ * from the old results is dropped in the same save (it no longer matches them).
+ */
+export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): void {
+  if (s.wp.evaluation || s.wp.conclusion) {
+    const { evaluation: _e, conclusion: _c, ...rest } = s.wp;
+    s.wp = rest as Workpaper;
+    s.print('  The results changed: the evaluation and conclusion made from the old results are cleared; conclude again.');
+  }
+  const prev = s.wp.results;
+  const items = arranged(s.wp, [...(prev?.items ?? []).filter((x) => x.key !== r.key), r]);
+  const src = prev?.source === 'sheet' || source === 'sheet' ? 'sheet' : 'interview';
+  const path = sheetPath ?? prev?.sheetPath;
+  s.wp = { ...s.wp, results: { source: src, ...(path ? { sheetPath: path } : {}), items, recordedAt: s.now().toISOString() } };
+  if (save) s.save('record');
+}
+
+/** Record a void: the item is replaced by the next unused spare (or the sample is one short). */
+function voidItem(s: Session, item: SelectedItem, replaces: string | undefined, reason: string): ItemResult {
+  const spare = worklist(s.wp).nextSpare;
+  if (spare) s.print(`  ${item.key} is void; it is replaced by spare ${spare.key} (item ${spare.seq}).`);
+  else s.print(`  ${item.key} is void and no spare is left: the sample will be one item short unless more items are selected.`);
+  return { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), void: { reason, ...(spare ? { replacedBy: spare.key } : {}) }, attributes: {} };
+}
+
+export const RESULT_HELP =
+  'Conforms: the attribute is met. Deviation: it is not met; a document that cannot be found is a deviation, not a void.\n' +
+  'Void: only a document properly cancelled (e.g. a cancelled invoice); it is not tested and the next spare replaces it.';
+
+/** Sessions that have shown the result help once (it is not repeated for every item). */
+const helped = new WeakSet<Session>();
+
+/** Ask one item's results. */
+export async function askItem(s: Session, item: SelectedItem, replaces: string | undefined, position: string): Promise<ItemResult> {
+  const a = s.asker;
+  const attrs = s.wp.attributes!;
+  s.print('', `Item ${position}: ${item.key} (row ${int(item.row)})${replaces ? `, spare replacing ${replaces}` : ''}`);
+  const details = describe(item);
+  if (details) s.print(`  ${details}`);
+  const out: ItemResult = { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: {} };
+  for (const [i, attr] of attrs.entries()) {
+    const id = `record.item.${item.seq}.${attr.id}`;
+    const result = await a.select({
+      id: `${id}.result`,
+      message: `${attr.id} ${attr.description}`,
+      help: i === 0 && !helped.has(s) ? RESULT_HELP : undefined,
+      choices: [
+        { value: 'conforms', name: 'Conforms' },
+        { value: 'deviation', name: `Deviation (${attr.deviationDefinition})` },
+        ...(i === 0 ? [{ value: 'void' as const, name: 'Void: properly cancelled document, replace with the next spare' }] : []),
+      ],
+      default: 'conforms',
+    });
+    helped.add(s);
+    if (result === 'void') {
+      const reason = await a.text({ id: `record.item.${item.seq}.void`, message: 'Why is the document void?', parse: requiredText('The reason') });
+      return voidItem(s, item, replaces, reason);
+    }
+    if (result === 'conforms') {
+      out.attributes[attr.id] = { result: 'conforms' };
+      continue;
+    }
+    out.attributes[attr.id] = await askDeviation(s, id);
+  }
+  return out;
+}
+
+async function askDeviation(s: Session, id: string): Promise<AttributeResult> {
+  const a = s.asker;
+  const found = await a.text({ id: `${id}.found`, message: 'What was found?', parse: requiredText('What was found') });
+  const cause = await a.select({
+    id: `${id}.cause`,
+    message: 'Cause',
+    choices: CAUSES.map((c) => ({ value: c, name: CAUSE_LABELS[c] })),
+  });
+  const causeDetail =
+    cause === 'other'
+      ? await a.text({ id: `${id}.causeDetail`, message: 'Describe the cause', parse: requiredText('The cause') })
+      : undefined;
+  const intentional = await a.select({
+    id: `${id}.intent`,
+    message: 'Does it look intentional?',
+    choices: INTENT.map((v) => ({ value: v, name: v === 'no' ? 'No' : v === 'suspected' ? 'Suspected' : 'Yes' })),
+    default: 'no',
+  });
+  const pattern = await a.select({
+    id: `${id}.pattern`,
+    message: 'Isolated or systemic?',
+    choices: PATTERNS.map((v) => ({ value: v, name: v === 'isolated' ? 'Isolated' : v === 'systemic' ? 'Systemic (likely to recur)' : 'Unclear' })),
+  });
+  return { result: 'deviation', found, cause, ...(causeDetail ? { causeDetail } : {}), intentional, pattern };
+}
+
+function sheetRecord(sheet: SheetItem, item: SelectedItem, replaces: string | undefined): ItemResult | 'void' | undefined {
+  if (sheet.blank || sheet.problems.length > 0) return undefined;
+  if (sheet.void) return 'void';
+  return { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: sheet.attributes };
+}
+
+export function problemLines(problems: readonly SheetProblem[], max = 40): string[] {
+  const lines = table(['Row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why]));
+  if (problems.length > max) lines.push(`  ... and ${problems.length - max} more`);
+  return lines;
+}
+
+/**
+ * Apply the sheet from the next unrecorded item on, item by item, until one has no readable
+ * result. Returns the problems that stop it (empty when everything is recorded).
+ */
+function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProblem[] {
+  const sel = s.wp.selection!;
+  const read = readResultsSheet(sheetAbs, sel.items, s.wp.attributes!);
+  let applied = 0;
+  for (;;) {
+    const wl = worklist(s.wp);
+    if (!wl.next) break;
+    const { item, replaces } = wl.next;
+    const row = read.items.get(item.seq);
+    const rec = row ? sheetRecord(row, item, replaces) : undefined;
+    if (rec === undefined) break;
+    const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
+    storeResult(s, result, 'sheet', sheetRel, false);
+    applied++;
+  }
+  if (applied > 0) s.save('record');
+  s.print(`  Read ${applied} item(s) from ${sheetRel}.`);
+  const wl = worklist(s.wp);
+  if (!wl.next) return [];
+  // Report every problem of the items still to record (and of the sheet as a whole).
+  const pending = new Set(wl.items.filter((x) => !isRecorded(s.wp, x.item.key)).map((x) => x.item.seq));
+  if (wl.nextSpare) pending.add(wl.nextSpare.seq);
+  const problems = [...read.problems];
+  for (const [seq, it] of read.items) {
+    if (!pending.has(seq)) continue;
+    if (it.problems.length > 0) problems.push(...it.problems);
+    else if (it.blank && wl.items.some((x) => x.item.seq === seq)) {
+      problems.push({ row: it.row, column: '(results)', value: '', why: `item ${seq} (${it.key}) has no result yet` });
+    }
+  }
+  for (const x of wl.items) {
+    if (pending.has(x.item.seq) && !read.items.has(x.item.seq) && read.problems.every((p) => p.row !== 1)) {
+      problems.push({ row: 0, column: '(row)', value: x.item.key, why: `item ${x.item.seq} (${x.item.key}) is not in the sheet` });
+    }
+  }
+  problems.sort((p, q) => p.row - q.row);
+  if (problems.length === 0) {
+    problems.push({ row: 0, column: '(results)', value: wl.next.item.key, why: `item ${wl.next.item.seq} has no readable result` });
+  }
+  return problems;
+}
+
+async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
+  const a = s.asker;
+  // Stored relative to the workpaper's folder; typed (and suggested) relative to the working folder.
+  const stored = s.wp.results?.sheetPath ?? s.wp.selection!.fieldworkSheet;
+  const suggested = stored ? relative(s.cwd, resolve(s.dir, stored)) || stored : undefined;
+  const abs = await a.text({
+    id: 'record.sheet.path',
+    message: 'Filled fieldwork sheet (CSV)',
+    help: SHEET_CONVENTIONS.join('\n'),
+    ...(suggested ? { default: suggested } : {}),
+    parse: existingFile('The sheet', s.cwd, ['.csv']),
+  });
+  const rel = isAbsolute(abs) ? relative(s.dir, abs) || abs : abs;
+  for (let round = 1; ; round++) {
+    const problems = applySheet(s, abs, rel.split('\\').join('/'));
+    if (problems.length === 0) return 'done';
+    const wl = worklist(s.wp);
+    s.print('', `  The sheet cannot be read for the items still to record (${problems.length} problem(s)); nothing was guessed:`);
+    s.print(...problemLines(problems));
+    const next = wl.next!;
+    const what = await a.select({
+      id: `record.sheet.problems.${round}`,
+      message: 'What now?',
+      choices: [
+        { value: 'reread', name: 'I have fixed the sheet: read it again' },
+        { value: 'type', name: `Type the result of item ${next.item.seq} (${next.item.key}) here, then go on with the sheet` },
+        { value: 'stop', name: 'Stop for now (everything read so far is saved)' },
+      ],
+    });
+    if (what === 'stop') return 'stopped';
+    if (what === 'type') {
+      const r = await askItem(s, next.item, next.replaces, `${wl.items.indexOf(next) + 1} of ${wl.items.length}`);
+      storeResult(s, r, 'interview');
+    }
+  }
+}
+
+async function recordTyped(s: Session): Promise<'done'> {
+  for (;;) {
+    const wl = worklist(s.wp);
+    if (!wl.next) return 'done';
+    const r = await askItem(s, wl.next.item, wl.next.replaces, `${wl.items.indexOf(wl.next) + 1} of ${wl.items.length}`);
+    storeResult(s, r, 'interview');
+  }
+}
+
+/** Summary of what is recorded (per attribute: tested, deviations; voids). */
+export function recordSummary(wp: Workpaper): string[] {
+  const results = wp.results?.items ?? [];
+  const tested = results.filter((r) => !r.void && Object.keys(r.attributes).length > 0);
+  const rows = (wp.attributes ?? []).map((a) => {
+    const n = tested.filter((r) => r.attributes[a.id]).length;
+    const k = tested.filter((r) => r.attributes[a.id]?.result === 'deviation').length;
+    return [a.id, int(n), int(k)];
+  });
+  const voids = results.filter((r) => r.void);
+  return [
+    ...table(['Attribute', 'Tested', 'Deviations'], rows),
+    ...(voids.length > 0 ? [`  Void: ${voids.map((v) => `${v.key} (${v.void!.replacedBy ? `replaced by ${v.void!.replacedBy}` : 'no spare left'})`).join(', ')}`] : []),
+  ];
+}
+
+/** The record step. Returns 'stopped' when the user chose to stop before every item was recorded. */
+export async function runRecordStep(s: Session): Promise<'done' | 'stopped'> {
+  const a = s.asker;
+  s.heading('Record the results');
+  const wl = worklist(s.wp);
+  const recorded = progress(s.wp).recorded;
+  s.print(`  ${int(wl.items.length)} item(s) to test${recorded > 0 ? `; ${recorded} recorded so far, continuing at item ${wl.next ? wl.next.item.key : '-'}` : ''}.`);
+  const how = await a.select({
+    id: 'record.source',
+    message: 'How do you want to enter the results?',
+    choices: [
+      { value: 'sheet', name: 'Read them from the filled fieldwork sheet' },
+      { value: 'type', name: 'Type them here, item by item (saved after each item)' },
+      { value: 'later', name: 'Later: the items are not tested yet' },
+    ],
+    default: s.wp.selection?.fieldworkSheet ? 'sheet' : 'type',
+  });
+  if (how === 'later') return 'stopped';
+  const got = how === 'sheet' ? await recordFromSheet(s) : await recordTyped(s);
+  if (got === 'done') {
+    s.print('', '  All items are recorded:');
+    s.print(...recordSummary(s.wp));
+    const short = worklist(s.wp).shortBy;
+    if (short > 0) s.print(`  The sample is ${short} item(s) short: voided items without a spare left.`);
+  }
+  return got;
+}
+
+/** Every item has a result: offer to change one item's result (then record any spare it brings in). */
+export async function changeResults(s: Session): Promise<'done' | 'stopped'> {
+  const a = s.asker;
+  s.print('', '  Every item has a result.');
+  for (let i = 1; ; i++) {
+    const tested = (s.wp.results?.items ?? []).filter((r) => !r.void && isRecorded(s.wp, r.key));
+    const pick = await a.select({
+      id: `record.change.${i}`,
+      message: "Change an item's result?",
+      choices: [
+        { value: '', name: 'No' },
+        ...tested.map((r) => ({
+          value: r.key,
+          name: `${r.key}: ${Object.entries(r.attributes).map(([id, x]) => `${id} ${x.result}`).join(', ')}`,
+        })),
+      ],
+      default: '',
+    });
+    if (pick === '') return 'done';
+    const wl = worklist(s.wp);
+    const entry = wl.items.find((x) => x.item.key === pick)!;
+    const r = await askItem(s, entry.item, entry.replaces, `${wl.items.indexOf(entry) + 1} of ${wl.items.length}`);
+    storeResult(s, r, 'interview');
+    if (!recordingComplete(s.wp)) {
+      const got = await runRecordStep(s);
+      if (got === 'stopped') return got;
+    }
+  }
+}

@@ -1,0 +1,234 @@
+/**
+ * Reading results back from the filled fieldwork sheet.
+ *
+ * Column conventions (written into the sheet's header row at selection, one group per
+ * attribute; the bracketed part of a header is a reminder and is ignored when reading):
+ *
+ *   A1 result [C/D/V]     C = conforms (also: conforms, ok, pass)
+ *                         D = deviation (also: deviation, exception, fail)
+ *                         V = void: the document was properly cancelled; the item is replaced
+ *                             by the next spare. A document that cannot be found is a D, not a V.
+ *   A1 found              what was found, for a D (required)
+ *   A1 cause [code]       for a D: not-performed, performed-late, wrong-performer,
+ *                         evidence-missing, system, other (or the words: "performed late"...)
+ *   A1 intent [no/suspected/yes]        for a D (required: it is never assumed)
+ *   A1 pattern [isolated/systemic/unclear]  for a D (required)
+ *   Void reason           for a V (required)
+ *
+ * A row is matched to the selected item by its `Seq` and `Key` columns. Nothing is guessed:
+ * every cell that cannot be read is reported with its row, column, value and why.
+ */
+import { readFileSync } from 'node:fs';
+import { parse } from 'csv-parse/sync';
+import { FileInputError } from '../errors.js';
+import { KEY_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
+import { CAUSES, CAUSE_LABELS, INTENT, PATTERNS, type Attribute, type AttributeResult, type Cause, type SelectedItem } from '../workpaper/schema.js';
+
+export { SEQ_COLUMN, KEY_COLUMN };
+export const VOID_COLUMN = 'Void reason';
+
+/** The result columns for one attribute, as written in the header. */
+export function attributeColumns(id: string): { result: string; found: string; cause: string; intent: string; pattern: string } {
+  return {
+    result: `${id} result [C/D/V]`,
+    found: `${id} found`,
+    cause: `${id} cause [code]`,
+    intent: `${id} intent [no/suspected/yes]`,
+    pattern: `${id} pattern [isolated/systemic/unclear]`,
+  };
+}
+
+/** Every result column, in order: the attributes' groups, then the void reason. */
+export function resultColumns(attributes: readonly Pick<Attribute, 'id'>[]): string[] {
+  return [...attributes.flatMap((a) => Object.values(attributeColumns(a.id))), VOID_COLUMN];
+}
+
+/** The conventions as short lines (for the sheet's notes and the interview's help). */
+export const SHEET_CONVENTIONS: readonly string[] = [
+  'Result: C = conforms, D = deviation, V = void (properly cancelled document, replaced by the next spare).',
+  'A document that cannot be found is a deviation (D), not a void.',
+  `For a D fill found, cause (${CAUSES.join(', ')}), intent (no/suspected/yes) and pattern (isolated/systemic/unclear).`,
+  'For a V fill the void reason. Leave the rows of unused spares blank.',
+];
+
+export interface SheetProblem {
+  /** Row in the sheet as a spreadsheet shows it (header = 1). */
+  row: number;
+  column: string;
+  value: string;
+  why: string;
+}
+
+export interface SheetItem {
+  seq: number;
+  key: string;
+  row: number;
+  /** Nothing entered in any result column. */
+  blank: boolean;
+  void?: { reason: string };
+  attributes: Record<string, AttributeResult>;
+  problems: SheetProblem[];
+}
+
+export interface SheetRead {
+  /** Rows by seq. */
+  items: Map<number, SheetItem>;
+  /** Problems not tied to one item (missing columns, unknown rows). */
+  problems: SheetProblem[];
+}
+
+/** Header text as compared: lower case, bracketed reminder removed, spaces collapsed. */
+function norm(h: string): string {
+  return h.replace(/\s*[[(][^\])]*[\])]\s*$/, '').trim().replace(/\s+/g, ' ').toLowerCase();
+}
+
+const RESULT_WORDS: Record<string, 'conforms' | 'deviation' | 'void'> = {
+  c: 'conforms', conforms: 'conforms', conform: 'conforms', ok: 'conforms', pass: 'conforms',
+  d: 'deviation', deviation: 'deviation', exception: 'deviation', fail: 'deviation',
+  v: 'void', void: 'void',
+};
+
+function words(t: string): string {
+  return t.trim().toLowerCase().replace(/[\s_]+/g, '-');
+}
+
+export function readCause(t: string): Cause | undefined {
+  const w = words(t);
+  const byId = CAUSES.find((c) => c === w);
+  if (byId) return byId;
+  return CAUSES.find((c) => words(CAUSE_LABELS[c]) === w);
+}
+
+function choice<T extends string>(list: readonly T[], t: string): T | undefined {
+  const w = words(t);
+  return list.find((x) => x === w);
+}
+
+/** Parse the filled sheet text against the selection and the attributes. */
+export function parseResultsSheet(text: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
+  let records: string[][];
+  try {
+    records = parse(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true }) as string[][];
+  } catch (e) {
+    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${(e as Error).message}`);
+  }
+  const problems: SheetProblem[] = [];
+  const out: SheetRead = { items: new Map(), problems };
+  const header = records[0];
+  if (!header) {
+    problems.push({ row: 1, column: '(header)', value: '', why: 'the sheet is empty' });
+    return out;
+  }
+  const index = new Map<string, number>();
+  header.forEach((h, i) => {
+    if (!index.has(norm(h))) index.set(norm(h), i);
+  });
+  const col = (name: string) => index.get(norm(name));
+  const need = [SEQ_COLUMN, KEY_COLUMN, ...resultColumns(attributes)];
+  const missing = need.filter((n) => col(n) === undefined);
+  for (const m of missing) problems.push({ row: 1, column: m, value: '', why: 'this column is missing from the header' });
+  if (missing.length > 0) return out;
+  const bySeq = new Map(items.map((it) => [it.seq, it]));
+  const shownName = (name: string) => header[col(name) ?? -1] ?? name;
+  const cell = (r: string[], name: string) => restoreCell((r[col(name)!] ?? '').trim());
+  records.slice(1).forEach((r, i) => {
+    const row = i + 2;
+    const seqText = cell(r, SEQ_COLUMN);
+    const keyText = cell(r, KEY_COLUMN);
+    const seq = /^\d+$/.test(seqText) ? Number(seqText) : NaN;
+    const sel = bySeq.get(seq);
+    if (!sel) {
+      problems.push({ row, column: SEQ_COLUMN, value: seqText, why: 'no selected item has this number' });
+      return;
+    }
+    if (sel.key !== keyText) {
+      problems.push({ row, column: KEY_COLUMN, value: keyText, why: `item ${seq} is ${sel.key} in the workpaper` });
+      return;
+    }
+    if (out.items.has(seq)) {
+      problems.push({ row, column: SEQ_COLUMN, value: seqText, why: `item ${seq} appears twice (first at row ${out.items.get(seq)!.row})` });
+      return;
+    }
+    const item: SheetItem = { seq, key: sel.key, row, blank: true, attributes: {}, problems: [] };
+    out.items.set(seq, item);
+    // Problems name the column as the sheet's header writes it.
+    const bad = (column: string, value: string, why: string) => item.problems.push({ row, column: shownName(column), value, why });
+    const kinds: Array<[Attribute, 'conforms' | 'deviation' | 'void' | undefined]> = [];
+    for (const a of attributes) {
+      const c = attributeColumns(a.id);
+      const raw = cell(r, c.result);
+      const others = [c.found, c.cause, c.intent, c.pattern].map((n) => cell(r, n));
+      if (raw !== '' || others.some((x) => x !== '')) item.blank = false;
+      if (raw === '') {
+        kinds.push([a, undefined]);
+        continue;
+      }
+      const kind = RESULT_WORDS[raw.toLowerCase()];
+      if (!kind) {
+        bad(c.result, raw, 'not a result: write C (conforms), D (deviation) or V (void)');
+        kinds.push([a, undefined]);
+        continue;
+      }
+      kinds.push([a, kind]);
+    }
+    const voidReason = cell(r, VOID_COLUMN);
+    if (voidReason !== '') item.blank = false;
+    if (item.blank) return;
+    const isVoid = kinds.some(([, k]) => k === 'void');
+    if (isVoid) {
+      const tested = kinds.filter(([, k]) => k === 'conforms' || k === 'deviation');
+      for (const [a] of tested) {
+        bad(attributeColumns(a.id).result, cell(r, attributeColumns(a.id).result), 'the item is marked void in another column: a void item is not tested, so mark every attribute V or leave it blank');
+      }
+      if (voidReason === '') bad(VOID_COLUMN, '', 'a void item needs the reason it was voided');
+      if (item.problems.length === 0) item.void = { reason: voidReason };
+      return;
+    }
+    if (voidReason !== '') bad(VOID_COLUMN, voidReason, 'a void reason is given but no result is V');
+    for (const [a, k] of kinds) {
+      const c = attributeColumns(a.id);
+      if (k === undefined) {
+        if (!item.problems.some((p) => p.column === shownName(c.result))) bad(c.result, '', 'blank: no result entered for this attribute');
+        continue;
+      }
+      if (k === 'conforms') {
+        for (const n of [c.found, c.cause, c.intent, c.pattern]) {
+          const v = cell(r, n);
+          if (v !== '') bad(n, v, 'filled for an item that conforms: clear it, or mark the result D');
+        }
+        if (!item.problems.some((p) => [c.found, c.cause, c.intent, c.pattern].map(shownName).includes(p.column))) item.attributes[a.id] = { result: 'conforms' };
+        continue;
+      }
+      const found = cell(r, c.found);
+      const causeText = cell(r, c.cause);
+      const intentText = cell(r, c.intent);
+      const patternText = cell(r, c.pattern);
+      const before = item.problems.length;
+      if (found === '') bad(c.found, '', 'a deviation needs a description of what was found');
+      const cause = causeText === '' ? undefined : readCause(causeText);
+      if (causeText === '') bad(c.cause, '', `a deviation needs a cause: ${CAUSES.join(', ')}`);
+      else if (!cause) bad(c.cause, causeText, `not a cause: write one of ${CAUSES.join(', ')}`);
+      const intentional = choice(INTENT, intentText);
+      if (intentText === '') bad(c.intent, '', 'say whether the deviation looks intentional: no, suspected or yes (it is never assumed)');
+      else if (!intentional) bad(c.intent, intentText, 'write no, suspected or yes');
+      const pattern = choice(PATTERNS, patternText);
+      if (patternText === '') bad(c.pattern, '', 'say whether it looks isolated, systemic or unclear');
+      else if (!pattern) bad(c.pattern, patternText, 'write isolated, systemic or unclear');
+      if (item.problems.length === before) {
+        item.attributes[a.id] = { result: 'deviation', found, cause: cause!, intentional: intentional!, pattern: pattern! };
+      }
+    }
+  });
+  return out;
+}
+
+export function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new FileInputError(path, code === 'ENOENT' ? `No sheet at ${path}.` : `Cannot read ${path}: ${(e as Error).message}`);
+  }
+  return parseResultsSheet(text, items, attributes);
+}

@@ -1,0 +1,39 @@
+/**
+ * Plain-text layout for the interview: aligned tables and wrapped paragraphs. No colour codes
+ * here (the session adds them only when the terminal allows).
+ */
+
+/** An aligned table; columns whose cells all look numeric are right-aligned. */
+export function table(header: readonly string[], rows: readonly (readonly string[])[], indent = '  '): string[] {
+  const all = [header, ...rows];
+  const widths = header.map((_, c) => Math.max(...all.map((r) => (r[c] ?? '').length)));
+  const numeric = header.map((_, c) => rows.length > 0 && rows.every((r) => /^[-+]?[\d.,]+%?$|^—$|^[<≤>]/.test((r[c] ?? '').trim())));
+  const line = (r: readonly string[]) =>
+    indent +
+    r
+      .map((cell, c) => (numeric[c] ? (cell ?? '').padStart(widths[c]!) : (cell ?? '').padEnd(widths[c]!)))
+      .join('  ')
+      .trimEnd();
+  return [line(header), indent + widths.map((w) => '-'.repeat(w)).join('  '), ...rows.map(line)];
+}
+
+/** Wrap a paragraph at `width` characters. */
+export function wrap(text: string, width = 92, indent = ''): string[] {
+  const out: string[] = [];
+  for (const para of text.split('\n')) {
+    let line = '';
+    for (const w of para.split(/\s+/).filter(Boolean)) {
+      if (line && line.length + 1 + w.length > width - indent.length) {
+        out.push(indent + line);
+        line = w;
+      } else line = line ? `${line} ${w}` : w;
+    }
+    out.push(indent + line);
+  }
+  return out;
+}
+
+export const CAUTION =
+  'The tool computes. Whether the control can be relied on, and how severe a deficiency is, are the ' +
+  "practitioner's judgements under the auditing standards that apply to the engagement (e.g. AU-C 530, " +
+  "ISA 530, AS 2315 for sampling) and the firm's methodology.";

@@ -1,0 +1,152 @@
+/**
+ * The interview commands' bodies: plan, record, conclude, and the start screen's "new test" and
+ * "continue" runs. Each takes the answerer as an argument, so the same code runs on a terminal
+ * and from a script.
+ */
+import { relative, resolve } from 'node:path';
+import type { CommandContext } from '../commands/types.js';
+import { TolrateInputError } from '../errors.js';
+import { int } from '../util/format.js';
+import type { Asker } from './asker.js';
+import { sessionFor, workpaperPath, type InterviewOptions } from './command.js';
+import { chooseRevisit, firstOpen, isAnswered, PLAN_STEPS, runOpenSteps, runStep, STEP_LABELS, STEPS, statusLines, type StepName } from './flow.js';
+import { loadPolicy } from './policy.js';
+import { requiredText } from './parse.js';
+import { progress } from './record.js';
+import type { Session } from './session.js';
+
+export interface StageOptions extends InterviewOptions {
+  file?: string | undefined;
+  policy?: string | undefined;
+}
+
+function shown(ctx: CommandContext, path: string): string {
+  const r = relative(ctx.cwd, path);
+  return r && !r.startsWith('..') ? r : path;
+}
+
+async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean): Promise<Session | undefined> {
+  if (o.policy) loadPolicy(resolve(ctx.cwd, o.policy));
+  let file = o.file;
+  if (file === undefined) {
+    file = await asker.text({
+      id: 'start.file',
+      message: 'Workpaper file for this test',
+      help: 'A name such as supplier-invoices (saved as supplier-invoices.tolrate.json in this folder).',
+      parse: (t) => {
+        const v = requiredText('The file name')(t);
+        workpaperPath(ctx.cwd, v);
+        return v;
+      },
+    });
+  }
+  const path = workpaperPath(ctx.cwd, file);
+  const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist });
+  if (!s) {
+    ctx.stdout.write('Nothing was changed.\n');
+    return undefined;
+  }
+  if (s.wp.log.length === 0) s.print(`Starting a new test in ${shown(ctx, path)}.`);
+  else {
+    s.print(`${shown(ctx, path)}: ${s.wp.control?.id ?? 'a test'}${s.wp.engagement ? `, ${s.wp.engagement.entity}` : ''}`);
+    s.print(...statusLines(s.wp));
+  }
+  return s;
+}
+
+function next(ctx: CommandContext, s: Session): void {
+  const st = firstOpen(s.wp);
+  const f = shown(ctx, s.path);
+  if (st === undefined) s.print('', `The test is complete and signed off. Write the memo with: tolrate memo ${f}`);
+  else if (st === 'record') {
+    const sheet = s.wp.selection?.fieldworkSheet;
+    s.print(
+      '',
+      `Planning is complete.${sheet ? ` The fieldwork sheet is ${sheet} (beside the workpaper).` : ''}`,
+      `Test the items, then record the results with: tolrate record ${f}`,
+    );
+  } else if (st === 'conclude' || st === 'signoff') s.print('', `Next: tolrate conclude ${f}`);
+  else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: tolrate plan ${f}`);
+}
+
+/** `tolrate plan [FILE]`. */
+export async function planInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
+  const s = await open(ctx, asker, o, false);
+  if (!s) return 1;
+  const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
+  await runOpenSteps(s, PLAN_STEPS);
+  if (wasComplete) {
+    s.print('', 'Every planning step is answered.');
+    for (let i = 1; ; i++) {
+      const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
+      if (!st) break;
+      await runStep(s, st);
+      await runOpenSteps(s, PLAN_STEPS);
+    }
+  }
+  next(ctx, s);
+  return 0;
+}
+
+/** `tolrate record FILE`. */
+export async function recordInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
+  const s = await open(ctx, asker, o, true);
+  if (!s) return 1;
+  const open1 = firstOpen(s.wp, PLAN_STEPS);
+  if (open1) {
+    throw new TolrateInputError(`The plan is not finished (next: ${STEP_LABELS[open1]}), so there is nothing to record yet.`, 'PLAN_INCOMPLETE', [
+      `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
+    ]);
+  }
+  await runStep(s, 'record');
+  next(ctx, s);
+  return 0;
+}
+
+/** `tolrate conclude FILE`. */
+export async function concludeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
+  const s = await open(ctx, asker, o, true);
+  if (!s) return 1;
+  const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
+  if (open1) {
+    const detail =
+      open1 === 'record' && s.wp.selection
+        ? (() => {
+            const p = progress(s.wp);
+            return `${int(p.total - p.recorded)} of ${int(p.total)} items have no result yet`;
+          })()
+        : `next: ${STEP_LABELS[open1]}`;
+    throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
+      open1 === 'record' ? `Record the results with: tolrate record ${shown(ctx, s.path)}` : `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
+    ]);
+  }
+  if (s.wp.conclusion) {
+    const again = await asker.confirm({
+      id: 'conclude.again',
+      message: `The test is concluded${s.wp.signoffs?.preparer ? ` and signed off by ${s.wp.signoffs.preparer.name}` : ''}. Conclude it again?`,
+      default: false,
+    });
+    if (again) await runStep(s, 'conclude');
+  }
+  await runOpenSteps(s, ['conclude', 'signoff']);
+  next(ctx, s);
+  return 0;
+}
+
+/** The start screen's "new test" and "continue": the whole test from the first open step. */
+export async function wholeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
+  const s = await open(ctx, asker, o, false);
+  if (!s) return 1;
+  const wasDone = firstOpen(s.wp) === undefined;
+  await runOpenSteps(s, STEPS);
+  if (wasDone) {
+    for (let i = 1; ; i++) {
+      const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
+      if (!st) break;
+      await runStep(s, st);
+      await runOpenSteps(s, STEPS);
+    }
+  }
+  next(ctx, s);
+  return 0;
+}

@@ -1,0 +1,69 @@
+/**
+ * The terminal answerer, over @inquirer/prompts. The library is imported on first use only, so
+ * commands that never ask anything (and `tolrate --help`) do not load it.
+ */
+import type { Asker, ConfirmQuestion, SelectQuestion, TextQuestion } from './asker.js';
+import { refusal } from './asker.js';
+import type { Output } from '../commands/types.js';
+
+type Prompts = typeof import('@inquirer/prompts');
+
+export interface TerminalOptions {
+  /** Where help lines are written (the same stream inquirer draws on). */
+  out: Output;
+  color: boolean;
+}
+
+export class TerminalAsker implements Asker {
+  private prompts: Prompts | undefined;
+
+  constructor(private readonly options: TerminalOptions) {}
+
+  private async load(): Promise<Prompts> {
+    this.prompts ??= await import('@inquirer/prompts');
+    return this.prompts;
+  }
+
+  private help(text: string | undefined): void {
+    if (!text) return;
+    const lines = text.split('\n').map((l) => `  ${l}`).join('\n');
+    this.options.out.write(this.options.color ? `\x1b[2m${lines}\x1b[22m\n` : `${lines}\n`);
+  }
+
+  async text<T>(q: TextQuestion<T>): Promise<T> {
+    const { input } = await this.load();
+    this.help(q.help);
+    const typed = await input({
+      message: q.message,
+      ...(q.default !== undefined && q.default !== '' ? { default: q.default } : {}),
+      ...(q.editable && q.default ? { prefill: 'editable' as const } : {}),
+      validate: (v: string) => {
+        try {
+          q.parse(v);
+          return true;
+        } catch (e) {
+          return refusal(e);
+        }
+      },
+    });
+    return q.parse(typed);
+  }
+
+  async select<T extends string>(q: SelectQuestion<T>): Promise<T> {
+    const { select } = await this.load();
+    this.help(q.help);
+    const value = await select<T>({
+      message: q.message,
+      choices: q.choices.map((c) => ({ value: c.value, name: c.name, ...(c.description ? { description: c.description } : {}) })),
+      ...(q.default !== undefined ? { default: q.default } : {}),
+      pageSize: Math.min(12, Math.max(q.choices.length, 3)),
+    });
+    return value;
+  }
+
+  async confirm(q: ConfirmQuestion): Promise<boolean> {
+    const { confirm } = await this.load();
+    this.help(q.help);
+    return confirm({ message: q.message, ...(q.default !== undefined ? { default: q.default } : {}) });
+  }
+}

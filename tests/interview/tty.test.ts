@@ -1,0 +1,89 @@
+/**
+ * One run in a real pseudo-terminal: `node dist/cli.js plan` inside tmux, answered with keys,
+ * including a wrong answer, then stopped with Ctrl-C at the approach step. Needs tmux and a
+ * build (`npm run build`); skipped, with the reason, when either is missing.
+ */
+import { execFileSync, spawnSync } from 'node:child_process';
+import { existsSync, readFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { loadWorkpaper } from '../../src/workpaper/file.js';
+import { verifyLog } from '../../src/workpaper/log.js';
+import { tempDir, writePopulation } from '../fixtures/interview.js';
+
+const CLI = resolve(__dirname, '..', '..', 'dist', 'cli.js');
+const hasTmux = spawnSync('tmux', ['-V']).status === 0;
+const hasBuild = existsSync(CLI);
+const reason = !hasTmux ? 'tmux is not installed' : !hasBuild ? 'dist/cli.js is missing: run `npm run build` first' : '';
+const session = `tolrate-test-${process.pid}`;
+
+function tmux(...args: string[]): string {
+  return execFileSync('tmux', args, { encoding: 'utf8' });
+}
+const screen = () => tmux('capture-pane', '-t', session, '-p', '-S', '-200');
+async function waitFor(text: string | RegExp, ms = 10_000): Promise<string> {
+  const end = Date.now() + ms;
+  for (;;) {
+    const s = screen();
+    if (typeof text === 'string' ? s.includes(text) : text.test(s)) return s;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${String(text)}; the screen shows:\n${s}`);
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+async function answer(prompt: string | RegExp, ...keys: string[]): Promise<void> {
+  await waitFor(prompt);
+  for (const k of keys) tmux('send-keys', '-t', session, ...(k === 'Enter' || k === 'Down' || k === 'C-c' || k === 'C-u' ? [k] : ['-l', k]));
+}
+
+describe.skipIf(reason !== '')(`a real terminal (tmux)${reason ? `: skipped, ${reason}` : ''}`, () => {
+  afterAll(() => {
+    spawnSync('tmux', ['kill-session', '-t', session]);
+  });
+
+  it('plan in a pseudo-terminal: typed answers, a refusal shown, Ctrl-C keeps the answered steps', async () => {
+    const dir = tempDir();
+    const { total } = writePopulation(dir);
+    tmux('new-session', '-d', '-s', session, '-x', '150', '-y', '50', `cd '${dir}' && node '${CLI}' plan t1; echo "EXIT=$?" > exit.txt; sleep 60`);
+    await answer('? Entity', 'Corrow Fittings Ltd', 'Enter');
+    await answer('? Period start', '2025-01-01', 'Enter');
+    await answer('? Period end', '2024-12-31', 'Enter');
+    await waitFor('Period end: 2024-12-31 is before the period start (2025-01-01).');
+    await answer('before the period start', 'C-u', '2025-12-31', 'Enter');
+    await answer('? Workpaper reference', 'C-3.1', 'Enter');
+    await answer('? Preparer', 'T. Preparer', 'Enter');
+    await answer('? Reviewer', 'R. Reviewer', 'Enter');
+    await answer('? Control identifier', 'PAY-02', 'Enter');
+    await answer('? What the control does', 'Second signatory approves each voucher', 'Enter');
+    await answer('? Control objective', 'Only authorised payments', 'Enter');
+    await answer('? Control owner', 'Finance manager', 'Enter');
+    await answer('? How often the control operates', 'Down', 'Down', 'Down', 'Down', 'Down', 'Enter');
+    await answer('? Nature of the control', 'Enter');
+    await answer('? Is it a key control?', 'Enter');
+    await answer('? A1: what is checked', 'Second signature', 'Enter');
+    await answer('? A1: what counts as a deviation', 'No second signature', 'Enter');
+    await answer('? A1: its own tolerable', 'Enter');
+    await answer('? Add another attribute?', 'n', 'Enter');
+    await answer('? Where is the population?', 'Enter');
+    await answer('? Population file', 'vouchers.csv', 'Enter');
+    await answer('? Key column', 'Enter');
+    await answer('? Amount column', 'Enter');
+    await answer('? Date column', 'Enter');
+    await waitFor('Validation: no problems found.');
+    await answer('? Sampling unit', 'One payment voucher', 'Enter');
+    await answer('? Description of the population', 'Vouchers released in 2025', 'Enter');
+    await answer('? Ledger count', '240', 'Enter');
+    await answer('? Ledger total', total, 'Enter');
+    await answer('The population agrees to the ledger.');
+    await answer('? Where the ledger figures come from', 'Payments register', 'Enter');
+    await answer('? Approach', 'C-c');
+    for (let i = 0; i < 50 && !existsSync(join(dir, 'exit.txt')); i++) await new Promise((r) => setTimeout(r, 100));
+    expect(readFileSync(join(dir, 'exit.txt'), 'utf8').trim()).toBe('EXIT=130');
+    expect(screen()).toContain('Stopped. Everything answered up to the last completed step is saved.');
+    const wp = loadWorkpaper(join(dir, 't1.tolrate.json'));
+    expect(verifyLog(wp)).toEqual([]);
+    expect(wp.engagement).toMatchObject({ entity: 'Corrow Fittings Ltd', periodEnd: '2025-12-31' });
+    expect(wp.control!.frequency).toBe('many-times-daily');
+    expect(wp.population!.tieOut).toMatchObject({ ledgerCount: 240, countDifference: 0, totalDifference: '0.00' });
+    expect(wp.approach).toBeUndefined();
+  }, 60_000);
+});
