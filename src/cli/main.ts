@@ -25,6 +25,7 @@ export function mainHelp(): string {
   lines.push('');
   lines.push('Usage: tolrate [COMMAND] [OPTIONS]');
   lines.push('       tolrate            on a terminal: start a new test or continue a workpaper file');
+  lines.push('       tolrate FILE.tolrate.json   continue that workpaper where it stopped');
   const groups: Array<[string, string]> = [
     ['test', 'A test, from plan to memo (interviews need a terminal):'],
     ['calculators', 'Calculators (flags in, a table or --json out):'],
@@ -86,6 +87,10 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
     if (first === '--version' || first === '-V' || first === 'version') {
       ctx.stdout.write(`tolrate ${packageVersion()}\n`);
       return 0;
+    }
+    if (first.endsWith('.tolrate.json') || (first === '--policy' && rest.length > 0)) {
+      // `tolrate FILE.tolrate.json`: continue that workpaper at its first unanswered step.
+      return await (await loadCommand('start'))([first, ...rest], ctx);
     }
     if (first.startsWith('-')) {
       const guess = nearest(first.replace(/^-+/, ''), ['help', 'version']);

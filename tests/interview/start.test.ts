@@ -6,6 +6,7 @@ import stdBetaQuantile from '@stdlib/stats-base-dists-beta-quantile';
 import { describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { runWith as start } from '../../src/commands/start/index.js';
+import { runCli } from '../../src/cli/main.js';
 import { ScriptedAsker } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation } from '../fixtures/interview.js';
@@ -71,5 +72,21 @@ describe('tolrate (start screen)', () => {
     // Clopper–Pearson limit BetaInv(0.95; 3, 76) from @stdlib's beta quantile, shown rounded up to 0.1%.
     const ref = stdBetaQuantile(0.95, 3, 76);
     expect(ctx2.text()).toContain(`Upper deviation limit: ${(Math.ceil(ref * 1000) / 10).toFixed(1)}%`);
+  });
+
+  it('`tolrate FILE.tolrate.json` continues that workpaper; without a terminal it says how to run it', async () => {
+    const dir = tempDir();
+    const { total } = writePopulation(dir);
+    const a1 = new ScriptedAsker({ 'start.action': 'new', 'start.file': 'payments', ...planAnswers(total), 'record.source': 'later' });
+    expect(await start([], captureContext(dir), a1, { now: fixedClock() })).toBe(0);
+    const a2 = new ScriptedAsker({ 'record.source': 'later' });
+    const ctx = captureContext(dir);
+    expect(await start(['payments.tolrate.json'], ctx, a2, { now: fixedClock() })).toBe(0);
+    expect(a2.ids.some((i) => i.startsWith('start.action'))).toBe(false);
+    expect(a2.ids.filter((i) => i.startsWith('plan.'))).toEqual([]);
+
+    const noTty = captureContext(dir, false);
+    expect(await runCli(['payments.tolrate.json'], noTty)).toBe(2);
+    expect(noTty.err.join('')).toMatch(/needs a terminal/);
   });
 });

@@ -1,9 +1,9 @@
 import { readdirSync } from 'node:fs';
-import { parseFlags } from '../../cli/args.js';
+import { parseFlags, str } from '../../cli/args.js';
 import type { CommandContext, CommandRun } from '../types.js';
 import type { Asker } from '../../interview/asker.js';
-import { needsTerminal, terminalAsker, workpaperPath, type InterviewOptions } from '../../interview/command.js';
-import { wholeInterview } from '../../interview/stages.js';
+import { needsTerminal, terminalAsker, workpaperPath } from '../../interview/command.js';
+import { wholeInterview, type StageOptions } from '../../interview/stages.js';
 import { count, existingFile, optionalCount, optionalRate, rate } from '../../interview/parse.js';
 import { WORKPAPER_SUFFIX } from '../../workpaper/file.js';
 import { pctPlain } from '../../util/format.js';
@@ -12,6 +12,16 @@ export function help(): string {
   return `tolrate — on a terminal, with no command: start a new test, continue a workpaper file in
 this folder, or use a calculator. Each stage also runs on its own:
   tolrate plan [FILE]    tolrate record FILE    tolrate conclude FILE
+
+Usage: tolrate [FILE.tolrate.json] [--policy POLICY.json]
+
+  FILE             continue this workpaper at its first unanswered step (plan, record or
+                   conclude, whichever is next)
+  --policy FILE    the firm's non-statistical sampling policy for a new test
+
+Example:
+  tolrate supplier-invoice-approval.tolrate.json
+
 See: tolrate --help
 `;
 }
@@ -57,8 +67,12 @@ async function calculator(ctx: CommandContext, a: Asker): Promise<number> {
   return mod.run(args, ctx);
 }
 
-export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: InterviewOptions = {}): Promise<number> {
-  parseFlags('', args, {}, 0);
+export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: StageOptions = {}): Promise<number> {
+  const p = parseFlags('', args, { policy: { type: 'string' } }, 1);
+  const policy = str(p, 'policy');
+  if (policy) o = { ...o, policy };
+  const given = p.positionals[0];
+  if (given) return wholeInterview(ctx, a, { ...o, file: given });
   ctx.stdout.write('tolrate — tests of controls by attribute sampling\n\n');
   let files: string[] = [];
   try {
