@@ -145,7 +145,7 @@ function render(limit: UpperLimitResult, ev: LimitEvaluation | undefined): strin
     }
     rows.push([
       'Risk of overreliance',
-      `${pctUp(ev.overrelianceRisk, 2)} at the tolerable rate (allowable ${pctPlain(beta)})`,
+      `${pctUp(ev.overrelianceRisk)} (exact ${pctExact(ev.overrelianceRisk)}) at the tolerable rate (allowable ${pctPlain(beta)})`,
     ]);
     if (ev.decision.supported) {
       rows.push(['Extension needed', 'none']);
@@ -166,13 +166,13 @@ function render(limit: UpperLimitResult, ev: LimitEvaluation | undefined): strin
     if (ev.decision.supported) {
       lines.push(...wrap(
         `The results support the planned reliance on the control for this attribute: the upper deviation limit (${lim}) ` +
-          `does not exceed the tolerable rate (${tdr}), and the risk of overreliance (${pctUp(ev.overrelianceRisk, 2)}) is within ` +
+          `does not exceed the tolerable rate (${tdr}), and the risk of overreliance (${pctUp(ev.overrelianceRisk)}) is within ` +
           `the allowable ${pctPlain(beta)}. Review the cause of every deviation before concluding.`,
       ));
     } else {
       lines.push(...wrap(
         `The results do not support the planned reliance on the control for this attribute: the upper deviation limit (${lim}) ` +
-          `exceeds the tolerable rate (${tdr}), and the risk of overreliance (${pctUp(ev.overrelianceRisk, 2)}) is above the ` +
+          `exceeds the tolerable rate (${tdr}), and the risk of overreliance (${pctUp(ev.overrelianceRisk)}) is above the ` +
           `allowable ${pctPlain(beta)}.`,
       ));
       if (ev.extensionSize === null && ev.extensionNote) lines.push(...wrap(ev.extensionNote));

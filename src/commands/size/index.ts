@@ -1,7 +1,7 @@
 import { parseFlags, required, type FlagSpec } from '../../cli/args.js';
 import { UsageError } from '../../errors.js';
 import { expectedDeviations, overrelianceRisk, sampleSize, type SampleSizeResult } from '../../stats/index.js';
-import { int, pctPlain, pctUp } from '../../util/format.js';
+import { int, pctExact, pctPlain, pctUp } from '../../util/format.js';
 import { parsePercent } from '../../util/percent.js';
 import type { CommandContext } from '../types.js';
 import { block, CAUTION, modelFlag, modelNote, populationFlag } from './common.js';
@@ -97,7 +97,7 @@ function render(r: SampleSizeResult): string {
   ]);
   rows.push([
     'Achieved risk',
-    `${pctUp(r.achievedRisk, 2)} with ${r.expectedDeviations} deviation${r.expectedDeviations === 1 ? '' : 's'} in ${int(n)}; ` +
+    `${pctUp(r.achievedRisk)} (exact ${pctExact(r.achievedRisk)}) with ${r.expectedDeviations} deviation${r.expectedDeviations === 1 ? '' : 's'} in ${int(n)}; ` +
       `not above the allowable ${pctPlain(beta)}`,
   ]);
   if (n > 1) {
@@ -109,7 +109,7 @@ function render(r: SampleSizeResult): string {
       model: r.model,
       ...(r.populationSize !== undefined ? { populationSize: r.populationSize } : {}),
     });
-    rows.push([`Why not ${int(n - 1)}`, `the risk with ${k1} deviation${k1 === 1 ? '' : 's'} in ${int(n - 1)} would be ${pctUp(prev, 2)}, above ${pctPlain(beta)}`]);
+    rows.push([`Why not ${int(n - 1)}`, `the risk with ${k1} deviation${k1 === 1 ? '' : 's'} in ${int(n - 1)} would be ${pctUp(prev)} (exact ${pctExact(prev)}), above ${pctPlain(beta)}`]);
   }
   lines.push(...block(rows));
   const fpc = r.finitePopulationCorrection;
