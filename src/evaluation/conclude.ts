@@ -45,10 +45,16 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
     let byRates: boolean;
     if (illustrative) {
       byRates = ev.deviations === 0;
+      // A statistically sized sample chosen haphazardly has no firm-policy size to point to.
+      const nonStatistical = wp.approach?.kind === 'non-statistical';
       parts.push(
-        ev.deviations === 0
-          ? `No deviations in ${ev.sampleSize} items. The sample is non-statistical, so sampling risk is not quantified; the firm policy's size assumes no deviations.`
-          : `${ev.deviations} deviation(s) in ${ev.sampleSize} items. The sample is non-statistical and its size assumes no deviations, so the result does not support the planned reliance without a larger sample or other evidence.`,
+        nonStatistical
+          ? ev.deviations === 0
+            ? `No deviations in ${ev.sampleSize} items. The sample is non-statistical, so sampling risk is not quantified; the firm policy's size assumes no deviations.`
+            : `${ev.deviations} deviation(s) in ${ev.sampleSize} items. The sample is non-statistical and its size assumes no deviations, so the result does not support the planned reliance without a larger sample or other evidence.`
+          : ev.deviations === 0
+            ? `No deviations in ${ev.sampleSize} items. The selection was haphazard, so the result cannot support a statistical conclusion and sampling risk is not quantified.`
+            : `${ev.deviations} deviation(s) in ${ev.sampleSize} items. The selection was haphazard, so sampling risk is not quantified and the result does not support the planned reliance without a larger, randomly selected sample or other evidence.`,
       );
     } else {
       byRates = ev.supportedByRates;

@@ -28,6 +28,11 @@ export interface AttributeView {
   evaluation?: AttributeEvaluation;
   conclusion?: { supportsReliance: boolean; reasoning: string };
   decision: string;
+  /**
+   * Concluded as supporting reliance although the recorded evaluation does not: the rates (or, for
+   * an illustrative evaluation, any deviation) or an intentional or systemic deviation say otherwise.
+   */
+  againstEvidence: boolean;
   /** The placeholders of the per-attribute paragraphs. */
   values: Record<string, string | undefined>;
 }
@@ -40,6 +45,8 @@ export interface DeviationView {
   cause: string;
   intentional: string;
   pattern: string;
+  intentionalCode: string;
+  patternCode: string;
 }
 
 export interface ItemView {
@@ -174,6 +181,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
           cause: `${L.causes[r.cause]}${r.causeDetail ? `: ${r.causeDetail}` : ''}`,
           intentional: L.intent[r.intentional],
           pattern: L.patterns[r.pattern],
+          intentionalCode: r.intentional,
+          patternCode: r.pattern,
         });
       }
     }
@@ -188,9 +197,17 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     }
   }
 
-  const decisionFor = (ev: AttributeEvaluation | undefined, con: { supportsReliance: boolean } | undefined): string => {
+  /** Does the recorded evaluation, with the recorded causes, leave reliance unsupported? */
+  const evidenceAgainst = (attrId: string, ev: AttributeEvaluation | undefined): boolean => {
+    if (!ev) return false;
+    const byRates = ev.illustrative ? ev.deviations === 0 : ev.supportedByRates;
+    const escalated = deviations.some((d) => d.attributeId === attrId && (d.intentionalCode !== 'no' || d.patternCode === 'systemic'));
+    return !byRates || escalated;
+  };
+
+  const decisionFor = (attrId: string, ev: AttributeEvaluation | undefined, con: { supportsReliance: boolean } | undefined): string => {
     if (con) {
-      if (con.supportsReliance) return L.decisionSupported;
+      if (con.supportsReliance) return evidenceAgainst(attrId, ev) ? L.decisionAgainstEvidence : L.decisionSupported;
       return ev && !ev.illustrative && ev.supportedByRates ? L.decisionOverridden : L.decisionNotSupported;
     }
     if (ev) return (ev.illustrative ? ev.deviations === 0 : ev.supportedByRates) ? L.decisionSupported : L.decisionNotSupported;
@@ -209,13 +226,14 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
       n++;
       if (r.result === 'deviation') k++;
     }
-    const decision = decisionFor(ev, con);
+    const decision = decisionFor(attr.id, ev, con);
     const view: AttributeView = {
       attribute: attr,
       tolerableRate: tdr,
       tested: n,
       deviations: k,
       decision,
+      againstEvidence: con?.supportsReliance === true && evidenceAgainst(attr.id, ev),
       values: {
         attributeId: attr.id,
         attributeDescription: attr.description,
@@ -332,6 +350,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     testedItems: wp.results ? int(tested.length) : undefined,
     totalDeviations: wp.results ? int(deviations.length) : undefined,
     attributesNotSupported: notSupported.length ? notSupported.join(', ') : undefined,
+    attributesAgainstEvidence: attributes.some((x) => x.againstEvidence) ? attributes.filter((x) => x.againstEvidence).map((x) => x.attribute.id).join(', ') : undefined,
     controlConclusion: wp.conclusion?.control.text,
     severity: sev ? L.severities[sev.classification] : undefined,
     followUpsSection: undefined, // set by the renderer, which numbers the sections

@@ -250,6 +250,17 @@ class Builder {
   }
 }
 
+/**
+ * Width in twips of an Appendix A result column: the longest word at 8 pt bold, taken at 0.6 em a
+ * character (wider than the average bold sans-serif letter), plus the cell margins (2 × 90) and a
+ * little slack. "Deviation" is about 4.5 em (36 pt = 720 twips) in Arial bold, exactly the room a
+ * 900-twip column leaves, so it used to wrap.
+ */
+export function resultColumnWidth(words: readonly string[]): number {
+  const longest = Math.max(0, ...words.map((w) => [...w].length));
+  return Math.max(1000, Math.ceil(longest * 0.6 * 8 * 20) + 180 + 60);
+}
+
 export interface RenderOptions {
   /** Whether to draw the chart (default true). */
   chart?: boolean;
@@ -356,8 +367,12 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     const differs = (tie.countDifference ?? 0) !== 0 || (tie.totalDifference !== undefined && !/^-?0+(\.0+)?$/.test(tie.totalDifference));
     b.ps(noLedger ? T.tieOutNone : differs ? T.tieOutDifferences : T.tieOutAgreed);
     if (!differs && tie.explanation) b.p(`${L.explanation}: ${tie.explanation}`);
-    if (pop.validation.ok && pop.validation.messages.length === 0) b.ps(T.validationOk);
-    else {
+    // A check that passed may still carry notes (e.g. how the delimiter was found): they are listed
+    // under the 'no problems' text, never presented as problems the preparer had to accept.
+    if (pop.validation.ok) {
+      b.ps(T.validationOk);
+      if (pop.validation.messages.length) b.bullets(pop.validation.messages);
+    } else {
       b.ps(T.validationProblems);
       b.bullets(pop.validation.messages.length ? pop.validation.messages : [L.notRecorded]);
     }
@@ -378,7 +393,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
       [L.allowedRisk, a.kind === 'statistical' ? b.v(values.risk) : undefined],
       [L.tolerableRate, pct(a.tolerableRate)],
       [L.expectedRate, pct(a.expectedRate)],
-      [L.model, L.models[a.model]],
+      [L.model, a.kind === 'statistical' ? L.models[a.model] : `${L.models[a.model]} (${L.illustrative})`],
       [L.populationSize, a.model === 'hypergeometric' ? `N = ${b.v(values.populationSize)}` : undefined],
       [L.sampleSize, { text: int(a.sampleSize), bold: true }],
       [L.spares, values.spares],
@@ -492,7 +507,11 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
       if (!m.illustrative) b.ps(T.decisionRule);
       if (caveat) b.p(b.f(caveat.resultsNote), { bold: true });
       if (m.nonStatistical && m.haphazard) b.p(b.f(O.haphazard.resultsNote), { bold: true });
-      if (!m.draft && !m.illustrative) b.ps(m.outcome === 'supported' ? O.supported.resultsSummary : O['not-supported'].resultsSummary);
+      // A conclusion of reliance that the recorded evaluation does not bear out is said plainly,
+      // in place of the summary that would claim every attribute passed.
+      const against = m.attributes.some((x) => x.againstEvidence);
+      if (against) b.ps(T.againstEvidence);
+      else if (!m.draft && !m.illustrative) b.ps(m.outcome === 'supported' ? O.supported.resultsSummary : O['not-supported'].resultsSummary);
       for (const x of m.attributes) {
         const ev = x.evaluation!;
         if (!ev.illustrative && !ev.supportedByRates && ev.extension !== null && ev.extension > 0) b.ps(T.extension, x.values);
@@ -560,7 +579,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   b.h1(H.qualitative);
   const con = wp.conclusion;
   if (con) {
-    b.ps(T.qualitative);
+    b.ps(m.deviations.length > 0 ? T.qualitative : T.deviationsNone);
     b.kv(
       [
         [L.intentionalFound, { text: con.qualitative.intentionalFound ? L.yes : L.no, bold: con.qualitative.intentionalFound }],
@@ -576,6 +595,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   b.h1(H.conclusion);
   if (con && !m.draft) {
     b.p(b.f(m.outcome === 'supported' ? O.supported.verdict : O['not-supported'].verdict), { bold: true });
+    if (m.attributes.some((x) => x.againstEvidence)) b.ps(T.againstEvidence);
     b.p(`**${L.recordedConclusion}:** ${con.control.text}`);
     if (m.nonStatistical) b.p(b.f(O['non-statistical'].conclusionNote), { italics: true });
     if (m.haphazard) b.p(b.f(O.haphazard.conclusionNote), { italics: true });
@@ -631,7 +651,8 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
         con.severity.answers.map((x) => [x.question, x.answer]),
       );
     }
-  } else b.note(b.f(T.severityMissing));
+  } else if (con && !m.draft && m.outcome === 'supported' && !m.attributes.some((x) => x.againstEvidence)) b.ps(T.severityNotNeeded);
+  else b.note(b.f(T.severityMissing));
 
   // 12. Responsibility.
   b.h1(H.responsibility);
@@ -693,10 +714,11 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   if (m.items.length === 0) b.note(b.f(T.appendixItemsMissing));
   else {
     b.ps(T.appendixItems);
-    // Widths in twips: fixed columns, 900 per attribute (room for "Conforms"/"Deviation" at 8 pt),
-    // the rest for void reasons. More attributes than fit go to a further table with the same rows.
-    const fixed = [520, 1400, 680, 1000];
-    const perAttr = 900;
+    // Widths in twips: fixed columns, one column per attribute wide enough for the longest result
+    // word in bold at 8 pt on one line, the rest for void reasons. More attributes than fit go to a
+    // further table with the same rows.
+    const fixed = [520, 1400, 680, 1150];
+    const perAttr = resultColumnWidth([L.resultConforms, L.resultDeviation, L.resultVoid, L.resultMissing, ...m.attributes.map((x) => x.attribute.id)]);
     const minNote = 1250;
     const fit = Math.max(1, Math.floor((b.width - fixed.reduce((x, y) => x + y, 0) - minNote) / perAttr));
     const groups: number[][] = [];
@@ -872,6 +894,7 @@ function assemble(b: Builder, m: MemoModel, t: MemoTemplate): Document {
     title: `${fill(W.title, b.values, L.notRecorded)} — ${b.values.reference ?? ''}`.trim(),
     subject: b.values.controlId ? `${L.control} ${b.values.controlId}` : undefined,
     creator: 'tolrate',
+    lastModifiedBy: 'tolrate',
     description: fill(W.subtitle, b.values, L.notRecorded),
     ...(t.externalStyles ? { externalStyles: t.externalStyles } : {}),
     styles,

@@ -22,9 +22,10 @@ describe('a supported statistical test', () => {
     expect(doc.text).toContain('Performed late: receiving clerk on leave');
   });
 
-  it('says the severity is not applicable only by leaving it unrecorded, and the reviewer line blank', async () => {
+  it('says no severity classification was needed (not that one is missing), and leaves the reviewer line blank', async () => {
     const { doc } = await memoOf({ variant: 'supported' });
-    expect(doc.text).toContain('The severity of the deficiency has not been recorded yet.');
+    expect(doc.text).toContain((await loadTemplate()).memo.text.severityNotNeeded);
+    expect(doc.text).not.toContain('The severity of the deficiency has not been recorded yet.');
     const signoff = findTable(doc.xml, ['Role', 'Name', 'Signature', 'Date']);
     expect(rowByFirstCell(signoff, 'Prepared by').Date).toBe('2026-02-12');
     expect(rowByFirstCell(signoff, 'Reviewed by').Date).toBe('');
@@ -140,7 +141,7 @@ describe('other records', () => {
     const f = build({ variant: 'supported' });
     const wp = { ...f.wp, selection: { ...f.wp.selection!, method: 'systematic' as const, interval: 14.9397, starts: [7.25] } };
     const doc = await readDocx(await renderMemo(wp, { workpaperPath: f.path }));
-    expect(doc.text).toContain('The items were selected systematically, every 14.9397 items from a random start, with random-v1 and the seed 20260120-C310');
+    expect(doc.text).toContain('The items were selected systematically, every 14.9397 items from each random start, with random-v1 and the seed 20260120-C310');
     expect(doc.text).toContain('systematic (random start)');
     expect(doc.text).toContain('7.25');
   });
