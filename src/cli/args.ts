@@ -1,22 +1,10 @@
 import { parseArgs } from 'node:util';
 import { UsageError } from '../errors.js';
+import { editDistance } from '../util/text.js';
 
 export type FlagSpec = Record<string, { type: 'string' | 'boolean'; short?: string; multiple?: boolean }>;
 
-/** Edit distance, for "did you mean" suggestions. */
-export function editDistance(a: string, b: string): number {
-  const m = a.length;
-  const n = b.length;
-  let prev = Array.from({ length: n + 1 }, (_, j) => j);
-  for (let i = 1; i <= m; i++) {
-    const cur = [i];
-    for (let j = 1; j <= n; j++) {
-      cur[j] = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (a[i - 1] === b[j - 1] ? 0 : 1));
-    }
-    prev = cur;
-  }
-  return prev[n]!;
-}
+export { editDistance };
 
 function commonPrefix(a: string, b: string): number {
   let i = 0;

@@ -20,6 +20,7 @@ import { existsSync, readFileSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
+import { editDistance } from '../util/text.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import {
   CAUSES,
@@ -280,17 +281,6 @@ function keyPath(path: readonly PropertyKey[]): string {
   return s || '(top level)';
 }
 
-function editDistance(a: string, b: string): number {
-  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
-  for (let i = 1; i <= a.length; i++) {
-    const cur = [i];
-    for (let j = 1; j <= b.length; j++) {
-      cur[j] = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (a[i - 1] === b[j - 1] ? 0 : 1));
-    }
-    prev = cur;
-  }
-  return prev[b.length]!;
-}
 
 function suggestion(name: string, known: readonly string[]): string {
   let best = '';

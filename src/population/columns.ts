@@ -1,4 +1,6 @@
 import { FileInputError } from '../errors.js';
+import { basename } from 'node:path';
+import { editDistance } from '../util/text.js';
 
 /** Header names as the population will show them, with the fixes noted. */
 export interface HeaderNames {
@@ -32,17 +34,6 @@ export function headerNames(raw: string[]): HeaderNames {
   return { names, notes };
 }
 
-function distance(a: string, b: string): number {
-  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
-  for (let i = 1; i <= a.length; i++) {
-    const cur = [i];
-    for (let j = 1; j <= b.length; j++) {
-      cur[j] = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (a[i - 1] === b[j - 1] ? 0 : 1));
-    }
-    prev = cur;
-  }
-  return prev[b.length]!;
-}
 
 /** The column name closest to `word` (ignoring case, spaces, _ and -), if any is reasonably close. */
 export function nearestColumn(word: string, names: readonly string[]): string | undefined {
@@ -53,7 +44,7 @@ export function nearestColumn(word: string, names: readonly string[]): string | 
   for (const n of names) {
     const c = norm(n);
     if (c === '' || w === '') continue;
-    const d = c.includes(w) || w.includes(c) ? Math.min(1, distance(w, c)) : distance(w, c);
+    const d = c.includes(w) || w.includes(c) ? Math.min(1, editDistance(w, c)) : editDistance(w, c);
     // Close enough: at most 2 edits, or up to 40% of the longer name.
     if (d > Math.max(2, Math.floor(0.4 * Math.max(w.length, c.length)))) continue;
     const score = d / Math.max(w.length, c.length);
@@ -80,4 +71,26 @@ export function findColumn(names: readonly string[], wanted: string, role: strin
   const details = [`Columns in ${file}: ${names.map((n) => `"${n}"`).join(', ') || '(none)'}`];
   if (guess) details.push(`Did you mean "${guess}"?`);
   throw new FileInputError(file, `The ${role} column "${wanted}" is not in ${file}.`, details);
+}
+
+/** The header of a file resolved against the columns a source names. */
+export interface ResolvedColumns {
+  names: string[];
+  notes: string[];
+  key: number;
+  amount?: number;
+  date?: number;
+}
+
+/** Find the key, amount and date columns of a source in a header; unknown names are a FileInputError. */
+export function resolveColumns(
+  src: { path: string; keyColumn: string; amountColumn?: string; dateColumn?: string },
+  raw: string[],
+): ResolvedColumns {
+  const { names, notes } = headerNames(raw);
+  const file = basename(src.path);
+  const r: ResolvedColumns = { names, notes, key: findColumn(names, src.keyColumn, 'key', file) };
+  if (src.amountColumn !== undefined) r.amount = findColumn(names, src.amountColumn, 'amount', file);
+  if (src.dateColumn !== undefined) r.date = findColumn(names, src.dateColumn, 'date', file);
+  return r;
 }

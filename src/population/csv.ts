@@ -5,7 +5,7 @@ import { stat } from 'node:fs/promises';
 import { basename, resolve as resolvePath } from 'node:path';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { CsvTokenizer } from './csv-tokenizer.js';
-import { findColumn, headerNames } from './columns.js';
+import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { buildValidation, csvKeyText, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
 import { fileError, forEachChunk, openFile } from './file.js';
 import type { Reporter } from './progress.js';
@@ -224,22 +224,6 @@ function headerOf(t: CsvTokenizer): string[] {
   return out;
 }
 
-interface ResolvedCsv {
-  names: string[];
-  notes: string[];
-  key: number;
-  amount?: number;
-  date?: number;
-}
-
-function resolve(src: CsvSource, raw: string[]): ResolvedCsv {
-  const { names, notes } = headerNames(raw);
-  const file = basename(src.path);
-  const r: ResolvedCsv = { names, notes, key: findColumn(names, src.keyColumn, 'key', file) };
-  if (src.amountColumn !== undefined) r.amount = findColumn(names, src.amountColumn, 'amount', file);
-  if (src.dateColumn !== undefined) r.date = findColumn(names, src.dateColumn, 'date', file);
-  return r;
-}
 
 /** Pass 1 over a CSV file: SHA-256, count, first/last key, validation; pass 1b only for duplicates. */
 export async function scanCsv(src: CsvSource, report: Reporter): Promise<PopulationScan> {
@@ -247,7 +231,7 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
   // A big file is hashed by a worker thread beside the main pass; a small one on the way through.
   const inWorker = sizeAtStart >= WORKER_MIN_BYTES ? hashFileInWorker(src.path) : undefined;
   const hash = inWorker ? undefined : createHash('sha256');
-  let resolved: ResolvedCsv | undefined;
+  let resolved: ResolvedColumns | undefined;
   let checker: RowChecker | undefined;
   const blankLines = new Problems();
   let header: string[] = [];
@@ -260,7 +244,7 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
       chunk: hash ? (c) => hash.update(c) : undefined,
       header: (t) => {
         header = headerOf(t);
-        resolved = resolve(src, header);
+        resolved = resolveColumns(src, header);
         checker = new RowChecker({
           width: resolved.names.length,
           key: resolved.key,
@@ -418,7 +402,7 @@ export async function readCsvRowsAt(
     const rows = await readWithIndex(src, delimiter, picker, report);
     if (rows !== undefined) return rows;
   }
-  let r: ResolvedCsv | undefined;
+  let r: ResolvedColumns | undefined;
   const hash = verify ? createHash('sha256') : undefined;
   const w = await walk(
     src.path,
@@ -426,7 +410,7 @@ export async function readCsvRowsAt(
     {
       chunk: hash ? (c) => hash.update(c) : undefined,
       header: (t) => {
-        r = resolve(src, headerOf(t));
+        r = resolveColumns(src, headerOf(t));
       },
       row: (t, position) => {
         if (!picker.wants(position)) return !hash && picker.finished ? false : undefined;
@@ -448,7 +432,7 @@ async function readWithIndex(src: CsvSource, delimiter: string, picker: RowPicke
   const { fh, size, stats } = await openFile(src.path);
   try {
     if (stats.size !== idx.size || stats.mtimeMs !== idx.mtimeMs || stats.ino !== idx.ino) return undefined;
-    const r = resolve(src, idx.header);
+    const r = resolveColumns(src, idx.header);
     const want = picker.sorted.filter((p) => p < idx.rows);
     let done = 0;
     let i = 0;
@@ -487,13 +471,13 @@ async function readWithIndex(src: CsvSource, delimiter: string, picker: RowPicke
 /** Find the rows of the given keys (haphazard selection). */
 export async function findCsvKeys(src: CsvSource, finder: KeyFinder, report: Reporter): Promise<KeyLookup> {
   const delimiter = await delimiterFor(src);
-  let r: ResolvedCsv | undefined;
+  let r: ResolvedColumns | undefined;
   const w = await walk(
     src.path,
     delimiter,
     {
       header: (t) => {
-        r = resolve(src, headerOf(t));
+        r = resolveColumns(src, headerOf(t));
       },
       row: (t, position) => {
         const key = csvKeyText(t, r!.key);

@@ -2,7 +2,7 @@ import { createReadStream } from 'node:fs';
 import { basename } from 'node:path';
 import { FileInputError } from '../errors.js';
 import { buildValidation, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
-import { findColumn, headerNames } from './columns.js';
+import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { fileError, openFile } from './file.js';
 import { hashFileHere } from './hash.js';
 import { hashString } from './key-index.js';
@@ -179,22 +179,6 @@ async function sha256File(path: string): Promise<string> {
   return (await hashFileHere(path)).sha256;
 }
 
-interface Resolved {
-  names: string[];
-  notes: string[];
-  key: number;
-  amount?: number;
-  date?: number;
-}
-
-function resolve(src: XlsxSource, raw: string[]): Resolved {
-  const { names, notes } = headerNames(raw);
-  const file = basename(src.path);
-  const r: Resolved = { names, notes, key: findColumn(names, src.keyColumn, 'key', file) };
-  if (src.amountColumn !== undefined) r.amount = findColumn(names, src.amountColumn, 'amount', file);
-  if (src.dateColumn !== undefined) r.date = findColumn(names, src.dateColumn, 'date', file);
-  return r;
-}
 
 function valuesOf(names: string[], values: string[]): Record<string, string> {
   const out: Record<string, string> = {};
@@ -206,14 +190,14 @@ function valuesOf(names: string[], values: string[]): Record<string, string> {
 
 export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<PopulationScan> {
   const sha256 = await sha256File(src.path);
-  let r: Resolved | undefined;
+  let r: ResolvedColumns | undefined;
   let c: RowChecker | undefined;
   const blankRows = new Problems();
   const w = await walk(
     src,
     {
       header: (values) => {
-        r = resolve(src, values);
+        r = resolveColumns(src, values);
         c = new RowChecker({
           width: r.names.length,
           key: r.key,
@@ -319,12 +303,12 @@ export async function readXlsxRowsAt(
   verify?: (sha256: string) => void,
 ): Promise<number> {
   if (verify) verify(await sha256File(src.path));
-  let r: Resolved | undefined;
+  let r: ResolvedColumns | undefined;
   const w = await walk(
     src,
     {
       header: (values) => {
-        r = resolve(src, values);
+        r = resolveColumns(src, values);
       },
       row: (values, row, position) => {
         if (picker.wants(position)) {
@@ -340,12 +324,12 @@ export async function readXlsxRowsAt(
 }
 
 export async function findXlsxKeys(src: XlsxSource, finder: KeyFinder, report: Reporter): Promise<KeyLookup> {
-  let r: Resolved | undefined;
+  let r: ResolvedColumns | undefined;
   const w = await walk(
     src,
     {
       header: (values) => {
-        r = resolve(src, values);
+        r = resolveColumns(src, values);
       },
       row: (values, row, position) => {
         const key = (values[r!.key] ?? '').trim();

@@ -6,7 +6,6 @@
 import { randomUUID } from 'node:crypto';
 import { closeSync, fsyncSync, openSync, readFileSync, renameSync, unlinkSync, writeSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
-import * as z from 'zod';
 import { FileInputError } from '../errors.js';
 import { SCHEMA_VERSION, Workpaper } from './schema.js';
 import { nextEntry, replay } from './log.js';

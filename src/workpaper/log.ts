@@ -13,7 +13,6 @@ import type { LogChange, LogEntry } from './schema.js';
 
 export const GENESIS_HASH = '0'.repeat(64);
 
-type Json = null | boolean | number | string | Json[] | { [k: string]: Json };
 type Path = Array<string | number>;
 
 /** JSON with keys sorted at every level and undefined members dropped: one text per value. */
