@@ -1,8 +1,6 @@
 import { resolve } from 'node:path';
 import { parseFlags, str } from '../../cli/args.js';
 import { UsageError } from '../../errors.js';
-import { loadTemplate, memoModel, writeMemo } from '../../memo/index.js';
-import { loadWorkpaper } from '../../workpaper/file.js';
 import type { CommandContext } from '../types.js';
 
 export function help(): string {
@@ -55,6 +53,9 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const templateDir = str(p, 'template');
   if (out === '') throw new UsageError('tolrate memo: --out needs a file name.', ['See: tolrate memo --help']);
   if (templateDir === '') throw new UsageError('tolrate memo: --template needs a folder.', ['See: tolrate memo --help']);
+  // Loaded here, not at the top, so that `tolrate memo --help` does not load docx.
+  const { loadWorkpaper } = await import('../../workpaper/file.js');
+  const { loadTemplate, memoModel, writeMemo } = await import('../../memo/index.js');
   const workpaper = loadWorkpaper(workpaperPath);
   const dir = templateDir !== undefined ? resolve(ctx.cwd, templateDir) : undefined;
   const template = await loadTemplate(dir);
