@@ -70,9 +70,21 @@ export function firstOpen(wp: Workpaper, steps: readonly StepName[] = STEPS): St
   return steps.find((st) => !isAnswered(wp, st));
 }
 
-/** Steps whose answers would be invalid if `step` changed (engagement and control change nothing below). */
-function dependents(step: StepName): StepName[] {
-  if (step === 'plan.engagement' || step === 'plan.control') return [];
+/**
+ * Steps whose answers would be invalid if `step` changed to `value`. The engagement changes
+ * nothing below. The control changes the approach onwards only when a non-statistical size was
+ * read from the firm's policy for its frequency and the frequency changed. The attributes do not
+ * change the population (only the sizes, the sheet's result columns and what follows).
+ */
+export function dependents(step: StepName, wp?: Workpaper, value?: unknown): StepName[] {
+  const from = (first: StepName) => STEPS.slice(STEPS.indexOf(first)).filter((x) => x !== 'signoff');
+  if (step === 'plan.engagement') return [];
+  if (step === 'plan.control') {
+    const freq = (value as { frequency?: string } | undefined)?.frequency;
+    const ap = wp?.approach;
+    return ap?.kind === 'non-statistical' && ap.policy && freq !== undefined && freq !== ap.policy.frequency ? from('plan.approach') : [];
+  }
+  if (step === 'plan.attributes') return from('plan.approach');
   const i = STEPS.indexOf(step);
   return STEPS.slice(i + 1).filter((x) => x !== 'signoff');
 }
@@ -113,7 +125,7 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
       s.save(step);
       return 'done';
     }
-    const later = dependents(step).filter((d) => STEP_MEMBERS[d].some((m) => (s.wp as Record<string, unknown>)[m] !== undefined));
+    const later = dependents(step, s.wp, value).filter((d) => STEP_MEMBERS[d].some((m) => (s.wp as Record<string, unknown>)[m] !== undefined));
     if (revisit && later.length > 0) {
       s.print('', `  This change makes the later steps out of date: ${later.map((d) => STEP_LABELS[d]).join(', ')}. They will be cleared and asked again.`);
       const go = await s.asker.confirm({ id: `${step}.clearLater`, message: 'Make the change?', default: false });

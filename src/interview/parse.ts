@@ -46,26 +46,48 @@ export interface RateLimits {
   /** The rate must be at least this. */
   atLeast?: number;
   atLeastWhat?: string;
+  /** A typical answer for this field, shown when the answer is not a number (default 6). */
+  example?: string;
+}
+
+/** `what (value)`, or just `what` when it already states the value: never "50% (50%)". */
+function named(what: string | undefined, value: number): string {
+  const v = pctPlain(value);
+  if (what === undefined || what === v) return v;
+  return what.includes(v) ? what : `${what} (${v})`;
+}
+
+/** An answer meaning "none" for an optional question that shows an earlier answer as its default. */
+export const NONE_ANSWER = '-';
+
+function isNone(t: string): boolean {
+  const v = t.trim();
+  return v === '' || v === NONE_ANSWER;
 }
 
 /** A percentage typed as `6` or `6%`, returned as a fraction. */
 export function rate(field: string, limits: RateLimits = {}): (t: string) => number {
+  const example = limits.example ?? '6';
   return (t) => {
+    if (t.trim() === '') throw new AnswerError(`${field}: type a percentage, e.g. ${example} or ${example}%.`);
+    if (!/^\s*[+]?(\d+(\.\d*)?|\.\d+)\s*%?\s*$/.test(t)) {
+      throw new AnswerError(`${field}: "${t}" is not a percentage. Type a number such as ${example} or ${example}% (meaning ${example}%).`);
+    }
     const v = rethrow(() => parsePercent(t, field, { allowZero: limits.allowZero ?? false }));
     if (limits.below !== undefined && !(v < limits.below)) {
-      throw new AnswerError(`${field}: ${pctPlain(v)} must be below ${limits.belowWhat ?? pctPlain(limits.below)} (${pctPlain(limits.below)}).`);
+      throw new AnswerError(`${field}: ${pctPlain(v)} must be below ${named(limits.belowWhat, limits.below)}.`);
     }
     if (limits.atLeast !== undefined && v < limits.atLeast) {
-      throw new AnswerError(`${field}: ${pctPlain(v)} must be at least ${limits.atLeastWhat ?? pctPlain(limits.atLeast)} (${pctPlain(limits.atLeast)}).`);
+      throw new AnswerError(`${field}: ${pctPlain(v)} must be at least ${named(limits.atLeastWhat, limits.atLeast)}.`);
     }
     return v;
   };
 }
 
-/** An optional percentage: an empty answer is undefined. */
+/** An optional percentage: an empty answer (or `-`, to clear an earlier answer shown as the default) is undefined. */
 export function optionalRate(field: string, limits: RateLimits = {}): (t: string) => number | undefined {
   const p = rate(field, limits);
-  return (t) => (t.trim() === '' ? undefined : p(t));
+  return (t) => (isNone(t) ? undefined : p(t));
 }
 
 export function count(field: string, opts: { min?: number; max?: number; maxWhat?: string } = {}): (t: string) => number {
@@ -80,7 +102,7 @@ export function count(field: string, opts: { min?: number; max?: number; maxWhat
 
 export function optionalCount(field: string, opts: { min?: number; max?: number; maxWhat?: string } = {}): (t: string) => number | undefined {
   const p = count(field, opts);
-  return (t) => (t.trim() === '' ? undefined : p(t));
+  return (t) => (isNone(t) ? undefined : p(t));
 }
 
 /** True for a real calendar date written YYYY-MM-DD. */
@@ -106,7 +128,7 @@ export function date(field: string, opts: { notBefore?: string; notBeforeWhat?: 
 
 export function optionalDate(field: string, opts: { notBefore?: string; notBeforeWhat?: string } = {}): (t: string) => string | undefined {
   const p = date(field, opts);
-  return (t) => (t.trim() === '' ? undefined : p(t));
+  return (t) => (isNone(t) ? undefined : p(t));
 }
 
 /** An amount such as `1,234.50` or `-12`, returned as a decimal string without separators. */
@@ -120,7 +142,7 @@ export function decimal(field: string): (t: string) => string {
 
 export function optionalDecimal(field: string): (t: string) => string | undefined {
   const p = decimal(field);
-  return (t) => (t.trim() === '' ? undefined : p(t));
+  return (t) => (isNone(t) ? undefined : p(t));
 }
 
 /** An existing file, typed relative to `baseDir`; returns the absolute path. */

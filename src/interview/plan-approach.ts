@@ -118,7 +118,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     message: 'Confidence (%)',
     help: 'Usually 90 or 95. The planned risk of overreliance is 100% minus this.',
     default: wasStat ? pctPlain(wasStat.confidence) : '95',
-    parse: rate('Confidence', { atLeast: 0.5, atLeastWhat: '50%, below which a sample gives no assurance' }),
+    parse: rate('Confidence', { atLeast: 0.5, atLeastWhat: '50%, below which a sample gives no assurance', example: '95' }),
   });
   const own = attrs.filter((x) => x.tolerableRate !== undefined);
   const tolerableRate = await a.text({
@@ -129,11 +129,14 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     parse: rate('Tolerable rate', { below: 0.5, belowWhat: '50%' }),
   });
   const lowest = Math.min(...attrs.map((x) => x.tolerableRate ?? tolerableRate));
-  const lowestWhat = lowest === tolerableRate ? 'the tolerable rate' : `the lowest tolerable rate of an attribute (${attrs.find((x) => (x.tolerableRate ?? tolerableRate) === lowest)!.id})`;
+  const lowestId = attrs.find((x) => (x.tolerableRate ?? tolerableRate) === lowest)!.id;
+  const lowestWhat = lowest === tolerableRate ? 'the tolerable rate' : `${lowestId}'s own tolerable rate`;
   const expectedRate = await a.text({
     id: 'plan.approach.expectedRate',
     message: 'Expected deviation rate (%)',
-    help: 'The deviation rate you expect from prior years or a walkthrough; 0 if none. Must be below the tolerable rate.',
+    help:
+      'The deviation rate you expect from prior years or a walkthrough; 0 if none. Must be below the tolerable rate' +
+      (lowest === tolerableRate ? '.' : ` and below ${lowestId}'s own tolerable rate of ${pctPlain(lowest)} (set at the Attributes step).`),
     default: wasStat ? pctPlain(wasStat.expectedRate) : '0',
     parse: rate('Expected rate', { allowZero: true, below: lowest, belowWhat: lowestWhat }),
   });

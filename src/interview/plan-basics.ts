@@ -4,7 +4,8 @@
 import { FREQUENCIES, NATURES, type Attribute, type Control, type Engagement, type Frequency } from '../workpaper/schema.js';
 import { pctPlain } from '../util/format.js';
 import type { Session } from './session.js';
-import { date, optionalRate, requiredText } from './parse.js';
+import { wrap } from './show.js';
+import { date, NONE_ANSWER, optionalRate, requiredText } from './parse.js';
 
 export const FREQUENCY_LABELS: Record<Frequency, string> = {
   annual: 'Annual',
@@ -20,6 +21,11 @@ export const NATURE_LABELS: Record<(typeof NATURES)[number], string> = {
   automated: 'Automated',
   'it-dependent-manual': 'IT-dependent manual',
 };
+
+export const AUTOMATED_NOTE =
+  'Note: an automated control is usually tested by examining one operation of it together with the IT general ' +
+  'controls over it, rather than by a sample; whether sampling is the right test is your judgement under the ' +
+  "firm's methodology.";
 
 export async function askEngagement(s: Session): Promise<Engagement> {
   const a = s.asker;
@@ -81,6 +87,11 @@ export async function askControl(s: Session): Promise<Control> {
     choices: NATURES.map((n) => ({ value: n, name: NATURE_LABELS[n] })),
     ...(old ? { default: old.nature } : {}),
   });
+  if (nature === 'automated') {
+    // Common practice, no single source: an automated control is usually tested by one
+    // operation plus the IT general controls over it, rather than by attribute sampling.
+    s.print(...wrap(AUTOMATED_NOTE, 92, '  '));
+  }
   const key = await a.confirm({ id: 'plan.control.key', message: 'Is it a key control?', default: old?.key ?? true });
   return { id, description, objective, owner, frequency, nature, key };
 }
@@ -112,9 +123,11 @@ export async function askAttributes(s: Session): Promise<Attribute[]> {
     const tolerableRate = await a.text({
       id: `plan.attributes.${id}.tolerableRate`,
       message: `${id}: its own tolerable deviation rate, if it differs from the test's (blank = the test's)`,
-      help: 'A percentage such as 6 or 6%. Leave blank to use the rate set for the whole test at the approach step.',
+      help:
+        'A percentage such as 6 or 6%. Leave blank to use the rate set for the whole test at the approach step.' +
+        (prev?.tolerableRate !== undefined ? `\nType ${NONE_ANSWER} to drop its own rate of ${pctPlain(prev.tolerableRate)} and use the test's.` : ''),
       default: prev?.tolerableRate !== undefined ? pctPlain(prev.tolerableRate) : '',
-      parse: optionalRate(`${id} tolerable rate`),
+      parse: optionalRate(`${id} tolerable rate`, { below: 0.5, belowWhat: '50%' }),
     });
     out.push({ id, description, deviationDefinition, ...(tolerableRate !== undefined ? { tolerableRate } : {}) });
     const more = await a.confirm({ id: `plan.attributes.more.${id}`, message: 'Add another attribute?', default: old.length > i });

@@ -10,7 +10,7 @@ import { TolrateInputError } from '../errors.js';
 import type { Population, PopulationSource } from '../workpaper/schema.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
-import { existingFile, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
+import { existingFile, NONE_ANSWER, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
 import { csvColumns, xlsxColumns } from './columns.js';
 import { wrap } from './show.js';
 
@@ -54,7 +54,8 @@ export function scanLines(scan: PopulationScan): string[] {
   if (v.ok) lines.push('  Validation: no problems found.');
   else {
     lines.push('  Validation found problems:');
-    for (const m of v.messages) lines.push(...wrap(m, 92, '    - ').map((l, i) => (i === 0 ? l : `      ${l.trimStart()}`)));
+    // The bullet on the first line only; its continuation lines are indented under the text.
+    for (const m of v.messages) lines.push(...wrap(m, 92, '      ').map((l, i) => (i === 0 ? `    - ${l.slice(6)}` : l)));
   }
   for (const n of v.notes) lines.push(...wrap(`Note: ${n}`, 92, '    '));
   return lines;
@@ -242,7 +243,7 @@ export async function askPopulation(s: Session): Promise<Population> {
   s.print('  Agree the population to the ledger: enter the figures the ledger (or system report) shows.');
   const ledgerCount = await a.text({
     id: 'plan.population.ledgerCount',
-    message: `Ledger count of items (the population has ${int(f.rowCount)}; blank = not available)`,
+    message: `Ledger count of items (the population has ${int(f.rowCount)}; ${old?.tieOut.ledgerCount !== undefined ? `${NONE_ANSWER}` : 'blank'} = not available)`,
     default: old?.tieOut.ledgerCount !== undefined ? String(old.tieOut.ledgerCount) : '',
     parse: optionalCount('The ledger count'),
   });
@@ -250,7 +251,7 @@ export async function askPopulation(s: Session): Promise<Population> {
     f.amountTotal !== undefined
       ? await a.text({
           id: 'plan.population.ledgerTotal',
-          message: `Ledger total (the population totals ${groupDigits(f.amountTotal)}; blank = not available)`,
+          message: `Ledger total (the population totals ${groupDigits(f.amountTotal)}; ${old?.tieOut.ledgerTotal !== undefined ? `${NONE_ANSWER}` : 'blank'} = not available)`,
           default: old?.tieOut.ledgerTotal ?? '',
           parse: optionalDecimal('The ledger total'),
         })

@@ -24,6 +24,7 @@ import { AnswerError, count, requiredText } from './parse.js';
 import { readSource } from './plan-population.js';
 import { resultColumns, SHEET_CONVENTIONS } from './sheet-results.js';
 import { table, wrap } from './show.js';
+import { XLSX_SHEET_NOTE } from './record.js';
 
 /** The default fieldwork sheet for a workpaper: `NAME.fieldwork.csv` beside `NAME.tolrate.json`. */
 export function defaultSheetName(workpaperPath: string): string {
@@ -223,7 +224,8 @@ export async function askSelection(s: Session): Promise<Selection> {
     ],
   });
   const rel = relative(s.dir, sheetAbs).split(sep).join('/') || sheetAbs;
-  s.print(`  Fieldwork sheet written: ${rel}`, ...SHEET_CONVENTIONS.map((l) => `    ${l}`));
+  s.print(`  Fieldwork sheet written: ${rel}`, ...SHEET_CONVENTIONS.flatMap((l) => wrap(l, 92, '    ')));
+  if (extname(sheetAbs).toLowerCase() === '.xlsx') s.print(...wrap(`Note: ${XLSX_SHEET_NOTE}`, 92, '  '));
   return {
     method: drawn.method,
     algorithm: drawn.algorithm,

@@ -8,7 +8,7 @@ import { isAbsolute, relative, resolve } from 'node:path';
 import { CAUSES, CAUSE_LABELS, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
-import { existingFile, requiredText } from './parse.js';
+import { AnswerError, existingFile, requiredText } from './parse.js';
 import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
 import { table } from './show.js';
 
@@ -115,6 +115,11 @@ function voidItem(s: Session, item: SelectedItem, replaces: string | undefined, 
   return { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), void: { reason, ...(spare ? { replacedBy: spare.key } : {}) }, attributes: {} };
 }
 
+/** Results are read back from a CSV sheet only: an XLSX fieldwork sheet is saved as CSV first. */
+export const XLSX_SHEET_NOTE =
+  'Results are read from a CSV sheet only. In the spreadsheet program, save the filled XLSX sheet as CSV ' +
+  '(keep every column and its header as written) and give that file here, or type the results instead.';
+
 export const RESULT_HELP =
   'Conforms: the attribute is met. Deviation: it is not met; a document that cannot be found is a deviation, not a void.\n' +
   'Void: only a document properly cancelled (e.g. a cancelled invoice); it is not tested and the next spare replaces it.';
@@ -190,7 +195,8 @@ function sheetRecord(sheet: SheetItem, item: SelectedItem, replaces: string | un
 }
 
 export function problemLines(problems: readonly SheetProblem[], max = 40): string[] {
-  const lines = table(['Row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why]));
+  // "Sheet row" as the spreadsheet numbers it (header = 1), not the population row in the sheet's own Row column.
+  const lines = table(['Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why]));
   if (problems.length > max) lines.push(`  ... and ${problems.length - max} more`);
   return lines;
 }
@@ -215,8 +221,11 @@ function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProble
     applied++;
   }
   if (applied > 0) s.save('record');
-  s.print(`  Read ${applied} item(s) from ${sheetRel}.`);
   const wl = worklist(s.wp);
+  s.print(
+    `  Read ${applied} item(s) from ${sheetRel}.` +
+      (wl.next ? ` Items are read in order; reading stopped at item ${wl.next.item.seq} (${wl.next.item.key}), which has no readable result.` : ''),
+  );
   if (!wl.next) return [];
   // Report every problem of the items still to record (and of the sheet as a whole).
   const pending = new Set(wl.items.filter((x) => !isRecorded(s.wp, x.item.key)).map((x) => x.item.seq));
@@ -251,7 +260,10 @@ async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
     message: 'Filled fieldwork sheet (CSV)',
     help: SHEET_CONVENTIONS.join('\n'),
     ...(suggested ? { default: suggested } : {}),
-    parse: existingFile('The sheet', s.cwd, ['.csv']),
+    parse: (t) => {
+      if (/\.xlsx["']?\s*$/i.test(t.trim())) throw new AnswerError(XLSX_SHEET_NOTE);
+      return existingFile('The sheet', s.cwd, ['.csv'])(t);
+    },
   });
   const rel = isAbsolute(abs) ? relative(s.dir, abs) || abs : abs;
   for (let round = 1; ; round++) {

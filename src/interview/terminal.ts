@@ -4,6 +4,7 @@
  */
 import type { Asker, ConfirmQuestion, SelectQuestion, TextQuestion } from './asker.js';
 import { refusal } from './asker.js';
+import { wrap } from './show.js';
 import type { Output } from '../commands/types.js';
 
 type Prompts = typeof import('@inquirer/prompts');
@@ -26,7 +27,8 @@ export class TerminalAsker implements Asker {
 
   private help(text: string | undefined): void {
     if (!text) return;
-    const lines = text.split('\n').map((l) => `  ${l}`).join('\n');
+    // Wrapped here so that a long help line does not break mid-word at the terminal's edge.
+    const lines = wrap(text, 94, '  ').join('\n');
     this.options.out.write(this.options.color ? `\x1b[2m${lines}\x1b[22m\n` : `${lines}\n`);
   }
 

@@ -61,7 +61,7 @@ describe('tolrate plan', () => {
       `plan.population.file: The population file: there is no file at ${join(dir, 'missing.csv')}.`,
       'plan.population.keyColumn: "Voucher No" is not one of the choices: voucher, paid_on, payee, amount.',
       'plan.population.ledgerCount: The ledger count: "two hundred and forty" is not a whole number.',
-      'plan.approach.confidence: Confidence: 40% must be at least 50%, below which a sample gives no assurance (50%).',
+      'plan.approach.confidence: Confidence: 40% must be at least 50%, below which a sample gives no assurance.',
       'plan.approach.tolerableRate: Tolerable rate: 0% is out of range; it must be above 0 and below 100.',
       'plan.approach.expectedRate: Expected rate: 8% must be below the tolerable rate (6%).',
       'plan.approach.expectedRate: Expected rate: 6% must be below the tolerable rate (6%).',
