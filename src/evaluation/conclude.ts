@@ -59,7 +59,7 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
     } else {
       byRates = ev.supportedByRates;
       parts.push(
-        `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctUp(ev.upperLimit)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pct(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pct(beta)} allowed.`,
+        `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctUp(ev.upperLimit)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
       );
       parts.push(byRates ? 'The rates support the planned reliance.' : 'The rates do not support the planned reliance.');
     }
@@ -89,16 +89,18 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
   const owner = wp.control?.owner;
   const failing = findings.filter((f) => !f.supportsReliance);
   const anyIntentional = findings.some((f) => f.deviations.some((d) => d.result.intentional !== 'no'));
-  const anySystemic = findings.some((f) => f.deviations.some((d) => d.result.pattern === 'systemic'));
   for (const f of failing) {
     const ev = evaluation.attributes.find((e) => e.attributeId === f.attributeId)!;
-    if (!anyIntentional && !anySystemic && !ev.illustrative && ev.extension !== null && ev.extension > 0) {
+    // Extending the sample answers sampling risk only: not an intentional or systemic cause.
+    const intentional = f.deviations.some((d) => d.result.intentional !== 'no');
+    const systemic = f.deviations.some((d) => d.result.pattern === 'systemic');
+    if (!intentional && !systemic && !ev.illustrative && ev.extension !== null && ev.extension > 0) {
       out.push({
         kind: 'extend-sample',
         description: `Extend the sample for ${f.attributeId} by ${ev.extension} items (to ${ev.sampleSize + ev.extension}); the extended sample supports reliance only if none of the additional items deviates.`,
         items: ev.extension,
       });
-    } else if (!ev.illustrative && ev.extension === null && !anyIntentional) {
+    } else if (!ev.illustrative && ev.extension === null && !intentional) {
       out.push({
         kind: 'other',
         description: `Extending the sample for ${f.attributeId} is not practical: even with no further deviations no reasonable extension reaches the planned risk.`,

@@ -6,7 +6,7 @@
 import { existsSync, statSync } from 'node:fs';
 import { isAbsolute, resolve } from 'node:path';
 import { parseCount, parsePercent } from '../util/percent.js';
-import { pctPlain } from '../util/format.js';
+import { int, pctPlain } from '../util/format.js';
 import { nearest } from '../cli/args.js';
 
 export class AnswerError extends Error {
@@ -94,7 +94,7 @@ export function count(field: string, opts: { min?: number; max?: number; maxWhat
   return (t) => {
     const v = rethrow(() => parseCount(t, field, opts.min !== undefined ? { min: opts.min } : {}));
     if (opts.max !== undefined && v > opts.max) {
-      throw new AnswerError(`${field}: ${v} is more than ${opts.maxWhat ?? 'the maximum'} (${opts.max}).`);
+      throw new AnswerError(`${field}: ${int(v)} is more than ${opts.maxWhat ?? 'the maximum'} (${int(opts.max)}).`);
     }
     return v;
   };

@@ -28,8 +28,9 @@ export class TerminalAsker implements Asker {
   private help(text: string | undefined): void {
     if (!text) return;
     // Wrapped here so that a long help line does not break mid-word at the terminal's edge.
+    // A blank line before it groups the help with the question below it, not the answer above.
     const lines = wrap(text, 94, '  ').join('\n');
-    this.options.out.write(this.options.color ? `\x1b[2m${lines}\x1b[22m\n` : `${lines}\n`);
+    this.options.out.write(this.options.color ? `\n\x1b[2m${lines}\x1b[22m\n` : `\n${lines}\n`);
   }
 
   async text<T>(q: TextQuestion<T>): Promise<T> {

@@ -1,4 +1,5 @@
 import { TolrateInputError } from '../errors.js';
+import { int } from './format.js';
 
 /**
  * Parse a rate typed by a user. The user's side speaks percentages: `6`, `6%`, `6.5 %` all mean
@@ -37,10 +38,10 @@ export function parseCount(text: string, field: string, opts: { min?: number; ma
   const v = Number(t);
   if (!Number.isSafeInteger(v)) throw new TolrateInputError(`${field}: ${text} is too large.`, 'INVALID_COUNT');
   if (opts.min !== undefined && v < opts.min) {
-    throw new TolrateInputError(`${field}: ${v} is below the minimum of ${opts.min}.`, 'INVALID_COUNT');
+    throw new TolrateInputError(`${field}: ${int(v)} is below the minimum of ${int(opts.min)}.`, 'INVALID_COUNT');
   }
   if (opts.max !== undefined && v > opts.max) {
-    throw new TolrateInputError(`${field}: ${v} is above the maximum of ${opts.max}.`, 'INVALID_COUNT');
+    throw new TolrateInputError(`${field}: ${int(v)} is above the maximum of ${int(opts.max)}.`, 'INVALID_COUNT');
   }
   return v;
 }

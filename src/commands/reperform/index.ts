@@ -2,9 +2,11 @@ import { parseFlags, str } from '../../cli/args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 
-const HELP = `Usage: tolrate reperform FILE [--population PATH] [--memo MEMO.docx] [--json]
+const HELP = `tolrate reperform — re-derive a test from its workpaper file and report any difference
 
-Re-derive a test from its workpaper file and report any difference:
+Usage: tolrate reperform FILE [--population PATH] [--memo MEMO.docx] [--json]
+
+It checks:
   - the change log (hash chain, and edits made outside tolrate, named by field);
   - the population (SHA-256, row count, first and last key, amount total);
   - the selection, drawn again from the recorded seed and algorithm, item by item;
