@@ -115,7 +115,9 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
       return 2;
     }
     if (e instanceof Error && e.name === 'ExitPromptError') {
-      ctx.stderr.write('\nStopped. Everything answered up to the last completed step is saved.\n');
+      const { stoppedMessage } = await import('./stopped.js');
+      const { relative } = await import('node:path');
+      ctx.stderr.write(stoppedMessage(ctx.cwd, relative));
       return 130;
     }
     const msg = e instanceof Error ? e.message : String(e);

@@ -11,6 +11,7 @@ import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { Asker } from './asker.js';
 import { newSession, openSession, type Session } from './session.js';
 import { TerminalAsker } from './terminal.js';
+import { setOpenWorkpaper } from '../cli/stopped.js';
 
 /** Options an interview run takes besides the answerer (tests fix the clock). */
 export interface InterviewOptions {
@@ -57,6 +58,7 @@ export async function sessionFor(
     ...(o.now ? { now: o.now } : {}),
     ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
   };
+  setOpenWorkpaper(path);
   if (existsSync(path)) return openSession(base);
   if (o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, ['Start a test with: tolrate plan FILE']);
   return newSession(base);
