@@ -12,7 +12,7 @@ import type { CommandContext, Output } from '../commands/types.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { packageVersion } from '../cli/main.js';
 import { CAUSE_LABELS, SEVERITY_LABELS, type Workpaper } from '../workpaper/schema.js';
-import { int, pct, pctPlain, pctUp } from '../util/format.js';
+import { int, pctPlain, pctUp } from '../util/format.js';
 import { groupDigits } from '../population/index.js';
 import { ScriptedAsker, ScriptError, type ScriptAnswers } from './scripted.js';
 import { newSession, type Session } from './session.js';
@@ -27,6 +27,11 @@ export type Scenario = (typeof SCENARIOS)[number];
 const ScenarioFile = z.object({
   $comment: z.string().optional(),
   title: z.string().min(1),
+  /**
+   * The scenario's clock: the time the demo's scripted practitioner works at. It advances one
+   * second each time it is read, so every run of the demo writes the same files.
+   */
+  clock: z.iso.datetime().optional(),
   workpaper: z.string().regex(/\.tolrate\.json$/, 'must end in .tolrate.json'),
   copy: z.array(z.string().min(1)),
   answers: z.record(z.string(), z.union([z.string(), z.number(), z.boolean(), z.null(), z.array(z.union([z.string(), z.number(), z.boolean(), z.null()]))])),
@@ -66,7 +71,15 @@ export interface DemoOptions {
   samples?: string;
 }
 
+/** A clock that starts at `start` and advances one second each time it is read. */
+export function scenarioClock(start: string): () => Date {
+  let t = Date.parse(start);
+  return () => new Date((t += 1000));
+}
+
 export interface DemoResult {
+  /** The clock the run used (continue with it, e.g. for the memo). */
+  now: () => Date;
   workpaper: Workpaper;
   workpaperPath: string;
   files: Array<{ what: string; path: string }>;
@@ -105,13 +118,14 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
   const asker = new ScriptedAsker(sc.answers as ScriptAnswers, {
     onAsk: (r) => sink.write(`? ${r.message} ${r.answer === '' ? '(Enter)' : r.answer}${r.refused ? `\n  > ${r.refused}` : ''}\n`),
   });
+  const now = o.now ?? (sc.clock ? scenarioClock(sc.clock) : () => new Date());
   const s: Session = newSession({
     asker,
     out: sink,
     path: wpPath,
     cwd: out,
     toolVersion: packageVersion(),
-    ...(o.now ? { now: o.now } : {}),
+    now,
   });
   const steps = o.planOnly ? STEPS.slice(0, 6) : STEPS;
   const got = await runOpenSteps(s, steps);
@@ -119,7 +133,7 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
   if (got !== 'done' || left) throw new ScriptError(`The demo script stopped before the end (at ${left ?? 'an unknown step'}).`);
   files.unshift({ what: 'workpaper', path: wpPath });
   if (s.wp.selection?.fieldworkSheet) files.splice(1, 0, { what: 'fieldwork sheet (as written at selection)', path: join(out, s.wp.selection.fieldworkSheet) });
-  return { workpaper: s.wp, workpaperPath: wpPath, files, asker, transcript };
+  return { workpaper: s.wp, workpaperPath: wpPath, files, asker, transcript, now };
 }
 
 /** The short account of the demo run. */
@@ -142,7 +156,7 @@ export function narrative(wp: Workpaper, title: string): string[] {
       ? `not agreed to a ledger count: ${tie.explanation ?? ''}`
       : agreedAll
         ? `agreed to the ledger count${tie.ledgerTotal !== undefined ? ' and total' : ''}`
-        : `against the ledger's ${int(tie.ledgerCount)} items${tie.ledgerTotal !== undefined ? ` and ${tie.ledgerTotal}` : ''} (difference ${tie.countDifference}${tie.totalDifference !== undefined ? `, ${tie.totalDifference}` : ''}), explained: ${tie.explanation ?? ''}`;
+        : `against the ledger's ${int(tie.ledgerCount)} items${tie.ledgerTotal !== undefined ? ` and ${groupDigits(tie.ledgerTotal)}` : ''} (difference ${tie.countDifference}${tie.totalDifference !== undefined ? `, ${groupDigits(tie.totalDifference)}` : ''}), explained: ${tie.explanation ?? ''}`;
   L.push(...wrap(`Population: ${int(N)} items (${p.samplingUnit.toLowerCase()}), total ${p.fingerprint.amountTotal !== undefined ? groupDigits(p.fingerprint.amountTotal) : '-'}, ${agreed.replace(/\.$/, '')}.`));
   L.push('');
   if (ap.kind === 'statistical') {
@@ -150,7 +164,7 @@ export function narrative(wp: Workpaper, title: string): string[] {
     L.push(
       ...wrap(
         `Sample size ${int(ap.sampleSize)}: ${pctPlain(ap.confidence)} confidence, tolerable rate ${pctPlain(top.tolerableRate)} (${top.attributeId}), expected rate ${pctPlain(ap.expectedRate)}, ${ap.model} model with N = ${int(N)}. ` +
-          `It is the smallest sample in which k_e = ${top.expectedDeviations} deviation(s) still leave the risk of overreliance at ${pctUp(top.achievedRisk, 2)}, within the ${pct(1 - ap.confidence, 0)} allowed.` +
+          `It is the smallest sample in which k_e = ${top.expectedDeviations} deviation(s) still leave the risk of overreliance at ${pctUp(top.achievedRisk)} (rounded up), within the ${pctPlain(1 - ap.confidence)} allowed.` +
           (ap.sizes.length > 1 ? ` Sizes per attribute: ${ap.sizes.map((x) => `${x.attributeId} ${x.sampleSize}`).join(', ')}; the largest is used.` : '') +
           (ap.finitePopulationCorrection
             ? ` The binomial model would need ${ap.finitePopulationCorrection.binomialSampleSize}` +

@@ -8,7 +8,7 @@ import { sampleSize } from '../stats/index.js';
 import type { SampleSizeResult } from '../stats/index.js';
 import { TolrateInputError } from '../errors.js';
 import type { Approach, Attribute, Model, SizeForAttribute } from '../workpaper/schema.js';
-import { int, pct, pctPlain, pctUp } from '../util/format.js';
+import { int, pctPlain, pctUp } from '../util/format.js';
 import type { Session } from './session.js';
 import { AnswerError, count, rate, requiredText } from './parse.js';
 import { loadPolicy, policySize } from './policy.js';
@@ -165,12 +165,12 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   s.print(
     ...table(
       ['Attribute', 'Tolerable', 'Size', 'k_e', 'Risk at k_e', 'Allowed'],
-      sizes.map((x) => [x.attribute.id, pctPlain(x.tolerableRate), int(x.result.sampleSize), String(x.result.expectedDeviations), pctUp(x.result.achievedRisk, 2), pct(beta, 0)]),
+      sizes.map((x) => [x.attribute.id, pctPlain(x.tolerableRate), int(x.result.sampleSize), String(x.result.expectedDeviations), pctUp(x.result.achievedRisk), pctPlain(beta)]),
     ),
   );
   const why =
     `${int(n)} is the smallest sample for which finding k_e = ⌈${int(n)} × ${pctPlain(expectedRate)}⌉ = ${top.result.expectedDeviations} ` +
-    `deviation(s) still leaves the risk of overreliance at ${pctUp(top.result.achievedRisk, 2)}, within the ${pct(beta, 0)} allowed at ` +
+    `deviation(s) still leaves the risk of overreliance at ${pctUp(top.result.achievedRisk)} (rounded up), within the ${pctPlain(beta)} allowed at ` +
     `${pctPlain(confidence)} confidence against a tolerable rate of ${pctPlain(top.tolerableRate)} (${modelWords(model, N)}).` +
     (sizes.length > 1 ? ` It is the largest of the attributes' sizes (${top.attribute.id}), so it serves every attribute.` : '');
   s.print('', ...wrap(why, 92, '  '));

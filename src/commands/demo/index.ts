@@ -48,7 +48,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const got = await runDemoInterview(ctx, { out, scenario, verbose: p.values.verbose === true });
   const { defaultMemoPath, writeMemo } = await import('../../memo/index.js');
   rmSync(defaultMemoPath(got.workpaperPath), { force: true });
-  const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath });
+  const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath, now: got.now() });
   got.files.push({ what: 'memo', path: memo.path });
   if (p.values.verbose) ctx.stdout.write('\n');
   ctx.stdout.write(`${narrative(got.workpaper, `tolrate demo: ${title}`).join('\n')}\n`);
