@@ -6,7 +6,8 @@
  * Rates are fractions (0.06). Amounts are decimal strings (never floats). Dates are ISO
  * `YYYY-MM-DD`; times are ISO date-times in UTC.
  *
- * Changing the shape: bump SCHEMA_VERSION and add a step to `migrate()` in file.ts.
+ * Changing the shape: bump SCHEMA_VERSION and bring older files up to date in parseWorkpaper
+ * (file.ts) before validation; then `npm run schema` regenerates schema/workpaper.schema.json.
  */
 import * as z from 'zod';
 
