@@ -15,14 +15,14 @@
  *     qualitative review do not support;
  *  7. optionally the memo: it carries the same figures as the workpaper.
  */
-import { dirname, isAbsolute, resolve } from 'node:path';
+import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { accessSync, constants, readFileSync } from 'node:fs';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
 import { evaluate, proposeConclusion } from '../evaluation/index.js';
 import { verifyLog, type Workpaper } from '../workpaper/index.js';
 import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
-import { pct, pctExact, pctUp } from '../util/format.js';
+import { pct, pctExact, pctPlain, pctUp } from '../util/format.js';
 
 export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'evaluation' | 'conclusion' | 'memo';
 
@@ -80,6 +80,7 @@ export function resolveSource(wp: Workpaper, workpaperPath: string, override?: s
 
 async function checkPopulation(wp: Workpaper, opts: ReperformOptions): Promise<{ check: Check; source?: import('../population/index.js').PopulationSource; rowCount?: number }> {
   const pop = await import('../population/index.js');
+  const { groupDigits } = pop;
   if (!wp.population) return { check: { area: 'population', summary: 'not recorded yet', differences: [], skipped: true } };
   const { source, path } = resolveSource(wp, opts.workpaperPath, opts.populationPath);
   if (path) {
@@ -103,9 +104,10 @@ async function checkPopulation(wp: Workpaper, opts: ReperformOptions): Promise<{
   if (rec.amountTotal !== undefined && got.amountTotal !== rec.amountTotal) {
     diffs.push(`amount total differs: recorded ${rec.amountTotal}, file has ${got.amountTotal ?? '(none)'}`);
   }
-  const where = path ?? `ranges ${(wp.population.source as { ranges: string }).ranges}`;
+  const rel = path ? relative(dirname(resolve(opts.workpaperPath)), path) : undefined;
+  const where = path ? (rel && !rel.startsWith('..') ? rel : path) : `ranges ${(wp.population.source as { ranges: string }).ranges}`;
   const summary = diffs.length === 0
-    ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${got.amountTotal}` : ''} — as recorded`
+    ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${groupDigits(got.amountTotal)}` : ''} — as recorded`
     : `${where}: ${diffs.length} difference(s)`;
   return { check: { area: 'population', summary, differences: diffs }, source, rowCount: got.rowCount };
 }
@@ -235,7 +237,7 @@ function checkSampleSize(wp: Workpaper): Check {
   }
   if (largest > 0 && a.sampleSize < largest) diffs.push(`adopted sample size ${a.sampleSize} is below the ${largest} the parameters require`);
   const summary = diffs.length === 0
-    ? `${a.model}, ${pct(a.confidence, 0)} confidence, tolerable ${pct(a.tolerableRate)}, expected ${pct(a.expectedRate)}${N ? `, N = ${N.toLocaleString('en-US')}` : ''}: ${largest} required, ${a.sampleSize} adopted — as recorded`
+    ? `${a.model}, ${pctPlain(a.confidence)} confidence, tolerable ${pctPlain(a.tolerableRate)}, expected ${pctPlain(a.expectedRate)}${N ? `, N = ${N.toLocaleString('en-US')}` : ''}: ${largest} required, ${a.sampleSize} adopted — as recorded`
     : `${diffs.length} difference(s)`;
   return { area: 'sample size', summary, differences: diffs };
 }
@@ -371,6 +373,15 @@ async function checkMemo(wp: Workpaper, memoPath: string): Promise<Check> {
   return { area: 'memo', summary, differences: diffs };
 }
 
+/** " (item KEY)" for a path inside the selected items or the results, so a reviewer can find it. */
+function itemOf(wp: Workpaper, where: string): string {
+  const m = /^(selection|results)\.items\[(\d+)\]/.exec(where);
+  if (!m) return '';
+  const list = m[1] === 'selection' ? wp.selection?.items : wp.results?.items;
+  const it = list?.[Number(m[2])];
+  return it ? ` (item ${it.seq}, ${it.key})` : '';
+}
+
 /** Re-perform the test recorded in a workpaper. Throws TolrateInputError on unusable input. */
 export async function reperform(opts: ReperformOptions): Promise<ReperformReport> {
   const wp = opts.workpaper;
@@ -381,7 +392,7 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
     summary: problems.length === 0
       ? `change log of ${wp.log.length} entries intact; the file is as tolrate last wrote it`
       : `${problems.length} problem(s) with the file or its change log`,
-    differences: problems.map((p) => `${p.where}: ${p.message}`),
+    differences: problems.map((p) => `${p.where}${itemOf(wp, p.where)}: ${p.message}`),
   });
   const { check: popCheck, source, rowCount } = await checkPopulation(wp, opts);
   checks.push(popCheck);
@@ -399,15 +410,35 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
   };
 }
 
+function wrapText(text: string, width: number): string[] {
+  const out: string[] = [];
+  let line = '';
+  for (const w of text.split(/\s+/).filter(Boolean)) {
+    if (line && line.length + 1 + w.length > width) {
+      out.push(line);
+      line = w;
+    } else line = line ? `${line} ${w}` : w;
+  }
+  out.push(line);
+  return out;
+}
+
 /** The report as text for a terminal or a file. */
 export function formatReport(r: ReperformReport): string {
   const lines: string[] = [];
   lines.push(`Re-performance of ${r.workpaperPath}`);
   lines.push('');
+  const pad = ' '.repeat(2 + 12 + 1 + 8 + 1);
   for (const c of r.checks) {
     const status = c.differences.length > 0 ? 'DIFFERS' : c.skipped ? 'skipped' : 'agrees';
-    lines.push(`  ${c.area.padEnd(12)} ${status.padEnd(8)} ${c.summary}`);
-    for (const d of c.differences) lines.push(`  ${''.padEnd(12)} - ${d}`);
+    const [first, ...more] = wrapText(c.summary, 100 - pad.length);
+    lines.push(`  ${c.area.padEnd(12)} ${status.padEnd(8)} ${first}`);
+    for (const m of more) lines.push(`${pad}${m}`);
+    for (const d of c.differences) {
+      const [f, ...rest] = wrapText(d, 100 - pad.length - 2);
+      lines.push(`${pad}- ${f}`);
+      for (const m of rest) lines.push(`${pad}  ${m}`);
+    }
   }
   lines.push('');
   const n = r.checks.reduce((s, c) => s + c.differences.length, 0);
