@@ -5,7 +5,7 @@
  */
 import type { Conclusion, Evaluation, FollowUp, Workpaper } from '../workpaper/schema.js';
 import { CAUSE_LABELS } from '../workpaper/schema.js';
-import { pct, pctPlain, pctUp } from '../util/format.js';
+import { pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { countResults, isIllustrative, type DeviationRecord } from './evaluate.js';
 
 export interface AttributeFinding {
@@ -59,7 +59,7 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
     } else {
       byRates = ev.supportedByRates;
       parts.push(
-        `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctUp(ev.upperLimit)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
+        `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctLimit(ev.upperLimit, ev.tolerableRate)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
       );
       parts.push(byRates ? 'The rates support the planned reliance.' : 'The rates do not support the planned reliance.');
     }

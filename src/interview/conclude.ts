@@ -16,7 +16,7 @@ import {
   type Workpaper,
 } from '../workpaper/schema.js';
 import { canonicalJson } from '../workpaper/log.js';
-import { int, pct, pctPlain, pctUp } from '../util/format.js';
+import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import type { Session } from './session.js';
 import { date, optionalDate, optionalText, requiredText, today } from './parse.js';
 import { CAUTION, table, wrap } from './show.js';
@@ -37,7 +37,7 @@ export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
     int(a.sampleSize),
     int(a.deviations),
     pct(a.sampleRate),
-    pctUp(a.upperLimit),
+    pctLimit(a.upperLimit, a.tolerableRate),
     pctPlain(a.tolerableRate),
     `${pctUp(a.achievedRisk)} / ${pct(1 - a.confidence)}`,
     a.illustrative ? 'illustrative' : a.supportedByRates ? 'supported' : 'not supported',
@@ -46,12 +46,15 @@ export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
   const first = ev.attributes[0];
   if (first) {
     const model = first.model === 'hypergeometric' ? `hypergeometric, N = ${int(wp.population?.fingerprint.rowCount ?? 0)}` : first.model;
-    lines.push(`  Upper limits at ${pct(first.confidence, 0)} confidence (${model}), rounded up. Risk = the risk of overreliance at the tolerable rate.`);
+    lines.push(...wrap(`Upper limits at ${pct(first.confidence, 0)} confidence (${model}), rounded up. Risk = the risk of overreliance at the tolerable rate.`, 92, '  '));
   }
   if (ev.attributes.some((a) => a.illustrative)) {
     lines.push(
-      '  The sample is non-statistical or was selected haphazardly: sampling risk cannot be quantified, so these',
-      '  figures are illustrative only and cannot support a statistical conclusion.',
+      ...wrap(
+        'The sample is non-statistical or was selected haphazardly: sampling risk cannot be quantified, so these figures are illustrative only and cannot support a statistical conclusion.',
+        92,
+        '  ',
+      ),
     );
   }
   return lines;
@@ -100,7 +103,8 @@ async function askFollowUps(s: Session, proposed: FollowUp[]): Promise<FollowUp[
   if (proposed.length === 0) s.print('The tool proposes no follow-up action.');
   for (const [i, f] of proposed.entries()) {
     const id = `conclude.followUps.${i + 1}`;
-    s.print('', `${i + 1}. ${FOLLOW_UP_LABELS[f.kind]}:`, ...wrap(f.description, 92, '   '));
+    // The heading already ends with a blank line; later actions are set apart by one.
+    s.print(...(i > 0 ? [''] : []), `${i + 1}. ${FOLLOW_UP_LABELS[f.kind]}:`, ...wrap(f.description, 92, '   '));
     const what = await a.select({
       id: `${id}.action`,
       message: 'Keep this action?',
@@ -165,7 +169,7 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
   s.heading('Qualitative review');
   for (const f of proposal.findings) s.print(...wrap(`${f.attributeId}: ${f.reasoning}`, 92, '  '), '');
   if (proposal.qualitative.intentionalFound) {
-    s.print('  An intentional or possibly intentional deviation was recorded: it is escalated whatever the rates say.');
+    s.print(...wrap('An intentional or possibly intentional deviation was recorded: it is escalated whatever the rates say.', 92, '  '));
   }
   const compensatingControls = await a.text({
     id: 'conclude.compensatingControls',
@@ -195,7 +199,7 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
       continue;
     }
     if (!f.supportsReliance) {
-      s.print('  Warning: the rates or the qualitative review do not support reliance; concluding otherwise needs a strong, documented reason.');
+      s.print(...wrap('Warning: the rates or the qualitative review do not support reliance; concluding otherwise needs a strong, documented reason.', 92, '  '));
     }
     const why = await a.text({
       id: `conclude.attribute.${f.attributeId}.reason`,

@@ -6,7 +6,7 @@
  * exact values (4 decimal places of a percent) for the appendix.
  */
 import { basename } from 'node:path';
-import { int, pct, pctExact, pctPlain, pctUp } from '../util/format.js';
+import { int, pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import type {
   Attribute,
   AttributeEvaluation,
@@ -241,7 +241,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
         n: int(ev?.sampleSize ?? n),
         deviations: int(ev?.deviations ?? k),
         sampleRate: ev ? pct(ev.sampleRate) : n > 0 ? pct(k / n) : undefined,
-        upperLimit: ev ? pctUp(ev.upperLimit) : undefined,
+        upperLimit: ev ? pctLimit(ev.upperLimit, ev.tolerableRate) : undefined,
         achievedRisk: ev ? pctUp(ev.achievedRisk) : undefined,
         decision,
         extension: ev?.extension != null ? int(ev.extension) : undefined,

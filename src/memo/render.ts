@@ -29,7 +29,7 @@ import {
   WidthType,
   type IParagraphOptions,
 } from 'docx';
-import { int, pct, pctPlain, pctUp } from '../util/format.js';
+import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { chartSvg, renderPng, type ChartRow } from './chart.js';
 import { exact, type MemoModel } from './model.js';
 import { fill, type MemoTemplate } from './template.js';
@@ -525,7 +525,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
           upperLimit: x.evaluation!.upperLimit,
           tolerableRate: x.evaluation!.tolerableRate,
           sampleRateText: pct(x.evaluation!.sampleRate),
-          upperLimitText: pctUp(x.evaluation!.upperLimit),
+          upperLimitText: pctLimit(x.evaluation!.upperLimit, x.evaluation!.tolerableRate),
           tolerableRateText: pct(x.evaluation!.tolerableRate),
         }));
         const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));

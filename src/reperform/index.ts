@@ -22,7 +22,7 @@ import { sampleSize as computeSampleSize } from '../stats/index.js';
 import { evaluate, proposeConclusion } from '../evaluation/index.js';
 import { verifyLog, type Workpaper } from '../workpaper/index.js';
 import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
-import { pct, pctExact, pctPlain, pctUp } from '../util/format.js';
+import { pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 
 export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'evaluation' | 'conclusion' | 'memo';
 
@@ -276,7 +276,7 @@ function checkEvaluation(wp: Workpaper): Check {
     }
   }
   const summary = diffs.length === 0
-    ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctUp(f.upperLimit)}`).join('; ') + ' — as recorded'
+    ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctLimit(f.upperLimit, f.tolerableRate)}`).join('; ') + ' — as recorded'
     : `${diffs.length} difference(s)`;
   return { area: 'evaluation', summary, differences: diffs };
 }
@@ -352,7 +352,7 @@ export function memoFigures(wp: Workpaper): Array<{ label: string; text: string 
   for (const ev of wp.evaluation?.attributes ?? []) {
     const id = ev.attributeId;
     out.push({ label: `${id} sample deviation rate`, text: pct(ev.sampleRate) });
-    out.push({ label: `${id} upper deviation limit`, text: pctUp(ev.upperLimit) });
+    out.push({ label: `${id} upper deviation limit`, text: pctLimit(ev.upperLimit, ev.tolerableRate) });
     out.push({ label: `${id} exact upper deviation limit`, text: pctExact(ev.upperLimit) });
     out.push({ label: `${id} exact risk of overreliance`, text: pctExact(ev.achievedRisk) });
   }

@@ -34,3 +34,18 @@ export function pctExact(fraction: number, dp = 4): string {
 export function int(n: number): string {
   return n.toLocaleString('en-US');
 }
+
+/**
+ * An upper deviation limit, rounded up, compared with the tolerable rate. Rounded up to 0.1% a
+ * limit just below the tolerable rate would read as equal to it (5.93% -> "6.0%" against 6%);
+ * then more places are shown until it reads below (5.94%), so the figure is never understated
+ * and never looks like the opposite decision.
+ */
+export function pctLimit(limit: number, tolerable?: number): string {
+  if (tolerable === undefined || limit >= tolerable) return pctUp(limit);
+  for (let dp = 1; dp <= 4; dp++) {
+    const t = pctUp(limit, dp);
+    if (Number.parseFloat(t) < tolerable * 100 - 1e-9) return t;
+  }
+  return pctUp(limit, 4);
+}

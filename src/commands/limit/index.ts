@@ -9,7 +9,7 @@ import {
   type DecisionResult,
   type UpperLimitResult,
 } from '../../stats/index.js';
-import { int, pct, pctExact, pctPlain, pctUp } from '../../util/format.js';
+import { int, pct, pctExact, pctLimit, pctPlain, pctUp } from '../../util/format.js';
 import { parseCount, parsePercent } from '../../util/percent.js';
 import type { CommandContext } from '../types.js';
 import { block, CAUTION, modelFlag, modelNote, populationFlag, wrap } from '../size/common.js';
@@ -122,14 +122,15 @@ function render(limit: UpperLimitResult, ev: LimitEvaluation | undefined): strin
   const { sampleSize: n, deviations: k, confidence } = limit;
   const beta = 1 - confidence;
   const lines: string[] = [];
-  lines.push(`Upper deviation limit: ${pctUp(limit.rate)} at ${pctPlain(confidence)} confidence (one-sided)`);
+  const shown = pctLimit(limit.rate, ev?.tolerableRate);
+  lines.push(`Upper deviation limit: ${shown} at ${pctPlain(confidence)} confidence (one-sided)`);
   lines.push('');
   const rows: Array<[string, string]> = [
     ['Model', modelNote(limit.model, limit.populationSize)],
     ['Sample size', int(n)],
     ['Deviations', int(k)],
     ['Sample deviation rate', `${pct(k / n)} (${int(k)} / ${int(n)})`],
-    ['Upper deviation limit', `${pctUp(limit.rate)} (exact ${pctExact(limit.rate)}, shown rounded up)`],
+    ['Upper deviation limit', `${shown} (exact ${pctExact(limit.rate)}, shown rounded up)`],
   ];
   if (limit.populationSize !== undefined) rows.splice(1, 0, ['Population', `${int(limit.populationSize)} units`]);
   if (limit.deviationsInPopulation !== undefined && limit.populationSize !== undefined) {
@@ -161,7 +162,7 @@ function render(limit: UpperLimitResult, ev: LimitEvaluation | undefined): strin
   lines.push(...block(rows));
   if (ev) {
     lines.push('');
-    const lim = pctUp(limit.rate);
+    const lim = pctLimit(limit.rate, ev.tolerableRate);
     const tdr = pctPlain(ev.tolerableRate);
     if (ev.decision.supported) {
       lines.push(...wrap(
