@@ -95,3 +95,24 @@ export async function xlsxColumns(path: string, sheet?: string): Promise<{ sheet
     seen.length ? [`Sheets: ${seen.map((s) => `"${s}"`).join(', ')}`] : [],
   );
 }
+
+/** The names of an XLSX workbook's worksheets, in order (the rows are not read). */
+export async function xlsxSheetNames(path: string): Promise<string[]> {
+  const ExcelJS = (await import('exceljs')).default;
+  const reader = new ExcelJS.stream.xlsx.WorkbookReader(path, {
+    worksheets: 'emit',
+    sharedStrings: 'ignore',
+    styles: 'ignore',
+    hyperlinks: 'ignore',
+    entries: 'ignore',
+  }) as unknown as BookReader;
+  const seen: string[] = [];
+  try {
+    for await (const ws of reader) seen.push(ws.name ?? `Sheet${seen.length + 1}`);
+  } catch (e) {
+    throw new FileInputError(path, `${basename(path)} cannot be read as an XLSX workbook (${(e as Error).message}).`);
+  }
+  const names = reader.model?.sheets?.map((s) => s.name) ?? seen;
+  if (names.length === 0) throw new FileInputError(path, `${basename(path)} has no worksheet.`);
+  return names;
+}

@@ -58,7 +58,9 @@ export async function sessionFor(
     ...(o.now ? { now: o.now } : {}),
     ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
   };
-  setOpenWorkpaper(path);
+  // A Ctrl-C names the file only once it holds something: before the first step is saved
+  // there is no file to continue (the session names it at its first save).
+  setOpenWorkpaper(existsSync(path) ? path : undefined);
   if (existsSync(path)) return openSession(base);
   if (o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, ['Start a test with: tolrate plan FILE']);
   return newSession(base);

@@ -4,14 +4,14 @@
  * report (going on despite problems needs a recorded reason), the sampling unit and the
  * completeness tie-out against the ledger figures the user enters.
  */
-import { relative, resolve, sep } from 'node:path';
+import { basename, relative, resolve, sep } from 'node:path';
 import { groupDigits, parseRanges, scanPopulation, type PopulationScan, type PopulationSource as ReadSource } from '../population/index.js';
 import { TolrateInputError } from '../errors.js';
 import type { Population, PopulationSource } from '../workpaper/schema.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
-import { existingFile, NONE_ANSWER, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
-import { csvColumns, xlsxColumns } from './columns.js';
+import { AnswerError, existingFile, NONE_ANSWER, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
+import { csvColumns, xlsxColumns, xlsxSheetNames } from './columns.js';
 import { wrap } from './show.js';
 
 /** a − b for decimal strings, exactly. */
@@ -65,9 +65,17 @@ function guessColumn(columns: readonly string[], re: RegExp): string | undefined
   return columns.find((c) => re.test(c));
 }
 
-async function askSource(s: Session): Promise<{ source: PopulationSource; read: ReadSource; scan: PopulationScan } | undefined> {
+/** One try at the population: what was read, or the answers given so far (the defaults of the next try). */
+type SourceTry = { ok: true; source: PopulationSource; read: ReadSource; scan: PopulationScan } | { ok: false; tried: PopulationSource };
+
+/**
+ * Ask where the population is and read it. `previous` is what the last try in this sitting
+ * answered (it failed, or was not accepted): its answers are the defaults, so a retry only
+ * changes what was wrong. Without one, the saved population's answers are the defaults.
+ */
+async function askSource(s: Session, previous?: PopulationSource): Promise<SourceTry> {
   const a = s.asker;
-  const old = s.wp.population?.source;
+  const old = previous ?? s.wp.population?.source;
   const kind = await a.select({
     id: 'plan.population.kind',
     message: 'Where is the population?',
@@ -102,11 +110,11 @@ async function askSource(s: Session): Promise<{ source: PopulationSource; read: 
     const source: PopulationSource = { kind: 'ranges', ranges, exclusions: excl ? [excl] : [] };
     const read = readSource(source, s.dir);
     try {
-      return { source, read, scan: await scanPopulation(read) };
+      return { ok: true, source, read, scan: await scanPopulation(read) };
     } catch (e) {
       if (e instanceof TolrateInputError) {
         s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
-        return undefined;
+        return { ok: false, tried: source };
       }
       throw e;
     }
@@ -120,24 +128,45 @@ async function askSource(s: Session): Promise<{ source: PopulationSource; read: 
     parse: existingFile('The population file', s.cwd, ['.csv', '.txt', '.tsv', '.xlsx']),
   });
   const isXlsx = abs.toLowerCase().endsWith('.xlsx');
+  const rel = relative(s.dir, abs).split(sep).join('/') || abs;
+  // What a failed try keeps for the next one: the file (and sheet), and the columns chosen before.
+  const sameFile = old !== undefined && old.kind !== 'ranges' && resolve(s.dir, old.path) === abs;
+  const keep = (extra: { sheet?: string }): PopulationSource => {
+    const base = { path: rel, keyColumn: sameFile ? old.keyColumn : '', ...(sameFile && old.amountColumn ? { amountColumn: old.amountColumn } : {}), ...(sameFile && old.dateColumn ? { dateColumn: old.dateColumn } : {}) };
+    return isXlsx ? { kind: 'xlsx', ...base, ...(extra.sheet ? { sheet: extra.sheet } : {}) } : { kind: 'csv', ...base };
+  };
   let columns: string[];
   let sheet: string | undefined;
   try {
     if (isXlsx) {
-      const want = await a.text({
-        id: 'plan.population.sheet',
-        message: 'Worksheet (blank = the first)',
-        default: old?.kind === 'xlsx' ? (old.sheet ?? '') : '',
-        parse: optionalText,
-      });
+      // The sheets are listed and one is named as the default, so a notes or cover sheet in
+      // front of the data is not read as the population without the user seeing it.
+      const names = await xlsxSheetNames(abs);
+      const oldSheet = sameFile && old.kind === 'xlsx' ? old.sheet : undefined;
+      const want =
+        names.length === 1
+          ? names[0]!
+          : await a.text({
+              id: 'plan.population.sheet',
+              message: 'Worksheet',
+              help: `Sheets in ${basename(abs)}: ${names.map((n) => `"${n}"`).join(', ')}.`,
+              default: oldSheet ?? names[0] ?? '',
+              parse: (t) => {
+                const v = requiredText('The worksheet')(t);
+                const hit = names.find((n) => n.toLowerCase() === v.toLowerCase());
+                if (!hit) throw new AnswerError(`There is no sheet "${v}" in ${basename(abs)}. Sheets: ${names.map((n) => `"${n}"`).join(', ')}.`);
+                return hit;
+              },
+            });
       const got = await xlsxColumns(abs, want);
       sheet = got.sheet;
       columns = got.columns;
+      if (names.length > 1) s.print(`  Sheet "${sheet}" (${names.length} sheets in the workbook)`);
     } else columns = await csvColumns(abs);
   } catch (e) {
     if (e instanceof TolrateInputError) {
       s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
-      return undefined;
+      return { ok: false, tried: keep(sheet ? { sheet } : {}) };
     }
     throw e;
   }
@@ -165,18 +194,17 @@ async function askSource(s: Session): Promise<{ source: PopulationSource; read: 
     choices: optChoices,
     default: prevDate && columns.includes(prevDate) ? prevDate : (guessColumn(columns, /date|posted|_on$/i) ?? NONE),
   });
-  const rel = relative(s.dir, abs).split(sep).join('/') || abs;
   const source: PopulationSource = isXlsx
     ? { kind: 'xlsx', path: rel, keyColumn, ...(sheet ? { sheet } : {}), ...(amount !== NONE ? { amountColumn: amount } : {}), ...(dateCol !== NONE ? { dateColumn: dateCol } : {}) }
     : { kind: 'csv', path: rel, keyColumn, ...(amount !== NONE ? { amountColumn: amount } : {}), ...(dateCol !== NONE ? { dateColumn: dateCol } : {}) };
   const read = readSource(source, s.dir);
   s.print('  Reading the population...');
   try {
-    return { source, read, scan: await scanPopulation(read) };
+    return { ok: true, source, read, scan: await scanPopulation(read) };
   } catch (e) {
     if (e instanceof TolrateInputError) {
       s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
-      return undefined;
+      return { ok: false, tried: source };
     }
     throw e;
   }
@@ -186,19 +214,23 @@ export async function askPopulation(s: Session): Promise<Population> {
   const a = s.asker;
   const old = s.wp.population;
   s.heading('Population');
-  let got: Awaited<ReturnType<typeof askSource>>;
+  let got: Extract<SourceTry, { ok: true }>;
   let acceptedReason: string | undefined;
+  let previous: PopulationSource | undefined;
   for (;;) {
-    got = await askSource(s);
-    if (!got) {
-      s.print('  Choose the population again.');
+    const tried = await askSource(s, previous);
+    if (!tried.ok) {
+      previous = tried.tried;
+      s.print('  Choose the population again (your answers are kept as the defaults).');
       continue;
     }
+    got = tried;
+    previous = got.source;
     s.print('', ...scanLines(got.scan));
     const e = s.wp.engagement;
     const dr = got.scan.fingerprint.dateRange;
     if (e && dr && (dr.earliest < e.periodStart || dr.latest > e.periodEnd)) {
-      s.print(`  Warning: the dates run from ${dr.earliest} to ${dr.latest}, outside the period ${e.periodStart} to ${e.periodEnd}.`);
+      s.print(...wrap(`Warning: the dates run from ${dr.earliest} to ${dr.latest}, outside the period ${e.periodStart} to ${e.periodEnd}.`, 92, '  '));
     }
     if (got.scan.fingerprint.rowCount === 0) {
       s.print('  The population is empty: there is nothing to sample.');

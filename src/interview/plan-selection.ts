@@ -94,7 +94,19 @@ async function draw(s: Session, n: number, N: number): Promise<Drawn> {
   const input = { populationSize: N, sampleSize: n, spares, ...(seed !== undefined ? { seed } : {}) };
   const got = method === 'random' ? selectRandom(input) : selectSystematic({ ...input, starts: starts! });
   s.print(`  Seed ${got.seed}${got.seedDrawn ? ' (drawn by tolrate; recorded in the workpaper)' : ''}`);
+  s.print(...systematicLines(got));
   return got;
+}
+
+/** A systematic selection's interval and random starts, as `tolrate select` shows them (nothing for other methods). */
+export function systematicLines(sel: Drawn): string[] {
+  if (sel.interval === undefined || !sel.starts) return [];
+  const exact = sel.intervalExact ?? String(sel.interval);
+  const starts = sel.starts.map((st, i) => `${sel.startsExact?.[i] ?? st} (${Number(st.toFixed(4))})`);
+  return [
+    `  Interval ${exact} rows${exact.includes('/') ? ` (${Number(sel.interval.toFixed(4))})` : ''}`,
+    `  Random start${starts.length === 1 ? '' : 's'} ${starts.join(', ')}`,
+  ];
 }
 
 async function haphazard(s: Session, n: number): Promise<Drawn> {
@@ -112,12 +124,16 @@ async function haphazard(s: Session, n: number): Promise<Drawn> {
     ...(old ? { default: old.how } : {}),
     parse: requiredText('How they were chosen'),
   });
+  // After a list is refused, it is offered again for editing: only the wrong keys need retyping.
+  let typed = '';
   for (;;) {
     const keys = await a.text({
       id: 'plan.selection.haphazard.keys',
       message: `Keys of the items, in order (the first ${int(n)} are the sample, any more are spares)`,
       help: 'Separated by commas or spaces.',
+      ...(typed ? { default: typed, editable: true } : {}),
       parse: (t) => {
+        typed = t.trim() || typed;
         const ks = splitKeys(t);
         if (ks.length < n) throw new AnswerError(`The planned sample is ${int(n)} items; ${ks.length} key(s) were listed.`);
         return ks;
@@ -174,7 +190,7 @@ export async function askSelection(s: Session): Promise<Selection> {
     values: r.values,
   }));
   const shown = items.slice(0, 12).map((it) => [String(it.seq), it.role, it.key, int(it.row)]);
-  s.print(`  Selected ${int(drawn.sampleSize)} items${drawn.spares ? ` and ${int(drawn.spares)} spares` : ''} (${drawn.algorithm.split(':')[0]}):`);
+  s.print(`  Selected ${int(drawn.sampleSize)} items${drawn.spares ? ` and ${int(drawn.spares)} spare${drawn.spares === 1 ? '' : 's'}` : ''} (${drawn.algorithm.split(':')[0]}):`);
   s.print(...table(['Seq', 'Role', 'Key', 'Row'], shown));
   if (items.length > 12) s.print(`  ... and ${int(items.length - 12)} more (all on the fieldwork sheet)`);
 

@@ -10,7 +10,7 @@ import { int } from '../util/format.js';
 import type { Session } from './session.js';
 import { AnswerError, existingFile, requiredText } from './parse.js';
 import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
-import { table } from './show.js';
+import { table, wrap } from './show.js';
 
 export interface Worklist {
   /** The items to test, in order: each sample item, and after a voided one the spare that replaces it. */
@@ -223,8 +223,12 @@ function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProble
   if (applied > 0) s.save('record');
   const wl = worklist(s.wp);
   s.print(
-    `  Read ${applied} item(s) from ${sheetRel}.` +
-      (wl.next ? ` Items are read in order; reading stopped at item ${wl.next.item.seq} (${wl.next.item.key}), which has no readable result.` : ''),
+    ...wrap(
+      `Read ${applied} item(s) from ${sheetRel}.` +
+        (wl.next ? ` Items are read in order; reading stopped at item ${wl.next.item.seq} (${wl.next.item.key}), which has no readable result.` : ''),
+      92,
+      '  ',
+    ),
   );
   if (!wl.next) return [];
   // Report every problem of the items still to record (and of the sheet as a whole).

@@ -9,6 +9,7 @@ import { verifyLog } from '../workpaper/log.js';
 import type { Workpaper } from '../workpaper/schema.js';
 import type { Asker } from './asker.js';
 import { requiredText } from './parse.js';
+import { setOpenWorkpaper } from '../cli/stopped.js';
 
 export interface SessionOptions {
   asker: Asker;
@@ -76,6 +77,7 @@ export class Session {
     const reason = this.pendingReasons.length > 0 ? this.pendingReasons.join(' ') : undefined;
     const before = this.wp.log.length;
     this.wp = saveWorkpaper(this.path, this.wp, { by, step, at: this.now(), ...(reason ? { reason } : {}) });
+    setOpenWorkpaper(this.path);
     if (this.wp.log.length > before) this.pendingReasons = [];
   }
 

@@ -120,7 +120,7 @@ describe('tolrate conclude', () => {
     expect(ev.supportedByRates).toBe(true);
     expect(wp.conclusion!.attributes.find((a) => a.attributeId === 'A1')!.supportsReliance).toBe(false);
     expect(wp.conclusion!.qualitative.intentionalFound).toBe(true);
-    expect(ctx.text()).toContain('An intentional or possibly intentional deviation was recorded: it is escalated whatever the rates say.');
+    expect(ctx.text().replace(/\s+/g, ' ')).toContain('An intentional or possibly intentional deviation was recorded: it is escalated whatever the rates say.');
     expect(asker.ids).toContain('conclude.severity.classification');
   });
 

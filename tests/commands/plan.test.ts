@@ -293,7 +293,8 @@ describe('tolrate plan', () => {
     const ctx = captureContext(dir);
     const asker = new ScriptedAsker(answers);
     await plan(['t1'], ctx, asker, { now: fixedClock() });
-    expect(ctx.text()).toContain('There is no sheet "Ledger" in register.xlsx.');
+    // A name that is not a sheet is refused at the question, which lists the sheets.
+    expect(asker.refusals[0]!.message).toBe('There is no sheet "Ledger" in register.xlsx. Sheets: "Notes", "Register".');
     expect(ctx.text()).toContain('Columns found: Voucher No, Paid, Amount');
     const wp = loadWorkpaper(join(dir, 't1.tolrate.json'));
     expect(wp.population!.source).toMatchObject({ kind: 'xlsx', path: 'register.xlsx', sheet: 'Register', keyColumn: 'Voucher No' });

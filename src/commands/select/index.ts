@@ -78,7 +78,8 @@ Selection:
                         default all, the rest are spares)
   --method M            random (default), systematic, or haphazard
   --seed S              the seed (text); when left out one is drawn and shown: record it
-  --starts R            systematic: the number of random starts (default 1; N must divide by it)
+  --starts R            systematic: the number of random starts (default 1; the sample size
+                        must be a multiple of it)
   --spares K            extra items drawn after the sample, used in order to replace voided
                         items (default 0)
   --keys LIST           haphazard: the keys chosen, separated by commas
