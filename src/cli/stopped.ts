@@ -9,7 +9,7 @@ export function setOpenWorkpaper(path: string | undefined): void {
 }
 
 export function stoppedMessage(cwd: string, relativeTo: (from: string, to: string) => string): string {
-  if (!openWorkpaper) return '\nStopped. Everything answered up to the last completed step is saved.\n';
+  if (!openWorkpaper) return '\nStopped before any step was answered: nothing was saved.\n';
   const r = relativeTo(cwd, openWorkpaper);
   const shown = r && !r.startsWith('..') ? r : openWorkpaper;
   const q = /\s/.test(shown) ? `"${shown}"` : shown;

@@ -110,7 +110,7 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
     const source: PopulationSource = { kind: 'ranges', ranges, exclusions: excl ? [excl] : [] };
     const read = readSource(source, s.dir);
     try {
-      return { ok: true, source, read, scan: await scanPopulation(read) };
+      return { ok: true, source, read, scan: await scanPopulation(read, { progress: s.out }) };
     } catch (e) {
       if (e instanceof TolrateInputError) {
         s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));
@@ -200,7 +200,7 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
   const read = readSource(source, s.dir);
   s.print('  Reading the population...');
   try {
-    return { ok: true, source, read, scan: await scanPopulation(read) };
+    return { ok: true, source, read, scan: await scanPopulation(read, { progress: s.out }) };
   } catch (e) {
     if (e instanceof TolrateInputError) {
       s.print(`  ${e.message}`, ...e.details.map((d) => `    ${d}`));

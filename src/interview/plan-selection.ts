@@ -139,7 +139,7 @@ async function haphazard(s: Session, n: number): Promise<Drawn> {
         return ks;
       },
     });
-    const lookup = await findKeys(readSource(s.wp.population!.source, s.dir), keys);
+    const lookup = await findKeys(readSource(s.wp.population!.source, s.dir), keys, { progress: s.out });
     let rec: ReturnType<typeof recordHaphazard>;
     try {
       rec = recordHaphazard({ lookup, selectedBy, how, sampleSize: Math.min(n, lookup.found.length) });
@@ -180,7 +180,8 @@ export async function askSelection(s: Session): Promise<Selection> {
     }
   }
   const source = readSource(pop.source, s.dir);
-  const rows = await readRowsAt(source, drawn.positions, pop.source.kind === 'ranges' ? {} : { expectSha256: pop.fingerprint.sha256 });
+  // A progress bar is drawn only when the output is a terminal and reading takes a while.
+  const rows = await readRowsAt(source, drawn.positions, pop.source.kind === 'ranges' ? {} : { expectSha256: pop.fingerprint.sha256, progress: s.out });
   const items: SelectedItem[] = rows.map((r, i) => ({
     seq: i + 1,
     role: i < drawn.sampleSize ? 'sample' : 'spare',
