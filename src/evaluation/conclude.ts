@@ -19,11 +19,11 @@ export interface AttributeFinding {
 
 /** Questions the practitioner answers before choosing a severity (common practice, no single source). */
 export const SEVERITY_QUESTIONS = [
-  'Is there a reasonable possibility that the control, as it operated, would fail to prevent or detect a misstatement of the account or disclosure?',
-  'How large could the misstatement be that the deficiency could cause (inconsequential, more than inconsequential, material)?',
-  'Does another control, tested and found effective, achieve the same objective (a compensating control)?',
-  'Do the causes point to an intentional act, management override, or a weakness in the control environment?',
-  'Would a prudent official, knowing the facts, conclude that the deficiency is important enough to merit the attention of those charged with governance?',
+  'Is there a reasonable possibility that the control fails to prevent or detect a misstatement?',
+  'How large could that misstatement be (inconsequential, more than inconsequential, material)?',
+  'Does a compensating control, tested and found effective, achieve the same objective?',
+  'Do the causes point to intent, management override or a weak control environment?',
+  'Would a prudent official think it merits the attention of those charged with governance?',
 ] as const;
 
 function causesText(devs: DeviationRecord[]): string {
