@@ -2,6 +2,7 @@
  * Plain-text layout for the interview: aligned tables and wrapped paragraphs. No colour codes
  * here (the session adds them only when the terminal allows).
  */
+import { wrap as wrapText } from '../util/text.js';
 
 /**
  * An aligned table; columns whose cells all look numeric are right-aligned. When the table would
@@ -32,20 +33,9 @@ export function table(header: readonly string[], rows: readonly (readonly string
   return [line(header), indent + widths.map((w) => '-'.repeat(w)).join('  '), ...rows.flatMap(lines)];
 }
 
-/** Wrap a paragraph at `width` characters. */
+/** Wrap at 92 columns by default (words are never split). */
 export function wrap(text: string, width = 92, indent = ''): string[] {
-  const out: string[] = [];
-  for (const para of text.split('\n')) {
-    let line = '';
-    for (const w of para.split(/\s+/).filter(Boolean)) {
-      if (line && line.length + 1 + w.length > width - indent.length) {
-        out.push(indent + line);
-        line = w;
-      } else line = line ? `${line} ${w}` : w;
-    }
-    out.push(indent + line);
-  }
-  return out;
+  return wrapText(text, width, indent);
 }
 
 export const CAUTION =

@@ -23,6 +23,7 @@ import { evaluate, proposeConclusion } from '../evaluation/index.js';
 import { verifyLog, type Workpaper } from '../workpaper/index.js';
 import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
 import { pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
+import { wrap } from '../util/text.js';
 
 export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'evaluation' | 'conclusion' | 'memo';
 
@@ -410,19 +411,6 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
   };
 }
 
-function wrapText(text: string, width: number): string[] {
-  const out: string[] = [];
-  let line = '';
-  for (const w of text.split(/\s+/).filter(Boolean)) {
-    if (line && line.length + 1 + w.length > width) {
-      out.push(line);
-      line = w;
-    } else line = line ? `${line} ${w}` : w;
-  }
-  out.push(line);
-  return out;
-}
-
 /** The report as text for a terminal or a file. */
 export function formatReport(r: ReperformReport): string {
   const lines: string[] = [];
@@ -431,11 +419,11 @@ export function formatReport(r: ReperformReport): string {
   const pad = ' '.repeat(2 + 12 + 1 + 8 + 1);
   for (const c of r.checks) {
     const status = c.differences.length > 0 ? 'DIFFERS' : c.skipped ? 'skipped' : 'agrees';
-    const [first, ...more] = wrapText(c.summary, 100 - pad.length);
+    const [first, ...more] = wrap(c.summary, 100 - pad.length);
     lines.push(`  ${c.area.padEnd(12)} ${status.padEnd(8)} ${first}`);
     for (const m of more) lines.push(`${pad}${m}`);
     for (const d of c.differences) {
-      const [f, ...rest] = wrapText(d, 100 - pad.length - 2);
+      const [f, ...rest] = wrap(d, 100 - pad.length - 2);
       lines.push(`${pad}- ${f}`);
       for (const m of rest) lines.push(`${pad}  ${m}`);
     }

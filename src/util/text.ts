@@ -10,3 +10,22 @@ export function editDistance(a: string, b: string): number {
   }
   return prev[b.length]!;
 }
+
+/**
+ * Wrap text at `width` columns without splitting words. Each line of the input is a paragraph
+ * of its own; `indent` is put before every output line (and counts towards the width).
+ */
+export function wrap(text: string, width = 92, indent = ''): string[] {
+  const out: string[] = [];
+  for (const para of text.split('\n')) {
+    let line = '';
+    for (const w of para.split(/\s+/).filter(Boolean)) {
+      if (line && line.length + 1 + w.length > width - indent.length) {
+        out.push(indent + line);
+        line = w;
+      } else line = line ? `${line} ${w}` : w;
+    }
+    out.push(indent + line);
+  }
+  return out;
+}

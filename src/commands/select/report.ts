@@ -3,19 +3,9 @@ import { groupDigits } from '../../population/amount.js';
 import type { PopulationScan } from '../../population/types.js';
 import type { FieldworkItem, Selection } from '../../selection/index.js';
 import { int } from '../../util/format.js';
+import { wrap } from '../../util/text.js';
 
-export function wrap(text: string, width: number): string[] {
-  const out: string[] = [];
-  let line = '';
-  for (const word of text.split(/\s+/).filter(Boolean)) {
-    if (line && line.length + 1 + word.length > width) {
-      out.push(line);
-      line = word;
-    } else line = line ? `${line} ${word}` : word;
-  }
-  if (line) out.push(line);
-  return out;
-}
+export { wrap };
 
 /** "  label   value" lines, long values wrapped under themselves. */
 export function block(rows: Array<[string, string]>, indent = '  ', width = 100): string[] {

@@ -6,6 +6,7 @@ import { nearest, str, type ParsedArgs } from '../../cli/args.js';
 import { UsageError } from '../../errors.js';
 import { MODELS, type Model } from '../../stats/index.js';
 import { parseCount } from '../../util/percent.js';
+import { wrap as wrapText } from '../../util/text.js';
 
 /** The caution every calculator prints: the tool computes, the practitioner judges. */
 export const CAUTION =
@@ -59,18 +60,7 @@ export function modelNote(model: Model, populationSize: number | undefined): str
   }
 }
 
-/** Wrap a paragraph at `width` columns (words are never split). */
-export function wrap(text: string, width = 96): string[] {
-  const out: string[] = [];
-  let line = '';
-  for (const word of text.split(/\s+/).filter(Boolean)) {
-    if (line && line.length + 1 + word.length > width) {
-      out.push(line);
-      line = word;
-    } else {
-      line = line ? `${line} ${word}` : word;
-    }
-  }
-  if (line) out.push(line);
-  return out;
+/** Wrap at 96 columns by default (words are never split). */
+export function wrap(text: string, width = 96, indent = ''): string[] {
+  return wrapText(text, width, indent);
 }
