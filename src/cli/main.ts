@@ -24,7 +24,7 @@ export function mainHelp(): string {
   lines.push('tolrate — document a test of controls by attribute sampling');
   lines.push('');
   lines.push('Usage: tolrate [COMMAND] [OPTIONS]');
-  lines.push('       tolrate            on a terminal: start a new test or continue a workpaper file');
+  lines.push('       tolrate                     on a terminal: start a new test or continue a workpaper');
   lines.push('       tolrate FILE.tolrate.json   continue that workpaper where it stopped');
   const groups: Array<[string, string]> = [
     ['test', 'A test, from plan to memo (interviews need a terminal):'],
@@ -44,7 +44,8 @@ export function mainHelp(): string {
   lines.push('  tolrate size --confidence 95 --tolerable 6 --expected 1');
   lines.push('  tolrate limit --sample 78 --deviations 2 --confidence 95 --tolerable 6');
   lines.push('');
-  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage.');
+  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage;');
+  lines.push('            130 stopped with Ctrl-C (every step answered before is saved).');
   lines.push('');
   lines.push('The tool computes. Whether a control can be relied on, and how severe a deficiency is, are');
   lines.push('the practitioner\'s judgements under the auditing standards that apply (e.g. AU-C 530,');
