@@ -83,6 +83,12 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
   });
 }
 
+/** " (Head of purchasing)"; brackets inside the name become commas: " (Head of Finance, G. Tallamy)". */
+function ownerText(owner: string | undefined): string {
+  if (!owner) return '';
+  return ` (${owner.replace(/\s*\(([^)]*)\)/g, ', $1').trim()})`;
+}
+
 /** Proposed follow-up actions from the outcome; the practitioner edits, adds owners and dates. */
 export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings: AttributeFinding[]): FollowUp[] {
   const out: FollowUp[] = [];
@@ -115,7 +121,7 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
     });
     out.push({
       kind: 'communicate',
-      description: `Communicate the deviations and their causes to the control owner${owner ? ` (${owner})` : ''}${anyIntentional ? ', to the engagement leader, and consider the implications for the risk of fraud' : ''}; communicate to those charged with governance where the severity warrants it.`,
+      description: `Communicate the deviations and their causes to the control owner${ownerText(owner)}${anyIntentional ? ', to the engagement leader, and consider the implications for the risk of fraud' : ''}; communicate to those charged with governance where the severity warrants it.`,
     });
     out.push({
       kind: 'assess-severity',
@@ -124,7 +130,7 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
   } else if (findings.some((f) => f.deviations.length > 0)) {
     out.push({
       kind: 'communicate',
-      description: `Inform the control owner${owner ? ` (${owner})` : ''} of the isolated deviations found and their causes.`,
+      description: `Inform the control owner${ownerText(owner)} of the isolated deviations found and their causes.`,
     });
   }
   return out;

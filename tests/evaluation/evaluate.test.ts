@@ -35,6 +35,11 @@ function workpaper(opts: { n: number; devs: Array<Partial<{ intentional: 'no' | 
   };
 }
 
+/** A statistical workpaper with n items and k isolated, unintentional deviations. */
+function fixtureFor(n: number, k: number): Workpaper {
+  return workpaper({ n, devs: Array.from({ length: k }, () => ({})) });
+}
+
 describe('evaluation', () => {
   it('2 deviations in 78 at 95% / 6%: rate 2.6%, limit above 6%, not supported, extension 25', () => {
     const ev = evaluate(workpaper({ n: 78, devs: [{}, {}], voids: 1 })).attributes[0]!;
@@ -92,5 +97,15 @@ describe('evaluation', () => {
     const ev = attributeFigures({ attributeId: 'A1', sampleSize: 60, deviations: 1, tolerableRate: 0.06, confidence: 0.95, model: 'hypergeometric', populationSize: 400, illustrative: false });
     expect(ev.deviationsInPopulation).toBeGreaterThan(0);
     expect(ev.upperLimit).toBeCloseTo(ev.deviationsInPopulation! / 400, 12);
+  });
+});
+
+describe('proposed follow-ups', () => {
+  it('name the control owner without nested brackets', () => {
+    const wp = { ...JSON.parse(JSON.stringify(fixtureFor(78, 2))) };
+    wp.control.owner = 'Head of Finance (G. Tallamy)';
+    const c = proposeConclusion(wp, evaluate(wp));
+    const text = c.followUps.find((f) => f.kind === 'communicate')!.description;
+    expect(text).toContain('control owner (Head of Finance, G. Tallamy)');
   });
 });
