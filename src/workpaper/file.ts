@@ -106,12 +106,10 @@ export interface SaveMeta {
 export function saveWorkpaper(path: string, wp: Workpaper, meta: SaveMeta): Workpaper {
   const at = (meta.at ?? new Date()).toISOString();
   const before = replay(wp.log);
-  const unchanged = parseWorkpaper(JSON.parse(JSON.stringify(wp)) as unknown, 'the workpaper being saved');
-  if (wp.log.length > 0 && !nextEntry(wp.log, before, unchanged, { by: meta.by, step: meta.step, at })) return wp;
-  const draft: Workpaper = { ...wp, updatedAt: at };
-  const checked = parseWorkpaper(JSON.parse(JSON.stringify(draft)) as unknown, 'the workpaper being saved');
+  const checked = parseWorkpaper(JSON.parse(JSON.stringify({ ...wp, updatedAt: at })) as unknown, 'the workpaper being saved');
   const entry = nextEntry(wp.log, before, checked, { by: meta.by, step: meta.step, reason: meta.reason, at });
-  if (!entry) return wp;
+  // Nothing but the time of saving would change: write nothing (the first save always writes).
+  if (!entry || (wp.log.length > 0 && entry.changes.every((c) => c.path.length === 1 && c.path[0] === 'updatedAt'))) return wp;
   const saved: Workpaper = { ...checked, log: [...wp.log, entry] };
   writeFileAtomic(path, `${JSON.stringify(saved, null, 2)}\n`);
   return saved;

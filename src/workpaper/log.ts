@@ -75,12 +75,15 @@ export function diff(oldV: unknown, newV: unknown, path: Path = []): LogChange[]
   return [change];
 }
 
-/** Apply changes to a (cloned) JSON value. */
-export function applyChanges(base: Record<string, unknown>, changes: readonly LogChange[]): Record<string, unknown> {
-  let root: unknown = JSON.parse(JSON.stringify(base));
+function clone<T>(v: T): T {
+  return v === undefined ? v : (JSON.parse(JSON.stringify(v)) as T);
+}
+
+/** Apply changes to `root` in place (values taken from the changes are copied). */
+function applyInPlace(root: Record<string, unknown>, changes: readonly LogChange[]): Record<string, unknown> {
   for (const c of changes) {
     if (c.path.length === 0) {
-      root = c.deleted ? {} : JSON.parse(JSON.stringify(c.new ?? null));
+      root = c.deleted ? {} : (clone(c.new ?? null) as Record<string, unknown>);
       continue;
     }
     let node = root as Record<string | number, unknown>;
@@ -93,15 +96,20 @@ export function applyChanges(base: Record<string, unknown>, changes: readonly Lo
     }
     const last = c.path[c.path.length - 1]!;
     if (c.deleted) delete node[last];
-    else node[last] = JSON.parse(JSON.stringify(c.new ?? null));
+    else node[last] = clone(c.new ?? null);
   }
-  return root as Record<string, unknown>;
+  return root;
 }
 
-/** Rebuild the workpaper content from its log alone. */
+/** Apply changes to a copy of a JSON value. */
+export function applyChanges(base: Record<string, unknown>, changes: readonly LogChange[]): Record<string, unknown> {
+  return applyInPlace(clone(base), changes);
+}
+
+/** Rebuild the workpaper content from its log alone (one working copy, changed in place). */
 export function replay(log: readonly LogEntry[]): Record<string, unknown> {
   let state: Record<string, unknown> = {};
-  for (const e of log) state = applyChanges(state, e.changes);
+  for (const e of log) state = applyInPlace(state, e.changes);
   return state;
 }
 
@@ -169,7 +177,7 @@ export function verifyLog(wp: { log?: readonly LogEntry[] } & object): Integrity
     if (e.seq !== i + 1) problems.push({ where: label, message: `is numbered ${e.seq} but stands at place ${i + 1}: an entry was removed or reordered` });
     if (e.prevHash !== prevHash) problems.push({ where: label, message: 'does not follow on from the entry before it (chain broken: an entry was removed, inserted or edited)' });
     if (entryHash(e) !== e.hash) problems.push({ where: label, message: `was edited after it was written (step "${e.step}", by ${e.by}, ${e.at})` });
-    state = applyChanges(state, e.changes);
+    state = applyInPlace(state, e.changes);
     if (sha256(canonicalJson(state)) !== e.stateHash) {
       problems.push({ where: label, message: 'its changes do not produce the state it records' });
     }
