@@ -84,7 +84,8 @@ export interface DemoResult {
   workpaperPath: string;
   files: Array<{ what: string; path: string }>;
   asker: ScriptedAsker;
-  transcript: string;
+  /** Every question asked with its scripted answer, and what the interview showed. */
+  echoed: string;
 }
 
 /** Run the scenario's interview into `out`. Files from an earlier demo run there are replaced. */
@@ -108,10 +109,10 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
   const wpPath = join(out, sc.workpaper);
   const sheetPath = join(out, defaultSheetName(wpPath));
   for (const p of [wpPath, sheetPath]) rmSync(p, { force: true });
-  let transcript = '';
+  let echoed = '';
   const sink: Output = {
     write: (t: string) => {
-      transcript += t;
+      echoed += t;
       if (o.verbose) ctx.stdout.write(t);
     },
   };
@@ -133,7 +134,7 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
   if (got !== 'done' || left) throw new ScriptError(`The demo script stopped before the end (at ${left ?? 'an unknown step'}).`);
   files.unshift({ what: 'workpaper', path: wpPath });
   if (s.wp.selection?.fieldworkSheet) files.splice(1, 0, { what: 'fieldwork sheet (as written at selection)', path: join(out, s.wp.selection.fieldworkSheet) });
-  return { workpaper: s.wp, workpaperPath: wpPath, files, asker, transcript, now };
+  return { workpaper: s.wp, workpaperPath: wpPath, files, asker, echoed, now };
 }
 
 /** The short account of the demo run. */

@@ -34,7 +34,7 @@ export interface ScriptedOptions {
   stopAt?: number;
   /** When a question has no scripted answer: take its default if it has one (else fail). */
   defaults?: boolean;
-  /** Called with each question and answer, e.g. to echo a transcript. */
+  /** Called with each question and answer, e.g. to print them as they are asked. */
   onAsk?: (record: AskedRecord) => void;
 }
 
