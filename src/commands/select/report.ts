@@ -4,20 +4,12 @@ import type { PopulationScan } from '../../population/types.js';
 import type { FieldworkItem, Selection } from '../../selection/index.js';
 import { int } from '../../util/format.js';
 import { wrap } from '../../util/text.js';
+import { block as sharedBlock } from '../output.js';
 
-export { wrap };
 
-/** "  label   value" lines, long values wrapped under themselves. */
+/** "  label   value" lines, long values wrapped under themselves at 100 columns. */
 export function block(rows: Array<[string, string]>, indent = '  ', width = 100): string[] {
-  const w = Math.max(...rows.map(([l]) => l.length));
-  const out: string[] = [];
-  for (const [l, v] of rows) {
-    const lines = wrap(v, Math.max(30, width - indent.length - w - 2));
-    if (lines.length === 0) lines.push('');
-    out.push(`${indent}${l.padEnd(w)}  ${lines[0]}`.trimEnd());
-    for (const more of lines.slice(1)) out.push(`${indent}${' '.repeat(w)}  ${more}`);
-  }
-  return out;
+  return sharedBlock(rows, indent, width);
 }
 
 function delimiterWords(d: string | undefined): string {

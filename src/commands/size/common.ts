@@ -40,11 +40,7 @@ export function populationFlag(p: ParsedArgs): number | undefined {
   return v === undefined ? undefined : parseCount(v, '--population', { min: 1 });
 }
 
-/** Lines "  label   value" with the labels padded to one width. */
-export function block(rows: Array<[string, string]>, indent = '  '): string[] {
-  const w = Math.max(...rows.map(([l]) => l.length));
-  return rows.map(([l, v]) => `${indent}${l.padEnd(w)}  ${v}`.trimEnd());
-}
+export { block } from '../output.js';
 
 /** Why the model was chosen, in a few words. */
 export function modelNote(model: Model, populationSize: number | undefined): string {

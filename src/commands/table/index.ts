@@ -11,6 +11,7 @@ import { int, pctPlain } from '../../util/format.js';
 import { parsePercent } from '../../util/percent.js';
 import type { CommandContext } from '../types.js';
 import { CAUTION, modelFlag, modelNote, populationFlag, wrap } from '../size/common.js';
+import { printResult } from '../output.js';
 
 const SPEC: FlagSpec = {
   confidence: { type: 'string' },
@@ -81,11 +82,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     ...(populationSize !== undefined ? { populationSize } : {}),
     ...(model !== undefined ? { model } : {}),
   });
-  if (p.values.json) {
-    ctx.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
-    return 0;
-  }
-  ctx.stdout.write(render(result));
+  printResult(ctx, p.values.json === true, result, render);
   return 0;
 }
 
