@@ -47,6 +47,21 @@ export function stateHash(wp: object): string {
   return sha256(canonicalJson(content(wp)));
 }
 
+/** Equality of two JSON values as canonicalJson sees them (undefined members do not count). */
+function jsonEqual(a: unknown, b: unknown): boolean {
+  if (a === b) return true;
+  if (Array.isArray(a) || Array.isArray(b)) {
+    if (!Array.isArray(a) || !Array.isArray(b) || a.length !== b.length) return false;
+    return a.every((x, i) => jsonEqual(x ?? null, b[i] ?? null));
+  }
+  if (isObject(a) && isObject(b)) {
+    const ka = Object.keys(a).filter((k) => a[k] !== undefined);
+    const kb = Object.keys(b).filter((k) => b[k] !== undefined);
+    return ka.length === kb.length && ka.every((k) => jsonEqual(a[k], b[k]));
+  }
+  return false;
+}
+
 function isObject(v: unknown): v is Record<string, unknown> {
   return v !== null && typeof v === 'object' && !Array.isArray(v);
 }
@@ -56,7 +71,7 @@ function isObject(v: unknown): v is Record<string, unknown> {
  * arrays of equal length element by element; an array whose length changed is replaced whole.
  */
 export function diff(oldV: unknown, newV: unknown, path: Path = []): LogChange[] {
-  if (canonicalJson(oldV) === canonicalJson(newV)) return [];
+  if (jsonEqual(oldV, newV)) return [];
   if (isObject(oldV) && isObject(newV)) {
     const out: LogChange[] = [];
     const keys = [...new Set([...Object.keys(oldV), ...Object.keys(newV)])].sort();
