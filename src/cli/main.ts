@@ -1,23 +1,12 @@
-import { readFileSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
-import { dirname, join } from 'node:path';
+import { basename, relative } from 'node:path';
+import { packageVersion } from '../util/version.js';
 import { COMMANDS, findCommand } from '../commands/registry.js';
 import type { CommandContext, CommandRun } from '../commands/types.js';
 import { isInputError } from '../errors.js';
-import { nearest } from './args.js';
+import { nearest } from '../util/text.js';
 
-export function packageVersion(): string {
-  const here = dirname(fileURLToPath(import.meta.url));
-  for (const p of [join(here, '..', '..', 'package.json'), join(here, '..', 'package.json')]) {
-    try {
-      const pkg = JSON.parse(readFileSync(p, 'utf8')) as { name?: string; version?: string };
-      if (pkg.name === 'tolrate' && pkg.version) return pkg.version;
-    } catch {
-      // try the next location
-    }
-  }
-  return 'unknown';
-}
+export { packageVersion };
+
 
 export function mainHelp(): string {
   const lines: string[] = [];
@@ -68,7 +57,21 @@ export function defaultContext(): CommandContext {
     color: Boolean(process.stdout.isTTY) && !('NO_COLOR' in process.env && process.env.NO_COLOR !== ''),
     cwd: process.cwd(),
     env: process.env,
+    invocation: invocation(process.argv[1], process.cwd(), process.env),
   };
+}
+
+/**
+ * How the user started tolrate, for the commands the tool prints ("Continue with: ..."): `tolrate`
+ * when installed on the PATH, `npx tolrate` under npx, `node dist/cli.js` when run from a clone.
+ */
+export function invocation(script: string | undefined, cwd: string, env: Record<string, string | undefined>): string {
+  if (env.npm_command === 'exec' || env.npm_lifecycle_event === 'npx') return 'npx tolrate';
+  if (!script) return 'tolrate';
+  if (basename(script) === 'tolrate') return 'tolrate';
+  const r = relative(cwd, script);
+  const shown = r && !r.startsWith('..') && !r.startsWith('/') ? r : script;
+  return `node ${/\s/.test(shown) ? `"${shown}"` : shown}`;
 }
 
 /** Run the CLI with the given arguments; resolves to the exit code. */
@@ -117,8 +120,8 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
     }
     if (e instanceof Error && e.name === 'ExitPromptError') {
       const { stoppedMessage } = await import('./stopped.js');
-      const { relative } = await import('node:path');
-      ctx.stderr.write(stoppedMessage(ctx.cwd, relative));
+      const info = e as { workpaper?: string; keptUnfinished?: boolean };
+      ctx.stderr.write(stoppedMessage(ctx.cwd, relative, { workpaper: info.workpaper, keptUnfinished: info.keptUnfinished }, ctx.invocation));
       return 130;
     }
     const msg = e instanceof Error ? e.message : String(e);

@@ -3,12 +3,12 @@
  * practitioner's conclusion, the follow-up actions, the severity (asked, never chosen by the
  * tool) and the preparer's sign-off.
  */
-import { evaluate } from '../evaluation/evaluate.js';
-import { proposeConclusion, SEVERITY_QUESTIONS } from '../evaluation/conclude.js';
+import { evaluate } from '../control-test/evaluate.js';
+import { proposeConclusion, SEVERITY_QUESTIONS } from '../control-test/conclude.js';
+import { FOLLOW_UP_LABELS, SEVERITY_LABELS } from '../control-test/index.js';
 import {
   FOLLOW_UP_KINDS,
   SEVERITIES,
-  SEVERITY_LABELS,
   type Conclusion,
   type Evaluation,
   type FollowUp,
@@ -21,14 +21,7 @@ import type { Session } from './session.js';
 import { date, optionalDate, optionalText, requiredText, today } from './parse.js';
 import { CAUTION, table, wrap } from './show.js';
 
-export const FOLLOW_UP_LABELS: Record<FollowUpKind, string> = {
-  'extend-sample': 'Extend the sample',
-  'test-compensating-control': 'Test a compensating control',
-  'reduce-reliance': 'Reduce reliance, expand substantive work',
-  communicate: 'Communicate',
-  'assess-severity': 'Assess severity',
-  other: 'Other',
-};
+export { FOLLOW_UP_LABELS };
 
 /** The evaluation table as text lines (also used by the demo narrative). */
 export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {

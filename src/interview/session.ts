@@ -9,7 +9,8 @@ import { verifyLog } from '../workpaper/log.js';
 import type { Workpaper } from '../workpaper/schema.js';
 import type { Asker } from './asker.js';
 import { requiredText } from './parse.js';
-import { setOpenWorkpaper } from '../cli/stopped.js';
+import { afterOutsideEdit } from '../control-test/index.js';
+import { RememberingAsker } from './remembering.js';
 
 export interface SessionOptions {
   asker: Asker;
@@ -25,6 +26,8 @@ export interface SessionOptions {
   toolVersion?: string;
   /** Where typed file names are resolved (the command's working folder); default: the workpaper's folder. */
   cwd?: string;
+  /** How tolrate was started, for the commands the interview prints (default `tolrate`). */
+  invocation?: string;
 }
 
 export class Session {
@@ -37,6 +40,11 @@ export class Session {
   readonly policyPath: string | undefined;
   readonly color: boolean;
   readonly cwd: string;
+  readonly invocation: string;
+  /** The step being asked, for keeping its answers if the user stops. */
+  currentStep: string | undefined;
+  /** The answerer, remembering the answers given since the last save (kept if the user stops). */
+  private readonly remembering: RememberingAsker;
   private pendingReasons: string[] = [];
   private editReasonAsked = false;
 
@@ -44,12 +52,40 @@ export class Session {
     this.wp = o.wp;
     this.path = o.path;
     this.dir = dirname(o.path);
-    this.asker = o.asker;
+    this.remembering = new RememberingAsker(o.asker, o.wp.unfinishedStep?.answers ?? {});
+    this.asker = this.remembering;
     this.out = o.out;
     this.now = o.now ?? (() => new Date());
     this.policyPath = o.policyPath;
     this.color = o.color ?? false;
     this.cwd = o.cwd ?? this.dir;
+    this.invocation = o.invocation ?? 'tolrate';
+  }
+
+  /** True once the workpaper file holds something (the first answered step is saved). */
+  get saved(): boolean {
+    return this.wp.log.length > 0;
+  }
+
+  /** `tolrate record FILE`, as the user started tolrate. */
+  command(sub: string, file: string): string {
+    return `${this.invocation} ${sub}${file ? ` ${/\s/.test(file) ? `"${file}"` : file}` : ''}`.replace(/\s+$/, '');
+  }
+
+  /**
+   * The user stopped in the middle of a step: keep the answers given since the last save in the
+   * workpaper, so that they are offered as defaults when the step is asked again. Returns true
+   * when something was kept.
+   */
+  keepUnfinished(step: string): boolean {
+    const answers = this.remembering.given();
+    if (!this.saved || Object.keys(answers).length === 0) return false;
+    try {
+      this.wp = saveWorkpaper(this.path, { ...this.wp, unfinishedStep: { step, answers } }, { by: this.by, step: `${step}.stopped`, at: this.now() });
+      return true;
+    } catch {
+      return false;
+    }
   }
 
   /** Write lines to the output. */
@@ -76,8 +112,10 @@ export class Session {
   save(step: string, by = this.by): void {
     const reason = this.pendingReasons.length > 0 ? this.pendingReasons.join(' ') : undefined;
     const before = this.wp.log.length;
-    this.wp = saveWorkpaper(this.path, this.wp, { by, step, at: this.now(), ...(reason ? { reason } : {}) });
-    setOpenWorkpaper(this.path);
+    // What was asked until now is saved: answers of an earlier stopped step are no longer needed.
+    const { unfinishedStep: _u, ...current } = this.wp;
+    this.wp = saveWorkpaper(this.path, current as Workpaper, { by, step, at: this.now(), ...(reason ? { reason } : {}) });
+    this.remembering.forget();
     if (this.wp.log.length > before) this.pendingReasons = [];
   }
 
@@ -111,9 +149,10 @@ export class Session {
  * file was changed outside tolrate show what changed and ask why (the reason is saved at once,
  * with those changes, in a log entry of its own). Returns undefined when the user does not go on.
  */
-export async function openSession(o: Omit<SessionOptions, 'wp'>): Promise<Session | undefined> {
+export async function openSession(o: Omit<SessionOptions, 'wp'> & { hold?: (s: Session) => Session }): Promise<Session | undefined> {
   const wp = loadWorkpaper(o.path);
   const s = new Session({ ...o, wp });
+  o.hold?.(s);
   const problems = verifyLog(wp);
   if (problems.length === 0) return s;
   s.print('', `${basename(o.path)} was changed outside tolrate since it was last saved:`);
@@ -132,6 +171,14 @@ export async function openSession(o: Omit<SessionOptions, 'wp'>): Promise<Sessio
     parse: requiredText('The reason'),
   });
   s.addReason(`Changes made outside tolrate accepted: ${reason}`);
+  // The record as it now is decides: evaluate again, clear the sign-offs, keep a conclusion only
+  // while the new figures bear it out.
+  const after = afterOutsideEdit(s.wp, s.now());
+  s.wp = after.wp;
+  if (after.notes.length > 0) {
+    s.print(...after.notes.map((n) => `  Because of the change: ${n}.`));
+    s.addReason(`Because of the change: ${after.notes.join('; ')}.`);
+  }
   s.save('accept-outside-changes');
   return s;
 }

@@ -7,7 +7,7 @@ import { relative, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { TolrateInputError } from '../errors.js';
 import { int } from '../util/format.js';
-import type { Asker } from './asker.js';
+import { InterviewStopped, isStop, type Asker } from './asker.js';
 import { sessionFor, workpaperPath, type InterviewOptions } from './command.js';
 import { chooseRevisit, firstOpen, isAnswered, PLAN_STEPS, runOpenSteps, runStep, STEP_LABELS, STEPS, statusLines, type StepName } from './flow.js';
 import { loadPolicy } from './policy.js';
@@ -25,7 +25,26 @@ function shown(ctx: CommandContext, path: string): string {
   return r && !r.startsWith('..') ? r : path;
 }
 
-async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean): Promise<Session | undefined> {
+/**
+ * Run an interview so that a stop (Ctrl-C) names the workpaper once it holds something, and
+ * keeps the answers given in the step in progress (offered again when it is asked again).
+ */
+async function guarded(run: (hold: (s: Session) => Session) => Promise<number>): Promise<number> {
+  let held: Session | undefined;
+  try {
+    return await run((s) => (held = s));
+  } catch (e) {
+    if (!isStop(e)) throw e;
+    const stop = new InterviewStopped((e as Error).message);
+    if (held?.saved) {
+      stop.keptUnfinished = held.currentStep !== undefined && held.keepUnfinished(held.currentStep);
+      stop.workpaper = held.path;
+    }
+    throw stop;
+  }
+}
+
+async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean, hold: (s: Session) => Session): Promise<Session | undefined> {
   if (o.policy) loadPolicy(resolve(ctx.cwd, o.policy));
   let file = o.file;
   if (file === undefined) {
@@ -41,7 +60,7 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     });
   }
   const path = workpaperPath(ctx.cwd, file);
-  const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist });
+  const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
   if (!s) {
     ctx.stdout.write('Nothing was changed.\n');
     return undefined;
@@ -57,96 +76,104 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
 function next(ctx: CommandContext, s: Session): void {
   const st = firstOpen(s.wp);
   const f = shown(ctx, s.path);
-  if (st === undefined) s.print('', `The test is complete and signed off. Write the memo with: tolrate memo ${f}`);
+  if (st === undefined) s.print('', `The test is complete and signed off. Write the memo with: ${s.command('memo', f)}`);
   else if (st === 'record') {
     const sheet = s.wp.selection?.fieldworkSheet;
     s.print(
       '',
       `Planning is complete.${sheet ? ` The fieldwork sheet is ${sheet} (beside the workpaper).` : ''}`,
-      `Test the items, then record the results with: tolrate record ${f}`,
+      `Test the items, then record the results with: ${s.command('record', f)}`,
     );
-  } else if (st === 'conclude' || st === 'signoff') s.print('', `Next: tolrate conclude ${f}`);
-  else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: tolrate plan ${f}`);
+  } else if (st === 'conclude' || st === 'signoff') s.print('', `Next: ${s.command('conclude', f)}`);
+  else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: ${s.command('plan', f)}`);
 }
 
 /** `tolrate plan [FILE]`. */
 export async function planInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, false);
-  if (!s) return 1;
-  const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
-  await runOpenSteps(s, PLAN_STEPS);
-  if (wasComplete) {
-    s.print('', 'Every planning step is answered.');
-    for (let i = 1; ; i++) {
-      const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
-      if (!st) break;
-      await runStep(s, st);
-      await runOpenSteps(s, PLAN_STEPS);
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, false, hold);
+    if (!s) return 1;
+    const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
+    await runOpenSteps(s, PLAN_STEPS);
+    if (wasComplete) {
+      s.print('', 'Every planning step is answered.');
+      for (let i = 1; ; i++) {
+        const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
+        if (!st) break;
+        await runStep(s, st);
+        await runOpenSteps(s, PLAN_STEPS);
+      }
     }
-  }
-  next(ctx, s);
-  return 0;
+    next(ctx, s);
+    return 0;
+  });
 }
 
 /** `tolrate record FILE`. */
 export async function recordInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, true);
-  if (!s) return 1;
-  const open1 = firstOpen(s.wp, PLAN_STEPS);
-  if (open1) {
-    throw new TolrateInputError(`The plan is not finished (next: ${STEP_LABELS[open1]}), so there is nothing to record yet.`, 'PLAN_INCOMPLETE', [
-      `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
-    ]);
-  }
-  await runStep(s, 'record');
-  next(ctx, s);
-  return 0;
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, true, hold);
+    if (!s) return 1;
+    const open1 = firstOpen(s.wp, PLAN_STEPS);
+    if (open1) {
+      throw new TolrateInputError(`The plan is not finished (next: ${STEP_LABELS[open1]}), so there is nothing to record yet.`, 'PLAN_INCOMPLETE', [
+        `Continue planning with: ${s.command('plan', shown(ctx, s.path))}`,
+      ]);
+    }
+    await runStep(s, 'record');
+    next(ctx, s);
+    return 0;
+  });
 }
 
 /** `tolrate conclude FILE`. */
 export async function concludeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, true);
-  if (!s) return 1;
-  const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
-  if (open1) {
-    const detail =
-      open1 === 'record' && s.wp.selection
-        ? (() => {
-            const p = progress(s.wp);
-            return `${int(p.total - p.recorded)} of ${int(p.total)} items have no result yet`;
-          })()
-        : `next: ${STEP_LABELS[open1]}`;
-    throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
-      open1 === 'record' ? `Record the results with: tolrate record ${shown(ctx, s.path)}` : `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
-    ]);
-  }
-  if (s.wp.conclusion) {
-    const again = await asker.confirm({
-      id: 'conclude.again',
-      message: `The test is concluded${s.wp.signoffs?.preparer ? ` and signed off by ${s.wp.signoffs.preparer.name}` : ''}. Conclude it again?`,
-      default: false,
-    });
-    if (again) await runStep(s, 'conclude');
-  }
-  await runOpenSteps(s, ['conclude', 'signoff']);
-  next(ctx, s);
-  return 0;
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, true, hold);
+    if (!s) return 1;
+    const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
+    if (open1) {
+      const detail =
+        open1 === 'record' && s.wp.selection
+          ? (() => {
+              const p = progress(s.wp);
+              return `${int(p.total - p.recorded)} of ${int(p.total)} items have no result yet`;
+            })()
+          : `next: ${STEP_LABELS[open1]}`;
+      throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
+        open1 === 'record' ? `Record the results with: ${s.command('record', shown(ctx, s.path))}` : `Continue planning with: ${s.command('plan', shown(ctx, s.path))}`,
+      ]);
+    }
+    if (s.wp.conclusion) {
+      const again = await asker.confirm({
+        id: 'conclude.again',
+        message: `The test is concluded${s.wp.signoffs?.preparer ? ` and signed off by ${s.wp.signoffs.preparer.name}` : ''}. Conclude it again?`,
+        default: false,
+      });
+      if (again) await runStep(s, 'conclude');
+    }
+    await runOpenSteps(s, ['conclude', 'signoff']);
+    next(ctx, s);
+    return 0;
+  });
 }
 
 /** The start screen's "new test" and "continue": the whole test from the first open step. */
 export async function wholeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, false);
-  if (!s) return 1;
-  const wasDone = firstOpen(s.wp) === undefined;
-  await runOpenSteps(s, STEPS);
-  if (wasDone) {
-    for (let i = 1; ; i++) {
-      const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
-      if (!st) break;
-      await runStep(s, st);
-      await runOpenSteps(s, STEPS);
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, false, hold);
+    if (!s) return 1;
+    const wasDone = firstOpen(s.wp) === undefined;
+    await runOpenSteps(s, STEPS);
+    if (wasDone) {
+      for (let i = 1; ; i++) {
+        const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
+        if (!st) break;
+        await runStep(s, st);
+        await runOpenSteps(s, STEPS);
+      }
     }
-  }
-  next(ctx, s);
-  return 0;
+    next(ctx, s);
+    return 0;
+  });
 }

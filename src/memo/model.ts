@@ -16,6 +16,8 @@ import type {
   Workpaper,
 } from '../workpaper/schema.js';
 import type { MemoTemplate } from './template.js';
+import { countResults, evidenceSupports, ratesSupport, testedResults } from '../control-test/index.js';
+import { tolerableDeviations } from '../stats/index.js';
 
 export type Outcome = 'supported' | 'not-supported' | 'draft';
 
@@ -102,11 +104,6 @@ function signedAmount(d: string | undefined): string | undefined {
   return /^-/.test(t) || /^0+(\.0+)?$/.test(t) ? f : `+${f}`;
 }
 
-/** ⌈x⌉ without binary noise: 0.06 × 1000 = 60.000000000000007 is 60. */
-export function ceilClean(x: number): number {
-  return Math.ceil(Number(x.toPrecision(12)));
-}
-
 /** 'random-v1: generator ... order' -> { id: 'random-v1', description: 'generator ... order' }. */
 export function algorithmParts(algorithm: string): { id: string; description: string | undefined } {
   const i = algorithm.indexOf(':');
@@ -165,7 +162,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
 
   // Results, counted from the record (voided items are not tested).
   const resultItems = wp.results?.items ?? [];
-  const tested = resultItems.filter((i) => !i.void);
+  const tested = testedResults(wp);
+  const counts = countResults(wp);
   const bySeq = new Map(resultItems.map((i) => [i.seq, i]));
 
   const deviations: DeviationView[] = [];
@@ -200,9 +198,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   /** Does the recorded evaluation, with the recorded causes, leave reliance unsupported? */
   const evidenceAgainst = (attrId: string, ev: AttributeEvaluation | undefined): boolean => {
     if (!ev) return false;
-    const byRates = ev.illustrative ? ev.deviations === 0 : ev.supportedByRates;
-    const escalated = deviations.some((d) => d.attributeId === attrId && (d.intentionalCode !== 'no' || d.patternCode === 'systemic'));
-    return !byRates || escalated;
+    const devs = deviations.filter((d) => d.attributeId === attrId).map((d) => ({ intentional: d.intentionalCode, pattern: d.patternCode }));
+    return !evidenceSupports(ev, devs);
   };
 
   const decisionFor = (attrId: string, ev: AttributeEvaluation | undefined, con: { supportsReliance: boolean } | undefined): string => {
@@ -210,7 +207,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
       if (con.supportsReliance) return evidenceAgainst(attrId, ev) ? L.decisionAgainstEvidence : L.decisionSupported;
       return ev && !ev.illustrative && ev.supportedByRates ? L.decisionOverridden : L.decisionNotSupported;
     }
-    if (ev) return (ev.illustrative ? ev.deviations === 0 : ev.supportedByRates) ? L.decisionSupported : L.decisionNotSupported;
+    if (ev) return ratesSupport(ev) ? L.decisionSupported : L.decisionNotSupported;
     return L.notYetEvaluated;
   };
 
@@ -218,14 +215,9 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     const tdr = attr.tolerableRate ?? a?.tolerableRate;
     const ev = wp.evaluation?.attributes.find((x) => x.attributeId === attr.id);
     const con = wp.conclusion?.attributes.find((x) => x.attributeId === attr.id);
-    let n = 0;
-    let k = 0;
-    for (const it of tested) {
-      const r: AttributeResult | undefined = it.attributes[attr.id];
-      if (!r) continue;
-      n++;
-      if (r.result === 'deviation') k++;
-    }
+    const count = counts.find((x) => x.attributeId === attr.id);
+    const n = count?.sampleSize ?? 0;
+    const k = count?.deviations ?? 0;
     const decision = decisionFor(attr.id, ev, con);
     const view: AttributeView = {
       attribute: attr,
@@ -316,7 +308,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     firstKey: p?.fingerprint.firstKey,
     lastKey: p?.fingerprint.lastKey,
     populationSize: populationSize !== undefined ? int(populationSize) : undefined,
-    populationDeviations: populationSize !== undefined && a ? int(ceilClean(a.tolerableRate * populationSize)) : undefined,
+    populationDeviations: populationSize !== undefined && a ? int(tolerableDeviations(populationSize, a.tolerableRate)) : undefined,
     approachKind: a ? L.approaches[a.kind] : undefined,
     confidence: confidence !== undefined ? pctPlain(confidence) : undefined,
     risk,

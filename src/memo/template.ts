@@ -22,6 +22,7 @@ import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
 import { editDistance } from '../util/text.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
+import { CAUSE_LABELS, FOLLOW_UP_LABELS, INTENT_LABELS, PATTERN_LABELS, SEVERITY_LABELS } from '../control-test/labels.js';
 import {
   CAUSES,
   FOLLOW_UP_KINDS,
@@ -206,11 +207,13 @@ export const MemoFile = z.strictObject({
     approaches: labelsOf(['statistical', 'non-statistical'] as const),
     models: labelsOf(MODELS),
     methods: labelsOf(['random', 'systematic', 'haphazard'] as const),
-    causes: labelsOf(CAUSES),
-    intent: labelsOf(INTENT),
-    patterns: labelsOf(PATTERNS),
-    severities: labelsOf(SEVERITIES),
-    followUpKinds: labelsOf(FOLLOW_UP_KINDS),
+    // The words for the recorded codes are the test's own (src/control-test/labels.ts); a firm's
+    // template may give its own wording for any of these lists.
+    causes: labelsOf(CAUSES).default(CAUSE_LABELS),
+    intent: labelsOf(INTENT).default(INTENT_LABELS),
+    patterns: labelsOf(PATTERNS).default(PATTERN_LABELS),
+    severities: labelsOf(SEVERITIES).default(SEVERITY_LABELS),
+    followUpKinds: labelsOf(FOLLOW_UP_KINDS).default(FOLLOW_UP_LABELS),
     roles: labelsOf(['sample', 'spare'] as const),
   }),
   text: z.strictObject({

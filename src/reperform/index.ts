@@ -19,7 +19,7 @@ import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { accessSync, constants, readFileSync } from 'node:fs';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
-import { evaluate, proposeConclusion } from '../evaluation/index.js';
+import { evaluate, proposeConclusion } from '../control-test/index.js';
 import { verifyLog, type Workpaper } from '../workpaper/index.js';
 import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
 import { pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';

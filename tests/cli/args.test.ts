@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { editDistance, nearest, parseFlags } from '../../src/cli/args.js';
+import { editDistance, nearest, parseFlags } from '../../src/commands/args.js';
 import { UsageError } from '../../src/errors.js';
 
 describe('argument parsing', () => {

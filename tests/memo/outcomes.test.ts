@@ -147,7 +147,7 @@ describe('other records', () => {
   });
 
   it('a Poisson evaluation names the factor method in the results and the formulas', async () => {
-    const { evaluate } = await import('../../src/evaluation/index.js');
+    const { evaluate } = await import('../../src/control-test/index.js');
     const f = buildFixture({ variant: 'supported', stage: 'recorded' });
     const wp = { ...f.wp, approach: { ...f.wp.approach!, model: 'poisson' as const } };
     wp.evaluation = evaluate(wp);

@@ -1,9 +1,9 @@
 import { rmSync } from 'node:fs';
-import { parseFlags, str } from '../../cli/args.js';
+import { parseFlags, str } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 import { fileLines, loadScenario, narrative, runDemoInterview, SCENARIOS, type Scenario } from '../../interview/demo.js';
-import { nearest } from '../../cli/args.js';
+import { nearest } from '../args.js';
 
 const SPEC = { out: { type: 'string' as const }, scenario: { type: 'string' as const }, verbose: { type: 'boolean' as const } };
 

@@ -1,5 +1,5 @@
 import { resolve } from 'node:path';
-import { parseFlags, str } from '../../cli/args.js';
+import { parseFlags, str } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 

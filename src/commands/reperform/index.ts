@@ -1,4 +1,4 @@
-import { parseFlags, str } from '../../cli/args.js';
+import { parseFlags, str } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 
