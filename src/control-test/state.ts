@@ -5,7 +5,7 @@
  */
 import { pctExact, pctPlain } from '../util/format.js';
 import { verifyLog, type IntegrityProblem } from '../workpaper/log.js';
-import type { Workpaper } from '../workpaper/schema.js';
+import type { Evaluation, Workpaper } from '../workpaper/schema.js';
 import { TolrateInputError } from '../errors.js';
 import { evaluate, evaluationDifferences } from './evaluate.js';
 import { conclusionProblems } from './conclude.js';
@@ -24,6 +24,8 @@ export interface TestState {
   conclusion: string[];
   /** Every reason a memo of this state cannot be final; empty when it can. */
   notFinal: string[];
+  /** The evaluation the recorded results give now (when they can be evaluated). */
+  fresh?: Evaluation;
 }
 
 /** The state of a test, from its workpaper alone. */
@@ -32,9 +34,11 @@ export function testState(wp: Workpaper): TestState {
   const integrity = verifyLog(wp);
   const worklist = worklistProblems(wp, { requireComplete: wp.evaluation !== undefined || wp.conclusion !== undefined });
   let evaluation: string[] = [];
+  let fresh: Evaluation | undefined;
   if (wp.evaluation && wp.results) {
     try {
-      evaluation = evaluationDifferences(wp.evaluation, evaluate(wp), { pct: pctPlain, exact: pctExact });
+      fresh = evaluate(wp, new Date(wp.evaluation.evaluatedAt));
+      evaluation = evaluationDifferences(wp.evaluation, fresh, { pct: pctPlain, exact: pctExact });
     } catch (e) {
       if (!(e instanceof TolrateInputError)) throw e;
       evaluation = [`the recorded results cannot be evaluated: ${e.message}`];
@@ -47,7 +51,7 @@ export function testState(wp: Workpaper): TestState {
   for (const w of worklist) notFinal.push(`results and selection: ${w}`);
   for (const d of evaluation) notFinal.push(`evaluation: ${d}`);
   for (const d of conclusion) notFinal.push(`conclusion: ${d}`);
-  return { open, integrity, worklist, evaluation, conclusion, notFinal };
+  return { open, integrity, worklist, evaluation, conclusion, notFinal, ...(fresh ? { fresh } : {}) };
 }
 
 /**

@@ -173,14 +173,14 @@ export function worklistProblems(wp: Workpaper, o: { requireComplete?: boolean }
     const r = results.find((y) => y.key === x.item.key);
     if (!isComplete(wp, r)) problems.push(`${x.item.key} (item ${x.item.seq}${x.replaces ? `, spare replacing ${x.replaces}` : ''}): on the worklist but has no complete result`);
   }
-  // Order: the recorded results of worklist items must follow the worklist.
-  const order = results.map((r) => onList.get(r.key)?.at).filter((i): i is number => i !== undefined);
-  for (let i = 1; i < order.length; i++) {
-    if (order[i]! < order[i - 1]!) {
-      const a = results.find((r) => onList.get(r.key)?.at === order[i - 1])!;
-      const b = results.find((r) => onList.get(r.key)?.at === order[i])!;
-      problems.push(`results are out of draw order: ${b.key} (item ${b.seq}) is recorded after ${a.key} (item ${a.seq})`);
-      break;
+  // Order: sample items' results follow the draw order (seq), and so do the spares' among themselves.
+  for (const role of ['sample', 'spare'] as const) {
+    const seqs = results.filter((r) => selected.get(r.key)?.role === role && onList.has(r.key));
+    for (let i = 1; i < seqs.length; i++) {
+      if (seqs[i]!.seq < seqs[i - 1]!.seq) {
+        problems.push(`results are out of draw order: ${seqs[i]!.key} (item ${seqs[i]!.seq}) is recorded after ${seqs[i - 1]!.key} (item ${seqs[i - 1]!.seq})`);
+        break;
+      }
     }
   }
   return problems;

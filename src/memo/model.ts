@@ -10,13 +10,14 @@ import { int, pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js
 import type {
   Attribute,
   AttributeEvaluation,
-  AttributeResult,
+  Evaluation,
   FollowUp,
   SelectedItem,
   Workpaper,
 } from '../workpaper/schema.js';
 import type { MemoTemplate } from './template.js';
-import { countResults, evidenceSupports, ratesSupport, testedResults } from '../control-test/index.js';
+import { countResults, evidenceSupports, ratesSupport, testedResults, testState } from '../control-test/index.js';
+import { stateHash } from '../workpaper/log.js';
 import { tolerableDeviations } from '../stats/index.js';
 
 export type Outcome = 'supported' | 'not-supported' | 'draft';
@@ -69,7 +70,14 @@ export interface SpareView {
 
 export interface MemoModel {
   wp: Workpaper;
+  /** Not a final memo: something is open or does not agree (see notFinal). Marked DRAFT on every page. */
   draft: boolean;
+  /** Every reason the memo is not final (steps open, no sign-off, the file changed outside tolrate, figures that do not follow from the results). */
+  notFinal: string[];
+  /** The test is evaluated and concluded (its conclusion sections are filled). */
+  concluded: boolean;
+  /** The evaluation shown: the recorded one, or the one the recorded results give when they differ. */
+  evaluation: Evaluation | undefined;
   outcome: Outcome;
   nonStatistical: boolean;
   haphazard: boolean;
@@ -118,6 +126,8 @@ function dateTime(iso: string): string {
 
 export interface ModelOptions {
   workpaperPath?: string;
+  /** Further reasons the memo is not final (e.g. it is written on request from a file changed outside tolrate). */
+  extraNotFinal?: string[];
   now?: Date;
   toolVersion?: string;
 }
@@ -133,8 +143,14 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   const nonStatistical = a?.kind === 'non-statistical';
   const haphazard = s?.method === 'haphazard';
   const illustrative = nonStatistical || haphazard;
-  const draft = !wp.evaluation || !wp.conclusion;
-  const outcome: Outcome = draft ? 'draft' : wp.conclusion!.control.supportsReliance ? 'supported' : 'not-supported';
+  const state = testState(wp);
+  const notFinal = [...state.notFinal, ...(opts.extraNotFinal ?? [])];
+  const draft = notFinal.length > 0;
+  // The memo never shows figures the recorded results do not give: when the recorded evaluation
+  // differs from them, the figures shown are the ones the results give (and the memo is a draft).
+  const evaluation = state.evaluation.length > 0 && state.fresh ? state.fresh : wp.evaluation;
+  const concluded = evaluation !== undefined && wp.conclusion !== undefined;
+  const outcome: Outcome = !concluded ? 'draft' : wp.conclusion!.control.supportsReliance ? 'supported' : 'not-supported';
   const missing: string[] = [];
   for (const [k, v] of [
     ['engagement', e], ['control', c], ['attributes', wp.attributes], ['population', p], ['approach', a],
@@ -213,7 +229,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
 
   const attributes: AttributeView[] = attrs.map((attr) => {
     const tdr = attr.tolerableRate ?? a?.tolerableRate;
-    const ev = wp.evaluation?.attributes.find((x) => x.attributeId === attr.id);
+    const ev = evaluation?.attributes.find((x) => x.attributeId === attr.id);
     const con = wp.conclusion?.attributes.find((x) => x.attributeId === attr.id);
     const count = counts.find((x) => x.attributeId === attr.id);
     const n = count?.sampleSize ?? 0;
@@ -354,10 +370,11 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     workpaperId: wp.id,
     logEntries: int(wp.log.length),
     lastLogHash: last?.hash,
+    contentHash: stateHash(wp),
   };
 
   const followUps = (wp.conclusion?.followUps ?? []).map((f) => ({ ...f, kindLabel: L.followUpKinds[f.kind] }));
-  return { wp, draft, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing };
+  return { wp, draft, notFinal, concluded, evaluation, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing };
 }
 
 /** Exact figures for the appendix, to 4 decimal places of a percent. */

@@ -119,6 +119,7 @@ export const PLACEHOLDERS = {
   workpaperId: 'the workpaper id',
   logEntries: 'the number of change-log entries',
   lastLogHash: 'the hash of the last change-log entry',
+  contentHash: 'SHA-256 of the workpaper\'s content as it is now (without its log); equal to the state hash of the last log entry unless the file was changed outside tolrate',
 } as const;
 
 /** Placeholders of the paragraphs written once per attribute (see ATTRIBUTE_SCOPED_KEYS). */
@@ -199,7 +200,11 @@ export const MemoFile = z.strictObject({
   }),
   title: para,
   subtitle: para,
-  headings: z.strictObject(Object.fromEntries(HEADINGS.map((k) => [k, para])) as Record<(typeof HEADINGS)[number], z.ZodString>),
+  headings: z.strictObject({
+    ...(Object.fromEntries(HEADINGS.map((k) => [k, para])) as Record<(typeof HEADINGS)[number], z.ZodString>),
+    // Added after the first release: a firm's copy without it gets the default.
+    appendixItemsList: para.default('A.1 Items and their results'),
+  }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
     frequencies: labelsOf(FREQUENCIES),
@@ -230,7 +235,7 @@ export const OUTCOME_FILES = {
   'not-supported': Verdict,
   'non-statistical': Caveat.extend({ approachNote: para }),
   haphazard: Caveat.extend({ selectionNote: para }),
-  draft: z.strictObject({ headerMark: para, banner: para, verdict: para }),
+  draft: z.strictObject({ headerMark: para, banner: para, verdict: para, reasonsLead: para.default('Not final because:') }),
 } as const;
 
 export type MemoWording = z.infer<typeof MemoFile>;
