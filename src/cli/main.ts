@@ -57,7 +57,7 @@ export function defaultContext(): CommandContext {
     color: Boolean(process.stdout.isTTY) && !('NO_COLOR' in process.env && process.env.NO_COLOR !== ''),
     cwd: process.cwd(),
     env: process.env,
-    invocation: invocation(process.argv[1], process.cwd(), process.env),
+    invocation: invocation(process.argv[1], process.cwd()),
   };
 }
 
@@ -65,10 +65,12 @@ export function defaultContext(): CommandContext {
  * How the user started tolrate, for the commands the tool prints ("Continue with: ..."): `tolrate`
  * when installed on the PATH, `npx tolrate` under npx, `node dist/cli.js` when run from a clone.
  */
-export function invocation(script: string | undefined, cwd: string, env: Record<string, string | undefined>): string {
-  if (env.npm_command === 'exec' || env.npm_lifecycle_event === 'npx') return 'npx tolrate';
+export function invocation(script: string | undefined, cwd: string): string {
   if (!script) return 'tolrate';
-  if (basename(script) === 'tolrate') return 'tolrate';
+  const parts = script.split(/[\\/]/);
+  // The bin link: in a node_modules folder (npx, or a local install) it is run with npx; on the PATH as is.
+  if (basename(script) === 'tolrate' || basename(script) === 'tolrate.cmd') return parts.includes('node_modules') ? 'npx tolrate' : 'tolrate';
+  if (parts.includes('node_modules')) return 'npx tolrate';
   const r = relative(cwd, script);
   const shown = r && !r.startsWith('..') && !r.startsWith('/') ? r : script;
   return `node ${/\s/.test(shown) ? `"${shown}"` : shown}`;

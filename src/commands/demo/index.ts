@@ -46,9 +46,12 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const out = str(p, 'out') ?? 'demo-output';
   const title = loadScenario(scenario).title;
   const got = await runDemoInterview(ctx, { out, scenario, verbose: p.values.verbose === true });
-  const { defaultMemoPath, writeMemo } = await import('../../memo/index.js');
+  const { defaultMemoPath, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
   rmSync(defaultMemoPath(got.workpaperPath), { force: true });
-  const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath, now: got.now() });
+  const at = got.now();
+  const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath, now: at });
+  const final = !(await memoModel(got.workpaper, { workpaperPath: got.workpaperPath })).draft;
+  recordMemo(got.workpaper, got.workpaperPath, memo, { at, final });
   got.files.push({ what: 'memo', path: memo.path });
   if (p.values.verbose) ctx.stdout.write('\n');
   ctx.stdout.write(`${narrative(got.workpaper, `tolrate demo: ${title}`).join('\n')}\n`);
