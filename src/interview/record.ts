@@ -14,6 +14,7 @@ export { worklist, isRecorded, progress, recordingComplete } from '../control-te
 import { AnswerError, existingFile, requiredText } from './parse.js';
 import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
 import { table, wrap } from './show.js';
+import { canonicalJson } from '../workpaper/log.js';
 
 function describe(item: SelectedItem, max = 6): string {
   const vals = Object.entries(item.values).filter(([k, v]) => k !== '' && v !== item.key).slice(0, max);
@@ -26,6 +27,11 @@ function describe(item: SelectedItem, max = 6): string {
  * answers are kept as the defaults for concluding again.
  */
 export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): void {
+  const before = s.wp.results?.items.find((x) => x.key === r.key);
+  if (before && canonicalJson(before) === canonicalJson(r)) {
+    s.print(`  ${r.key}: unchanged.`);
+    return;
+  }
   if (s.wp.evaluation || s.wp.conclusion) {
     s.wp = clearSteps(s.wp, ['conclude']);
     s.print('  The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).');
