@@ -57,6 +57,8 @@ export interface ReperformOptions {
   memoPath?: string;
   /** The memo template the memo was written with, when not the one recorded with it. */
   templateDir?: string;
+  /** The memo's name as the user gave it (shown in the report; default: its path). */
+  memoLabel?: string;
   /** Progress bar stream for big populations (a terminal), or nothing. */
   progress?: { write(text: string): unknown; isTTY?: boolean };
 }
@@ -298,7 +300,7 @@ export function stateAt(wp: Workpaper, seq: number): Workpaper {
  * says which state of the file it shows), the memo rendered afresh from that state with the same
  * template, and the two compared section by section and table cell by table cell.
  */
-async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string, templateDir?: string): Promise<Check> {
+async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string, templateDir?: string, label = memoPath): Promise<Check> {
   let data: Buffer;
   try {
     data = readFileSync(memoPath);
@@ -339,8 +341,8 @@ async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string,
     ? `it shows the state after log entry ${against.logSeq}${later > 0 ? ` (${later} later change(s) are not in it)` : ''}`
     : 'compared with the workpaper as it is now';
   const summary = diffs.length === 0
-    ? `${memoPath}: as tolrate wrote it on ${against!.at.replace('T', ' ').replace(/(\.\d+)?Z$/, ' UTC')}; ${shows}; every section and table cell agrees`
-    : `${memoPath}: ${found.length} difference(s) in the text; ${shows}`;
+    ? `${label}: as tolrate wrote it on ${against!.at.replace('T', ' ').replace(/(\.\d+)?Z$/, ' UTC')}; ${shows}; every section and table cell agrees`
+    : `${label}: ${found.length} difference(s) in the text; ${shows}`;
   return { area: 'memo', summary, differences: diffs };
 }
 
@@ -372,7 +374,7 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
   checks.push(checkResults(wp));
   checks.push(checkEvaluation(wp));
   checks.push(checkConclusion(wp));
-  if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath, opts.workpaperPath, opts.templateDir));
+  if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath, opts.workpaperPath, opts.templateDir, opts.memoLabel));
   return {
     workpaperPath: opts.workpaperPath,
     ...(opts.populationPath ? { populationPath: opts.populationPath } : {}),

@@ -56,7 +56,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     workpaper,
     workpaperPath,
     ...(population ? { populationPath: resolve(ctx.cwd, population) } : {}),
-    ...(memo ? { memoPath: resolve(ctx.cwd, memo) } : {}),
+    ...(memo ? { memoPath: resolve(ctx.cwd, memo), memoLabel: memo } : {}),
     ...(template ? { templateDir: resolve(ctx.cwd, template) } : {}),
     ...(ctx.isTTY ? { progress: process.stderr } : {}),
   });
