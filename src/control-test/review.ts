@@ -136,7 +136,16 @@ export function recordChanges(before: Workpaper, after: Workpaper): Amendment['c
   return diff(content(before), content(after))
     .filter((c) => !NOT_RECORD.has(String(c.path[0])) && !TIMES.has(String(c.path[c.path.length - 1])))
     .sort((x, y) => rank(x.path) - rank(y.path))
-    .map((c) => ({ path: formatPath(c.path), ...(c.old !== undefined ? { old: c.old } : {}), ...(c.deleted ? {} : { new: c.new }) }));
+    .map((c) => ({ path: withItemKey(formatPath(c.path), before, after), ...(c.old !== undefined ? { old: c.old } : {}), ...(c.deleted ? {} : { new: c.new }) }));
+}
+
+/** "results.items[64].attributes.A1.cause" -> "results.items[64] (PI-253141).attributes.A1.cause", so a reader finds the item. */
+function withItemKey(path: string, before: Workpaper, after: Workpaper): string {
+  const m = /^(results|selection)\.items\[(\d+)\]/.exec(path);
+  if (!m) return path;
+  const i = Number(m[2]);
+  const key = (m[1] === 'results' ? (after.results?.items[i] ?? before.results?.items[i]) : (after.selection?.items[i] ?? before.selection?.items[i]))?.key;
+  return key ? `${m[0]} (${key})${path.slice(m[0].length)}` : path;
 }
 
 /** The sign-offs present (the ones a change to the record clears). */

@@ -16,6 +16,7 @@ import { progress } from './record.js';
 import { answerOpenNotes, reviewSitting } from './review.js';
 import { reviewStatus } from '../control-test/index.js';
 import type { Session } from './session.js';
+import { wrap } from './show.js';
 
 export interface StageOptions extends InterviewOptions {
   file?: string | undefined;
@@ -84,8 +85,8 @@ function next(ctx: CommandContext, s: Session): void {
     const rv = reviewStatus(s.wp);
     if (rv.stage === 'reviewed') s.print('', `The test is complete, reviewed and signed off. Write the memo with: ${s.command('memo', f)}`);
     else {
-      s.print('', `The test is complete and signed off by the preparer; review: ${rv.label}.`);
-      s.print(`The reviewer reviews it with: ${s.command('review', f)} (until the review is signed off, the memo is a DRAFT: ${s.command('memo', f)}).`);
+      s.print('', ...wrap(`The test is complete and signed off by the preparer; review: ${rv.label}.`));
+      s.print(...wrap(`The reviewer reviews it with: ${s.command('review', f)} (until the review is signed off, the memo is a DRAFT: ${s.command('memo', f)}).`));
     }
   }
   else if (st === 'record') {

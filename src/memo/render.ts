@@ -33,6 +33,7 @@ import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { chartSvg, renderPng, type ChartRow } from './chart.js';
 import { exact, type MemoModel } from './model.js';
 import { fill, type MemoTemplate } from './template.js';
+import { REVIEW_SECTION_LABELS } from '../control-test/index.js';
 
 const PAPER = {
   A4: { width: 11906, height: 16838, margin: 1134 },
@@ -921,7 +922,7 @@ async function appendixReviewSection(c: Ctx): Promise<void> {
     ],
     notes.map((n) => [
       { text: n.id, bold: true },
-      `${n.section}${n.item ? `\n${n.item}` : ''}${n.mustClear ? `\n(${L.mustClear})` : ''}`,
+      `${REVIEW_SECTION_LABELS[n.section]}${n.item ? `\n${n.item}` : ''}${n.mustClear ? `\n(${L.mustClear})` : ''}`,
       n.thread.map((e) => `${e.kind === 'answered' && e.changedRecord ? L.noteAnsweredChanged : kind[e.kind]} — ${e.by} (${e.role}), ${when(e.at)}${e.text ? `: ${e.text}` : ''}`).join('\n'),
     ]),
     { size: 16 },
