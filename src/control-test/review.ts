@@ -84,7 +84,7 @@ export function checkNoteItem(wp: Workpaper, key: string): string {
   const items = wp.selection?.items ?? [];
   if (items.some((i) => i.key === k)) return k;
   const sample = items.slice(0, 5).map((i) => i.key).join(', ');
-  throw new TolrateInputError(`There is no selected item ${k}.${sample ? ` Selected items are, for example: ${sample}${items.length > 5 ? ', ...' : ''}.` : ''}`, 'NO_SUCH_ITEM');
+  throw new TolrateInputError(`There is no selected item ${k}.${sample ? ` Selected items are, for example, ${sample}${items.length > 5 ? ` (and ${items.length - 5} more)` : ''}.` : ''}`, 'NO_SUCH_ITEM');
 }
 
 function withNotes(wp: Workpaper, list: ReviewNote[]): Workpaper {

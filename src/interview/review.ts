@@ -67,8 +67,8 @@ export function sectionLines(wp: Workpaper, section: ReviewSection): string[] {
       if (!p) break;
       kv('Population', `${p.description}; sampling unit: ${p.samplingUnit}`);
       kv('Source', p.source.kind === 'ranges' ? `ranges ${p.source.ranges}` : p.source.path);
-      kv('Count', `${int(p.fingerprint.rowCount)} (ledger ${p.tieOut.ledgerCount !== undefined ? int(p.tieOut.ledgerCount) : 'not given'}, difference ${p.tieOut.countDifference ?? 'n/a'})`);
-      kv('Total', p.fingerprint.amountTotal !== undefined ? `${groupDigits(p.fingerprint.amountTotal)} (ledger ${p.tieOut.ledgerTotal !== undefined ? groupDigits(p.tieOut.ledgerTotal) : 'not given'}, difference ${p.tieOut.totalDifference ?? 'n/a'})` : undefined);
+      kv('Count', `${int(p.fingerprint.rowCount)} (ledger ${p.tieOut.ledgerCount !== undefined ? int(p.tieOut.ledgerCount) : 'not given'}, difference ${p.tieOut.countDifference !== undefined ? int(p.tieOut.countDifference) : 'n/a'})`);
+      kv('Total', p.fingerprint.amountTotal !== undefined ? `${groupDigits(p.fingerprint.amountTotal)} (ledger ${p.tieOut.ledgerTotal !== undefined ? groupDigits(p.tieOut.ledgerTotal) : 'not given'}, difference ${p.tieOut.totalDifference !== undefined ? groupDigits(p.tieOut.totalDifference) : 'n/a'})` : undefined);
       kv('Ledger source', p.tieOut.ledgerSource);
       kv('Explanation of differences', p.tieOut.explanation);
       kv('Validation', p.validation.ok ? 'no problems' : `${p.validation.messages.length} problem(s) accepted: ${p.validation.acceptedReason ?? ''}`);
@@ -221,10 +221,10 @@ export async function reviewSitting(s: Session): Promise<void> {
   s.heading('Reviewer sign-off');
   const problems = reviewerSignoffProblems(s.wp, differences);
   if (problems.length > 0) {
-    s.print('  The reviewer cannot sign off yet:', ...problems.flatMap((p) => wrap(`- ${p}`, 92, '  ')));
+    s.print('  The reviewer cannot sign off yet:', ...problems.flatMap((p) => wrap(p, 88, '    ').map((l, i) => (i === 0 ? `  - ${l.trimStart()}` : l))));
     const st = reviewStatus(s.wp);
     s.print('', `  Status: ${st.label}.`);
-    if (st.open > 0) s.print(`  The preparer answers the open notes with: ${s.command('', relative(s.cwd, s.path) || s.path)}`);
+    if (st.open > 0) s.print(...wrap(`The preparer answers the open notes with: ${s.command('', relative(s.cwd, s.path) || s.path)}`, 92, '  '));
     return;
   }
   const sign = await a.confirm({ id: 'review.signoff', message: 'Sign off the review now?', default: true });
@@ -272,7 +272,9 @@ export async function answerOpenNotes(s: Session, runStep: (st: StepName) => Pro
     if (what.startsWith('change:')) {
       const st = what.slice('change:'.length) as StepName;
       const before = s.wp.log.length;
+      s.focusItem = n.item;
       await runStep(st);
+      s.focusItem = undefined;
       changed = s.wp.log.length > before;
     }
     const text = await s.asker.text({ id: `notes.${n.id}.answer`, message: 'Your answer', parse: requiredText('The answer') });

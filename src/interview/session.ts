@@ -49,6 +49,8 @@ export class Session {
   readonly invocation: string;
   /** The step being asked, for keeping its answers if the user stops. */
   currentStep: string | undefined;
+  /** The item a review note being answered is on: offered first when an item is to be changed. */
+  focusItem: string | undefined;
   /** Who answers, in which role: the preparer (default) or, in a review, the reviewer. */
   actor: { name: string; role: Role } | undefined;
   /** A change after a sign-off: the record as signed, why, who, and the sign-offs it cleared. */
