@@ -70,7 +70,7 @@ export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions =
   const template = opts.template ?? (await loadTemplate(opts.templateDir));
   const model = buildModel(workpaper, template, modelOptions(opts));
   const doc = await buildDocument(model, template, { chart: opts.chart ?? true });
-  return packDocument(doc);
+  return packDocument(doc, opts.now ?? new Date());
 }
 
 /** Render the memo and write it (atomically) to `out` or beside the workpaper. */
