@@ -1098,6 +1098,14 @@ export async function packDocument(doc: Document, at: Date = new Date()): Promis
     const xml = (await core.async('string')).replace(/(<dcterms:(created|modified)[^>]*>)[^<]*(<\/dcterms:\2>)/g, `$1${stamp}$3`);
     zip.file('docProps/core.xml', xml);
   }
+  // The library numbers drawings with a counter that runs on across documents: number them afresh.
+  const body = zip.file('word/document.xml');
+  if (body) {
+    let n = 0;
+    let m = 0;
+    const xml = (await body.async('string')).replace(/<wp:docPr id="\d+"/g, () => `<wp:docPr id="${++n}"`).replace(/<pic:cNvPr id="\d+"/g, () => `<pic:cNvPr id="${++m}"`);
+    zip.file('word/document.xml', xml);
+  }
   const out = new JSZip();
   for (const name of Object.keys(zip.files).sort()) {
     const f = zip.files[name]!;
