@@ -1,6 +1,6 @@
 import { NoPracticalSizeError } from '../errors.js';
 import { MAX_SAMPLE_SIZE } from './constants.js';
-import { ceilGuarded } from './expected-deviations.js';
+import { tolerableCount } from './tolerable-count.js';
 import { resolveModel } from './resolve-model.js';
 import { riskFunction } from './risk-function.js';
 import type { ExtensionSizeOptions } from './types.js';
@@ -37,8 +37,8 @@ export function extensionSize(options: ExtensionSizeOptions): number {
         : Math.min(MAX_SAMPLE_SIZE, populationSize);
   if (cap <= n || !withinRisk(risk(cap, k), beta)) {
     let why: string;
-    if (model === 'hypergeometric' && k >= Math.min(populationSize!, ceilGuarded(tolerableRate * populationSize!))) {
-      why = `${k} deviations already reach the tolerable number of deviations in the population (${Math.min(populationSize!, ceilGuarded(tolerableRate * populationSize!))} of ${populationSize})`;
+    if (model === 'hypergeometric' && k >= tolerableCount(populationSize!, tolerableRate)) {
+      why = `${k} deviations already reach the tolerable number of deviations in the population (${tolerableCount(populationSize!, tolerableRate)} of ${populationSize})`;
     } else if (model === 'hypergeometric') {
       why = `even testing all ${populationSize} units would not be enough`;
     } else {

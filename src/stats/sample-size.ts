@@ -1,6 +1,7 @@
 import { NoPracticalSizeError } from '../errors.js';
 import { MAX_SAMPLE_SIZE } from './constants.js';
 import { ceilGuarded } from './expected-deviations.js';
+import { tolerableCount } from './tolerable-count.js';
 import { resolveModel } from './resolve-model.js';
 import { riskFunction } from './risk-function.js';
 import { smallestSampleSize } from './smallest-sample-size.js';
@@ -75,11 +76,11 @@ export function searchSize(
   const risk = riskFunction(model, tolerableRate, populationSize);
   if (model === 'hypergeometric') {
     const N = populationSize!;
-    const tolerable = Math.min(N, ceilGuarded(tolerableRate * N));
-    return smallestSampleSize(risk, expectedRate, beta, N, tolerable);
+    const tolerable = tolerableCount(N, tolerableRate);
+    return smallestSampleSize(risk, expectedRate, beta, N, tolerable, { kind: 'hypergeometric', N, M: tolerable });
   }
   const cap = populationSize === undefined ? MAX_SAMPLE_SIZE : Math.min(MAX_SAMPLE_SIZE, populationSize);
-  return smallestSampleSize(risk, expectedRate, beta, cap);
+  return smallestSampleSize(risk, expectedRate, beta, cap, Infinity, model === 'binomial' ? { kind: 'binomial', p: tolerableRate } : undefined);
 }
 
 function noSizeMessage(
