@@ -18,6 +18,20 @@ export type {
   SampleSizeResult,
   UpperLimitOptions,
   UpperLimitResult,
+  AcceptanceNumberOptions,
+  BothRisksPlanOptions,
+  BothRisksPlanResult,
+  OperatingCharacteristicOptions,
+  OperatingCharacteristicPoint,
+  PlanRisks,
+  PlanRisksOptions,
+  SingleStagePlan,
+  TwoStagePlan,
+  TwoStagePlanOptions,
+  TwoStagePlanResult,
+  UnderrelianceRiskOptions,
+  ExtensionRiskOptions,
+  ExtensionRiskResult,
 } from './types.js';
 export { MODELS } from './types.js';
 export {
@@ -37,6 +51,12 @@ export { decision } from './decision.js';
 export { resolveModel } from './resolve-model.js';
 export { expectedDeviations } from './expected-deviations.js';
 export { tolerableDeviations } from './tolerable-deviations.js';
+export { acceptanceNumber } from './acceptance-number.js';
+export { underrelianceRisk } from './underreliance-risk.js';
+export { planRisks } from './plan-risks.js';
+export { operatingCharacteristic } from './operating-characteristic.js';
+export { twoStagePlan } from './two-stage-plan.js';
+export { extensionRisk } from './extension-risk.js';
 
 export { binomialPmf } from './binomial-pmf.js';
 export { binomialLogPmf } from './binomial-log-pmf.js';

@@ -1,0 +1,139 @@
+/**
+ * The sampling distribution of the deviations in a draw of n items, for the functions that work
+ * on whole plans (two-stage plans, extensions, operating characteristics). Internal, unchecked:
+ * the public functions check their inputs first.
+ *
+ * - binomial: X ~ Binomial(n, p) (each item deviates with probability p, independently);
+ * - Poisson: X ~ Poisson(n·p) (the factor approximation);
+ * - hypergeometric: X ~ Hypergeometric(N, M, n), n items drawn without replacement from N units of
+ *   which M deviate; after a first stage of n1 items with x deviations, the second stage is drawn
+ *   from the N − n1 untested units, M − x of which deviate.
+ *
+ * Probabilities come from Loader's saddle-point terms (C. Loader, 2000) in log space.
+ */
+import { binomialLogCdf } from './binomial-log-cdf.js';
+import { floorTimes } from './exact-rate.js';
+import { hyperLogCdf } from './hypergeometric-log-cdf.js';
+import { hyperLogPmf } from './hypergeometric-log-pmf.js';
+import { logBinomialDensity } from './log-binomial-density.js';
+import { logPoissonDensity } from './log-poisson-density.js';
+import { poissonLogCdf } from './poisson-log-cdf.js';
+import { tolerableCount } from './tolerable-count.js';
+import type { Model } from './types.js';
+
+export type Draw =
+  | { kind: 'binomial'; p: number }
+  | { kind: 'poisson'; p: number }
+  | { kind: 'hypergeometric'; N: number; M: number };
+
+/**
+ * The draw at a rate: for the hypergeometric model the population's deviations are
+ * M = ⌈rate·N⌉ ('ceil', the convention at the tolerable rate) or ⌊rate·N⌋ ('floor', at the
+ * expected rate: the most deviations that do not exceed it), computed exactly.
+ */
+export function drawAt(model: Model, rate: number, populationSize: number | undefined, rounding: 'ceil' | 'floor'): Draw {
+  if (model === 'hypergeometric') {
+    const N = populationSize!;
+    const M = rounding === 'ceil' ? tolerableCount(N, rate) : Math.min(N, floorTimes(N, rate));
+    return { kind: 'hypergeometric', N, M };
+  }
+  return { kind: model, p: rate };
+}
+
+/** The units a draw can still take from (Infinity for the binomial and Poisson models). */
+export function available(d: Draw): number {
+  return d.kind === 'hypergeometric' ? d.N : Infinity;
+}
+
+/** log P(X = x) in a draw of n. */
+export function logPmf(d: Draw, n: number, x: number): number {
+  if (x < 0) return -Infinity;
+  switch (d.kind) {
+    case 'binomial':
+      return x > n ? -Infinity : logBinomialDensity(x, n, d.p, 1 - d.p);
+    case 'poisson':
+      return logPoissonDensity(x, n * d.p);
+    case 'hypergeometric':
+      return n === 0 ? (x === 0 ? 0 : -Infinity) : hyperLogPmf(x, d.N, d.M, n);
+  }
+}
+
+/** P(X = x) for x = 0..upTo in a draw of n. */
+export function pmfUpTo(d: Draw, n: number, upTo: number): number[] {
+  const out: number[] = [];
+  for (let x = 0; x <= upTo; x++) out.push(Math.exp(logPmf(d, n, x)));
+  return out;
+}
+
+/** P(X ≤ k) in a draw of n. */
+export function cdfAt(d: Draw, n: number, k: number): number {
+  if (k < 0) return 0;
+  if (n === 0) return 1;
+  switch (d.kind) {
+    case 'binomial':
+      return Math.exp(binomialLogCdf(k, n, d.p));
+    case 'poisson':
+      return Math.exp(poissonLogCdf(k, n * d.p));
+    case 'hypergeometric':
+      return Math.exp(hyperLogCdf(k, d.N, d.M, n));
+  }
+}
+
+/** The draw left after n items with x deviations have been tested. */
+export function after(d: Draw, n: number, x: number): Draw {
+  return d.kind === 'hypergeometric' ? { kind: 'hypergeometric', N: d.N - n, M: d.M - x } : d;
+}
+
+/**
+ * Visit P(X = j) for j = 0, 1, 2, … in a draw of n, by the ratio P(j+1)/P(j) from the exact
+ * first term, until past the mean the terms fall below 1e-20 of the largest (their sum cannot
+ * reach 1e-17) or the support ends. The visitor may return false to stop early.
+ */
+export function eachPmf(d: Draw, n: number, visit: (j: number, p: number) => boolean | void): void {
+  let j = 0;
+  let p = Math.exp(logPmf(d, n, 0));
+  let mean: number;
+  let top: number;
+  let ratio: (j: number) => number;
+  switch (d.kind) {
+    case 'binomial': {
+      const odds = d.p / (1 - d.p);
+      mean = n * d.p;
+      top = n;
+      ratio = (i) => ((n - i) / (i + 1)) * odds;
+      break;
+    }
+    case 'poisson': {
+      const lambda = n * d.p;
+      mean = lambda;
+      top = Infinity;
+      ratio = (i) => lambda / (i + 1);
+      break;
+    }
+    case 'hypergeometric': {
+      const { N, M } = d;
+      mean = (n * M) / N;
+      top = Math.min(n, M);
+      j = Math.max(0, n - (N - M));
+      p = Math.exp(logPmf(d, n, j));
+      ratio = (i) => ((M - i) * (n - i)) / ((i + 1) * (N - M - n + i + 1));
+      break;
+    }
+  }
+  if (d.kind !== 'hypergeometric' && (d.p === 0 || d.p === 1)) {
+    visit(d.p === 0 ? 0 : n, 1);
+    return;
+  }
+  let largest = p;
+  for (; j <= top; j++) {
+    if (p > 0 && visit(j, p) === false) return;
+    if (j > mean && p < 1e-20 * largest) return;
+    if (p === 0 && j > mean) {
+      // The first term underflowed far from the mean; restart from the exact term here.
+      return;
+    }
+    if (p === 0) p = Math.exp(logPmf(d, n, j + 1));
+    else p *= ratio(j);
+    if (p > largest) largest = p;
+  }
+}
