@@ -44,6 +44,15 @@ export interface SampleSizeResult {
   populationSize?: number;
   /** Present when the population size is known and a binomial size exists within the cap. */
   finitePopulationCorrection?: FinitePopulationCorrection;
+  /**
+   * The most deviations in this sample with which the results still support reliance (the
+   * evaluation's rule: risk of overreliance ≤ β); at least k_e.
+   */
+  acceptanceNumber: number;
+  /** The chance that a control working at the expected rate shows more than acceptanceNumber deviations. */
+  underrelianceRisk: number;
+  /** Set when the size is far beyond what tests of controls usually use (above 200). */
+  sizeRemark?: string;
 }
 
 /** Options of {@link upperLimit}. */
@@ -107,6 +116,8 @@ export interface PlanningTableCell {
   expectedDeviations: number | null;
   /** Why the cell is empty. */
   note?: string;
+  /** Set when the size is far beyond what tests of controls usually use (above 200). */
+  sizeRemark?: string;
 }
 
 /** One row of a planning table: one expected rate across every tolerable rate. */
@@ -323,4 +334,70 @@ export interface ExtensionRiskResult {
   procedureRisk: number;
   /** The same when the extension is repeated after each extension that finds a deviation. */
   repeatedProcedureRisk: number;
+}
+
+/** One part of a population tested in parts (a location, or the interim or roll-forward part). */
+export interface PopulationPart {
+  /** Units in this part. */
+  populationSize: number;
+  /** Items tested from it (drawn at random without replacement). */
+  sampleSize: number;
+  /** Deviations found in them. */
+  deviations: number;
+}
+
+/** Options of {@link combinedUpperLimit}. */
+export interface CombinedUpperLimitOptions {
+  parts: readonly PopulationPart[];
+  confidence: number;
+  /** When given, the result says whether the combined limit supports reliance at this rate. */
+  tolerableRate?: number;
+}
+
+/** Result of {@link combinedUpperLimit}. */
+export interface CombinedUpperLimitResult {
+  confidence: number;
+  populationSize: number;
+  sampleSize: number;
+  deviations: number;
+  /** The exact combined limit on the whole population's deviations (null when the search is too large; see note). */
+  deviationsInPopulation: number | null;
+  /** deviationsInPopulation ÷ populationSize. */
+  rate: number | null;
+  /** The allocation of deviationsInPopulation + 1 across the parts that came closest to plausible. */
+  worstAllocation: number[] | null;
+  /** The simple conservative bound: the sum of each part's limit at confidence 1 − β/P (Bonferroni). */
+  conservative: { deviationsInPopulation: number; rate: number; partLimits: number[]; partConfidence: number };
+  /** With tolerableRate: whether the exact limit (or, without it, the conservative one) is below ⌈TDR·N⌉. */
+  supported?: boolean;
+  tolerableRate?: number;
+  note?: string;
+}
+
+/** Options of {@link limitDecision}. */
+export interface LimitDecisionOptions {
+  sampleSize: number;
+  deviations: number;
+  confidence: number;
+  tolerableRate: number;
+  populationSize?: number;
+  model?: Model;
+}
+
+/** Result of {@link limitDecision}: the decision and how to word the limit against the tolerable rate. */
+export interface LimitDecisionResult {
+  /** True when the results support reliance (risk of overreliance ≤ β); the chart's colour follows this. */
+  supported: boolean;
+  achievedRisk: number;
+  allowableRisk: number;
+  /** The exact upper deviation limit (a fraction). */
+  upperLimit: number;
+  /**
+   * The rule in words: 'below' for the hypergeometric model (the limit M* ÷ N must be below the
+   * tolerable rate; it can equal it, and then the results do not support reliance), 'not above'
+   * otherwise (the continuous limit must not exceed the tolerable rate).
+   */
+  rule: 'below' | 'not above';
+  /** How the limit stands against the tolerable rate: 'below', 'equal' or 'above'. */
+  relation: 'below' | 'equal' | 'above';
 }
