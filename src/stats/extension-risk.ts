@@ -10,7 +10,11 @@ import { NoPracticalSizeError } from '../errors.js';
 
 /** Stop summing a distribution once its remaining mass is below this. */
 const TAIL = 1e-16;
-/** Paths whose probability falls below this are dropped (their total stays far below 1e-12). */
+/**
+ * Paths whose probability falls below this are dropped, and so are the terms of each extension's
+ * distribution below 1e-17 (and below this divided by the path's probability); what is dropped
+ * stays far below 1e-12 in total.
+ */
 const PRUNE = 1e-22;
 
 /**
@@ -99,14 +103,9 @@ function repeatedRisk(d: Draw, risk: (n: number, k: number) => number, n0: numbe
     return t;
   };
   let accepted = 0;
-  // levels.get(L): mass by deviations k' > L of the paths whose total is t*(L) and not yet relied on.
-  const levels = new Map<number, Map<number, number>>();
-  const push = (level: number, k: number, mass: number): void => {
-    if (mass < PRUNE) return;
-    let row = levels.get(level);
-    if (!row) levels.set(level, (row = new Map()));
-    row.set(k, (row.get(k) ?? 0) + mass);
-  };
+  // levels.get(L)[k' − L − 1]: mass of the paths whose total is t*(L), with k' > L deviations, not yet relied on.
+  const levels = new Map<number, number[]>();
+
   // One extension from "total tested, k deviations" (k already known not to support reliance).
   const extend = (total: number, k: number, mass: number): void => {
     if (k >= total) return;
@@ -114,10 +113,22 @@ function repeatedRisk(d: Draw, risk: (n: number, k: number) => number, n0: numbe
     if (t === null || t <= total) return;
     const rest = after(d, total, k);
     const m = t - total;
-    eachPmf(rest, m, (j, pj) => {
-      if (j === 0) accepted += mass * pj;
-      else push(k, k + j, mass * pj);
-    });
+    let row = levels.get(k);
+    if (!row) levels.set(k, (row = []));
+    const into = row;
+    eachPmf(
+      rest,
+      m,
+      (j, pj) => {
+        const w = mass * pj;
+        if (j === 0) accepted += w;
+        else if (w >= PRUNE) {
+          while (into.length < j) into.push(0);
+          into[j - 1]! += w;
+        }
+      },
+      Math.min(1e-17, PRUNE / mass),
+    );
   };
   let seen = 0;
   let maxLevel = -1;
@@ -137,7 +148,7 @@ function repeatedRisk(d: Draw, risk: (n: number, k: number) => number, n0: numbe
     }
     levels.delete(level);
     const total = target(level)!;
-    for (const [k, mass] of row) extend(total, k, mass);
+    for (let i = 0; i < row.length; i++) if (row[i]! > 0) extend(total, level + 1 + i, row[i]!);
   }
   return Math.min(1, accepted);
 }

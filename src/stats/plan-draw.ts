@@ -85,55 +85,66 @@ export function after(d: Draw, n: number, x: number): Draw {
 }
 
 /**
- * Visit P(X = j) for j = 0, 1, 2, … in a draw of n, by the ratio P(j+1)/P(j) from the exact
- * first term, until past the mean the terms fall below 1e-20 of the largest (their sum cannot
- * reach 1e-17) or the support ends. The visitor may return false to stop early.
+ * Visit P(X = j) in a draw of n, outwards from the mode: the exact term at the mode, then the
+ * ratios P(j+1)/P(j) upwards and P(j−1)/P(j) downwards, each direction stopping once its terms
+ * fall below `floor` (absolute) or the support ends. With floor = 0 every term of the support is
+ * visited. Internal.
  */
-export function eachPmf(d: Draw, n: number, visit: (j: number, p: number) => boolean | void): void {
-  let j = 0;
-  let p = Math.exp(logPmf(d, n, 0));
-  let mean: number;
-  let top: number;
-  let ratio: (j: number) => number;
+export function eachPmf(d: Draw, n: number, visit: (j: number, p: number) => void, floor = 0): void {
+  let lo: number;
+  let hi: number;
+  let mode: number;
+  let up: (j: number) => number; // P(j+1)/P(j)
+  let down: (j: number) => number; // P(j−1)/P(j)
   switch (d.kind) {
     case 'binomial': {
+      if (d.p === 0 || d.p === 1) {
+        visit(d.p === 0 ? 0 : n, 1);
+        return;
+      }
       const odds = d.p / (1 - d.p);
-      mean = n * d.p;
-      top = n;
-      ratio = (i) => ((n - i) / (i + 1)) * odds;
+      lo = 0;
+      hi = n;
+      mode = Math.min(n, Math.floor((n + 1) * d.p));
+      up = (j) => ((n - j) / (j + 1)) * odds;
+      down = (j) => j / ((n - j + 1) * odds);
       break;
     }
     case 'poisson': {
       const lambda = n * d.p;
-      mean = lambda;
-      top = Infinity;
-      ratio = (i) => lambda / (i + 1);
+      if (lambda === 0) {
+        visit(0, 1);
+        return;
+      }
+      lo = 0;
+      hi = Infinity;
+      mode = Math.floor(lambda);
+      up = (j) => lambda / (j + 1);
+      down = (j) => j / lambda;
       break;
     }
     case 'hypergeometric': {
       const { N, M } = d;
-      mean = (n * M) / N;
-      top = Math.min(n, M);
-      j = Math.max(0, n - (N - M));
-      p = Math.exp(logPmf(d, n, j));
-      ratio = (i) => ((M - i) * (n - i)) / ((i + 1) * (N - M - n + i + 1));
+      lo = Math.max(0, n - (N - M));
+      hi = Math.min(n, M);
+      mode = Math.min(hi, Math.max(lo, Math.floor(((n + 1) * (M + 1)) / (N + 2))));
+      up = (j) => ((M - j) * (n - j)) / ((j + 1) * (N - M - n + j + 1));
+      down = (j) => (j * (N - M - n + j)) / ((M - j + 1) * (n - j + 1));
       break;
     }
   }
-  if (d.kind !== 'hypergeometric' && (d.p === 0 || d.p === 1)) {
-    visit(d.p === 0 ? 0 : n, 1);
-    return;
+  const p0 = Math.exp(logPmf(d, n, mode));
+  visit(mode, p0);
+  let p = p0;
+  for (let j = mode; j < hi; j++) {
+    p *= up(j);
+    if (!(p > floor) || p === 0) break;
+    visit(j + 1, p);
   }
-  let largest = p;
-  for (; j <= top; j++) {
-    if (p > 0 && visit(j, p) === false) return;
-    if (j > mean && p < 1e-20 * largest) return;
-    if (p === 0 && j > mean) {
-      // The first term underflowed far from the mean; restart from the exact term here.
-      return;
-    }
-    if (p === 0) p = Math.exp(logPmf(d, n, j + 1));
-    else p *= ratio(j);
-    if (p > largest) largest = p;
+  p = p0;
+  for (let j = mode; j > lo; j--) {
+    p *= down(j);
+    if (!(p > floor) || p === 0) break;
+    visit(j - 1, p);
   }
 }
