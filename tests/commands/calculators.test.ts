@@ -84,7 +84,7 @@ describe('tolrate size', () => {
   it('--help → 0 with usage, every flag, an example and the caution', async () => {
     const r = await run(['size', '--help']);
     expect(r.code).toBe(0);
-    for (const flag of ['--confidence', '--tolerable', '--expected', '--population', '--model', '--json', '--help']) expect(r.out).toContain(flag);
+    for (const flag of ['--confidence', '--tolerable', '--expected', '--population', '--model', '--underreliance', '--two-stage', '--json', '--help']) expect(r.out).toContain(flag);
     expect(r.out).toMatch(/Usage: tolrate size/);
     expect(r.out).toMatch(/Example:\n\s+tolrate size --confidence 95 --tolerable 6 --expected 1/);
     expect(r.out).toMatch(/The tool computes/);
@@ -166,7 +166,7 @@ describe('tolrate limit', () => {
   it('--help → 0 with every flag', async () => {
     const r = await run(['limit', '-h']);
     expect(r.code).toBe(0);
-    for (const flag of ['--sample', '--deviations', '--confidence', '--tolerable', '--population', '--model', '--json']) expect(r.out).toContain(flag);
+    for (const flag of ['--sample', '--deviations', '--confidence', '--tolerable', '--expected', '--population', '--model', '--json']) expect(r.out).toContain(flag);
     expect(r.out).toMatch(/Example:/);
     expect(r.out).toMatch(/The tool computes/);
   });
