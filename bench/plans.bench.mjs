@@ -64,6 +64,8 @@ measure('two-stage plan, binomial 95% / 6% / 1%', () => twoStagePlan({ confidenc
 measure('two-stage plan, hypergeometric N = 1,500, 95% / 6% / 1%', () => twoStagePlan({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01, populationSize: 1500 }));
 measure('two-stage plan, binomial 90% / 5% / 1%', () => twoStagePlan({ confidence: 0.9, tolerableRate: 0.05, expectedRate: 0.01 }));
 measure('two-stage plan, binomial 95% / 4% / 2% (single stage 294)', () => twoStagePlan({ confidence: 0.95, tolerableRate: 0.04, expectedRate: 0.02 }), { reps: 7, warmup: 1 });
+measure('two-stage plan, binomial 95% / 3% / 2% (single stage 846, c = 18)', () => twoStagePlan({ confidence: 0.95, tolerableRate: 0.03, expectedRate: 0.02 }), { reps: 3, warmup: 1 });
+measure('two-stage plan, hypergeometric N = 5,000, 95% / 3% / 2% (single stage 746)', () => twoStagePlan({ confidence: 0.95, tolerableRate: 0.03, expectedRate: 0.02, populationSize: 5000 }), { reps: 3, warmup: 1 });
 const plan = twoStagePlan({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 }).plan;
 measure('operating characteristic of that plan, 41 rates', () => operatingCharacteristic({ plan }));
 measure('extension risk, binomial 78 / 2 at 6%, 95% (once and repeated)', () => extensionRisk({ sampleSize: 78, deviations: 2, tolerableRate: 0.06, confidence: 0.95 }));

@@ -58,10 +58,43 @@ export function logPmf(d: Draw, n: number, x: number): number {
   }
 }
 
-/** P(X = x) for x = 0..upTo in a draw of n. */
+/**
+ * P(X = x) for x = 0..upTo in a draw of n: the exact term at the lowest point of the support,
+ * then the ratio P(x+1)/P(x) (binomial (n−x)p/((x+1)q); Poisson λ/(x+1); hypergeometric
+ * (M−x)(n−x)/((x+1)(N−M−n+x+1))), each term from its own exact logarithm whenever the running
+ * product has underflowed.
+ */
 export function pmfUpTo(d: Draw, n: number, upTo: number): number[] {
-  const out: number[] = [];
-  for (let x = 0; x <= upTo; x++) out.push(Math.exp(logPmf(d, n, x)));
+  const out: number[] = new Array<number>(upTo + 1).fill(0);
+  let start = 0;
+  let ratio: (x: number) => number;
+  switch (d.kind) {
+    case 'binomial': {
+      const odds = d.p / (1 - d.p);
+      ratio = (x) => ((n - x) / (x + 1)) * odds;
+      if (d.p === 0 || d.p === 1) {
+        for (let x = 0; x <= upTo; x++) out[x] = Math.exp(logPmf(d, n, x));
+        return out;
+      }
+      break;
+    }
+    case 'poisson': {
+      const lambda = n * d.p;
+      ratio = (x) => lambda / (x + 1);
+      break;
+    }
+    case 'hypergeometric': {
+      const { N, M } = d;
+      start = Math.max(0, n - (N - M));
+      ratio = (x) => ((M - x) * (n - x)) / ((x + 1) * (N - M - n + x + 1));
+      break;
+    }
+  }
+  let p = 0;
+  for (let x = start; x <= upTo; x++) {
+    p = p > 1e-250 ? p * ratio(x - 1) : Math.exp(logPmf(d, n, x));
+    out[x] = p;
+  }
   return out;
 }
 

@@ -182,3 +182,11 @@ describe('combined limit and the decision helper', () => {
     expect(limitDecision({ sampleSize: 88, deviations: 1, confidence: 0.95, tolerableRate: 0.05, populationSize: 1000 })).toMatchObject({ supported: false, rule: 'below', relation: 'equal', upperLimit: 0.05 });
   });
 });
+
+describe('two-stage search bounds', () => {
+  it('refuses with a reason where a second stage cannot help or the search would be far beyond tests of controls', () => {
+    expect(() => twoStagePlan({ confidence: 0.95, tolerableRate: 0.05, expectedRate: 0 })).toThrow(/expected rate of 0% a second stage is never expected/);
+    expect(() => twoStagePlan({ confidence: 0.95, tolerableRate: 0.1, expectedRate: 0.08 })).toThrow(/allows at most 20 deviations/);
+    expect(() => twoStagePlan({ confidence: 0.9, tolerableRate: 0.02, expectedRate: 0.015 })).toThrow(/1,463 items/);
+  });
+});
