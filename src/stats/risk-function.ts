@@ -1,5 +1,5 @@
 import { binomialLogCdf } from './binomial-log-cdf.js';
-import { ceilGuarded } from './expected-deviations.js';
+import { tolerableCount } from './tolerable-count.js';
 import { hyperLogCdf } from './hypergeometric-log-cdf.js';
 import { poissonLogCdf } from './poisson-log-cdf.js';
 import type { Model } from './types.js';
@@ -22,7 +22,7 @@ export function riskFunction(
       return (n, k) => Math.exp(poissonLogCdf(k, n * tolerableRate));
     case 'hypergeometric': {
       const N = populationSize!;
-      const M = Math.min(N, ceilGuarded(tolerableRate * N));
+      const M = tolerableCount(N, tolerableRate);
       return (n, k) => Math.exp(hyperLogCdf(k, N, M, n));
     }
   }

@@ -3,6 +3,7 @@ import { UsageError } from '../../errors.js';
 import {
   DEFAULT_EXPECTED_RATES,
   DEFAULT_TOLERABLE_RATES,
+  LARGE_SAMPLE_SIZE,
   MAX_SAMPLE_SIZE,
   planningTable,
   type PlanningTableResult,
@@ -45,6 +46,7 @@ Each cell is "size (k_e)": the smallest sample size whose risk of overreliance a
 expected deviations does not exceed 100% - confidence. A dash marks a cell where no practical
 size exists (the expected rate is not below the tolerable rate, or more than
 ${int(MAX_SAMPLE_SIZE)} items would be needed; for a known population, more than the population).
+A star marks sizes above ${LARGE_SAMPLE_SIZE}, far more than tests of controls usually use (common practice).
 
 Example:
   tolrate table --confidence 95
@@ -95,7 +97,7 @@ function render(t: PlanningTableResult): string {
   const header = ['Expected', ...t.tolerableRates.map((r) => pctPlain(r))];
   const body = t.rows.map((row) => [
     pctPlain(row.expectedRate),
-    ...row.cells.map((c) => (c.sampleSize === null ? '-' : `${int(c.sampleSize)} (${c.expectedDeviations})`)),
+    ...row.cells.map((c) => (c.sampleSize === null ? '-' : `${int(c.sampleSize)} (${c.expectedDeviations})${c.sizeRemark ? '*' : ''}`)),
   ]);
   const widths = header.map((h, i) => Math.max(h.length, ...body.map((r) => r[i]!.length)));
   const fmt = (cells: string[]): string =>
@@ -106,6 +108,9 @@ function render(t: PlanningTableResult): string {
   lines.push('');
   const cap = t.model === 'hypergeometric' ? 'the population' : `${int(MAX_SAMPLE_SIZE)} items`;
   lines.push(...wrap(`-  no practical size: the expected rate is not below the tolerable rate, or more than ${cap} would be needed.`));
+  if (t.rows.some((r) => r.cells.some((c) => c.sizeRemark))) {
+    lines.push(...wrap(`*  more than ${LARGE_SAMPLE_SIZE} items: far more than tests of controls usually use (common practice); the test may not be cost-effective.`));
+  }
   lines.push('');
   lines.push(CAUTION);
   return lines.join('\n') + '\n';
