@@ -118,9 +118,16 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
     const intentional = f.deviations.some((d) => escalates(d.result).intentional);
     const systemic = f.deviations.some((d) => escalates(d.result).systemic);
     if (!intentional && !systemic && !ev.illustrative && ev.extension !== null && ev.extension > 0) {
+      // An extension decided after seeing the results is a second look: offered with the exact risk
+      // of the procedure followed, beside the planned one, never as "supports reliance".
+      const risk = ev.extensionRisk;
       out.push({
         kind: 'extend-sample',
-        description: `Extend the sample for ${f.attributeId} by ${ev.extension} items (to ${ev.sampleSize + ev.extension}); the extended sample supports reliance only if none of the additional items deviates.`,
+        description:
+          `Extend the sample for ${f.attributeId} by ${ev.extension} items (to ${ev.sampleSize + ev.extension}) and rely on the control only if none of them deviates` +
+          (risk
+            ? `: because the extension is decided after seeing these results, the risk of overreliance of doing so is ${pctUp(risk.procedure)}, not the planned ${pctPlain(1 - ev.confidence)} (${pctUp(risk.repeated)} if the sample is extended again after each failure). Extend only if that risk is acceptable under the firm's methodology and documented; otherwise test a compensating control or reduce reliance.`
+            : '.'),
         items: ev.extension,
       });
     } else if (!ev.illustrative && ev.extension === null && !intentional) {

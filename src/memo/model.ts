@@ -253,6 +253,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
         achievedRisk: ev ? pctUp(ev.achievedRisk) : undefined,
         decision,
         extension: ev?.extension != null ? int(ev.extension) : undefined,
+        extensionRisk: ev?.extensionRisk ? pctUp(ev.extensionRisk.procedure) : undefined,
+        extensionRepeatedRisk: ev?.extensionRisk ? pctUp(ev.extensionRisk.repeated) : undefined,
       },
     };
     if (ev) view.evaluation = ev;

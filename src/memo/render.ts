@@ -547,6 +547,7 @@ async function resultsSection(c: Ctx): Promise<void> {
           sampleRateText: pct(x.evaluation!.sampleRate),
           upperLimitText: pctLimit(x.evaluation!.upperLimit, x.evaluation!.tolerableRate),
           tolerableRateText: pct(x.evaluation!.tolerableRate),
+          ...(x.evaluation!.illustrative ? {} : { exceeds: !x.evaluation!.supportedByRates }),
         }));
         const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
         const svg = chartSvg(rows, { sampleRate: L.legendSampleRate, upperLimit: L.legendUpperLimit, exceeds: L.legendExceeds, tolerable: L.legendTolerable, ...(m.illustrative ? { note: L.illustrative } : {}) }, chartW);

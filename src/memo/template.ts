@@ -133,7 +133,9 @@ export const ATTRIBUTE_PLACEHOLDERS = {
   upperLimit: 'the upper deviation limit (rounded up)',
   achievedRisk: 'the risk of overreliance (rounded up)',
   decision: 'the decision label',
-  extension: 'the additional items an extension needs',
+  extension: 'the additional items an extension needs (the single-stage figure)',
+  extensionRisk: 'the exact risk of overreliance of extending by that figure after seeing the results (rounded up)',
+  extensionRepeatedRisk: 'the same when the sample is extended again after each failure (rounded up)',
 } as const;
 
 export type PlaceholderName = keyof typeof PLACEHOLDERS;
