@@ -6,6 +6,7 @@ import { planRisksOf } from './plan-risks.js';
 import { resolveModel } from './resolve-model.js';
 import { riskFunction } from './risk-function.js';
 import { searchSize } from './sample-size.js';
+import { sizeRemark } from './size-remark.js';
 import type { TwoStagePlan, TwoStagePlanOptions, TwoStagePlanResult } from './types.js';
 import { asPercent, checkConfidence, checkExpectedBelowTolerable, checkOptions, checkRate } from './validate.js';
 import { withinRisk } from './within-risk.js';
@@ -196,6 +197,8 @@ export function twoStagePlan(options: TwoStagePlanOptions): TwoStagePlanResult {
     plansExamined: examined,
   };
   if (populationSize !== undefined) result.populationSize = populationSize;
+  const remark = sizeRemark(risks.maximumSampleSize);
+  if (remark) result.sizeRemark = remark;
   return result;
 }
 

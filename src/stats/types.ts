@@ -265,6 +265,8 @@ export interface TwoStagePlanResult extends PlanRisks {
   singleStage: SingleStagePlan & { underrelianceRisk: number; overrelianceRisk: number };
   /** Plans whose risks were computed in the search. */
   plansExamined: number;
+  /** Set when the largest sample the plan can need is far beyond what tests of controls use (above 200). */
+  sizeRemark?: string;
 }
 
 /** Options of {@link planForBothRisks}. */

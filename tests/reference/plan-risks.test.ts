@@ -1,8 +1,9 @@
 /**
  * Two-stage risks, risks of underreliance, operating characteristic points, the risk of the
- * extension procedure actually followed, planning for both risks, the combined limit over parts
- * and the tolerable count, each against tests/reference/plan-risks.json: values computed from
- * their definitions in exact rational arithmetic (Python's fractions module and math.comb) by
+ * extension procedure actually followed, planning for both risks, the combined limit over parts,
+ * the two-stage plan search and the tolerable count, each against tests/reference/plan-risks.json:
+ * values computed from their definitions in exact rational arithmetic (Python's fractions module
+ * and math.comb; the two-stage search by brute force in double precision, as the script says) by
  * scripts/reference-plan-risks.py, which names the tool and version in the file ("tool"). The
  * JSON file is committed, so CI needs no Python. Tolerances: 1e-11 relative for probabilities
  * (the engine sums Loader's saddle-point terms in double precision); counts and sizes exactly.
@@ -17,6 +18,7 @@ import {
   planForBothRisks,
   planRisks,
   tolerableDeviations,
+  twoStagePlan,
   underrelianceRisk,
   type Model,
   type SingleStagePlan,
@@ -102,6 +104,16 @@ describe('reference table (exact rationals, scripts/reference-plan-risks.py)', (
       expect(r.deviationsInPopulation, JSON.stringify(c.parts)).toBe(c.deviationsInPopulation);
       expect(r.rate).toBe(c.rate);
       expect(r.conservative.deviationsInPopulation).toBeGreaterThanOrEqual(r.deviationsInPopulation!);
+    }
+  });
+
+  it('the two-stage search finds the plan a brute force over the documented search space finds (double precision in the script)', () => {
+    expect(ref.twoStage.length).toBeGreaterThanOrEqual(4);
+    for (const c of ref.twoStage) {
+      const r = twoStagePlan({ confidence: c.confidence, tolerableRate: c.tolerableRate, expectedRate: c.expectedRate, ...pop(c.populationSize) });
+      expect(r.singleStage).toMatchObject({ sampleSize: c.singleStageSize, acceptanceNumber: c.singleStageAcceptanceNumber });
+      expect(r.plan, JSON.stringify(c)).toEqual(plan(c.plan));
+      expect(rel(r.averageSampleNumber, c.averageSampleNumber)).toBeLessThan(1e-11);
     }
   });
 

@@ -230,6 +230,10 @@ function renderTwoStage(r: TwoStagePlanResult): string {
   lines.push(...block(rows, '  ', 110));
   lines.push('');
   lines.push(...wrap('Decide before testing that the test has two stages, and follow the plan: a second stage added after the first results are seen is an extension, whose risk is higher (tolrate limit shows it).'));
+  if (r.sizeRemark) {
+    lines.push('');
+    lines.push(...wrap(`Remark: ${r.sizeRemark}`));
+  }
   lines.push('');
   lines.push(CAUTION);
   return lines.join('\n') + '\n';
