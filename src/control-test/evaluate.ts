@@ -89,6 +89,8 @@ export function attributeFigures(args: {
   confidence: number;
   model: Model;
   populationSize?: number;
+  /** The population size when it is known, whatever the model: an extension never goes beyond the untested remainder. */
+  knownPopulationSize?: number;
   illustrative: boolean;
 }): AttributeEvaluation {
   const { sampleSize: n, deviations: k, tolerableRate, confidence, model, populationSize } = args;
@@ -100,12 +102,13 @@ export function attributeFigures(args: {
   const achievedRisk = overrelianceRisk({ sampleSize: n, deviations: k, tolerableRate, model, ...(populationSize !== undefined ? { populationSize } : {}) });
   // The one comparison of the engine (stats/within-risk.ts): risk ≤ β, an exact tie counting as achieved.
   const supportedByRates = withinRisk(achievedRisk, 1 - confidence);
+  const extN = populationSize ?? args.knownPopulationSize;
   let extension: number | null = 0;
   if (!supportedByRates) {
     if (k >= n) extension = null;
     else {
       try {
-        extension = extensionSize({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(populationSize !== undefined ? { populationSize } : {}) });
+        extension = extensionSize({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(extN !== undefined ? { populationSize: extN } : {}) });
       } catch (e) {
         if (e instanceof NoPracticalSizeError) extension = null;
         else throw e;
@@ -129,7 +132,7 @@ export function attributeFigures(args: {
   if (limit.deviationsInPopulation !== undefined) out.deviationsInPopulation = limit.deviationsInPopulation;
   if (extension !== null && extension > 0) {
     // The honest figure: the exact risk of the procedure actually followed (stats/extension-risk.ts).
-    const r = extensionRisk({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(populationSize !== undefined ? { populationSize } : {}) });
+    const r = extensionRisk({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(extN !== undefined ? { populationSize: extN } : {}) });
     out.extensionRisk = { procedure: r.procedureRisk, repeated: r.repeatedProcedureRisk };
   }
   return out;
@@ -162,6 +165,7 @@ export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
       confidence: wp.approach!.confidence,
       model: wp.approach!.model,
       ...(populationSize !== undefined ? { populationSize } : {}),
+      ...(wp.population?.fingerprint.rowCount !== undefined ? { knownPopulationSize: wp.population.fingerprint.rowCount } : {}),
       illustrative,
     });
   });
