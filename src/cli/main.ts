@@ -5,6 +5,8 @@ import { COMMANDS, findCommand } from '../commands/registry.js';
 import type { CommandContext, CommandRun } from '../commands/types.js';
 import { isInputError } from '../errors.js';
 import { nearest } from './args.js';
+import { releaseAllLocks } from '../io/lock.js';
+import { visible } from '../io/text.js';
 
 export function packageVersion(): string {
   const here = dirname(fileURLToPath(import.meta.url));
@@ -111,20 +113,40 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
     return await (await loadCommand(info.name))(rest, ctx);
   } catch (e) {
     if (isInputError(e)) {
-      ctx.stderr.write(`${e.message}\n`);
-      for (const d of e.details) ctx.stderr.write(`  ${d}\n`);
+      // A message may quote a key or a value from a file: its control characters are shown, not sent.
+      ctx.stderr.write(`${visible(e.message, { keepLines: true })}\n`);
+      for (const d of e.details) ctx.stderr.write(`  ${visible(d, { keepLines: true })}\n`);
       return 2;
     }
     if (e instanceof Error && e.name === 'ExitPromptError') {
+      // Stopped while a failed save was being handled: the session says what is not on disk.
+      const note = (e as { tolrateStopNote?: unknown }).tolrateStopNote;
+      if (typeof note === 'string') {
+        ctx.stderr.write(note);
+        return 130;
+      }
       const { stoppedMessage } = await import('./stopped.js');
       const { relative } = await import('node:path');
       ctx.stderr.write(stoppedMessage(ctx.cwd, relative));
       return 130;
+    }
+    const sys = e as { code?: unknown; syscall?: unknown; path?: unknown };
+    if (e instanceof Error && typeof sys.code === 'string' && /^E[A-Z]+$/.test(sys.code) && typeof sys.syscall === 'string') {
+      // A system error that no reader or writer turned into a message: still the environment's, not a bug.
+      const { readError, writeError } = await import('../io/messages.js');
+      const where = typeof sys.path === 'string' ? sys.path : '(a file)';
+      const m = /^(read|stat|lstat|scandir|access|readlink)$/.test(sys.syscall) ? readError(e, where, 'The file') : writeError(e, where, 'the file');
+      ctx.stderr.write(`${visible(m.message, { keepLines: true })}\n`);
+      for (const d of m.details) ctx.stderr.write(`  ${d}\n`);
+      return 2;
     }
     const msg = e instanceof Error ? e.message : String(e);
     ctx.stderr.write(`tolrate: internal error: ${msg}\n`);
     if (ctx.env.TOLRATE_DEBUG && e instanceof Error && e.stack) ctx.stderr.write(`${e.stack}\n`);
     else ctx.stderr.write('This is a bug in tolrate. Run again with TOLRATE_DEBUG=1 for details.\n');
     return 70;
+  } finally {
+    // Whatever way the command ended, the locks it took are given back.
+    releaseAllLocks();
   }
 }

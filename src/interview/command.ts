@@ -5,11 +5,12 @@
 import { existsSync } from 'node:fs';
 import { extname, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
-import { UsageError } from '../errors.js';
+import { UsageError, WorkpaperLockedError } from '../errors.js';
+import { acquireLock, type HeldLock } from '../io/lock.js';
 import { packageVersion } from '../cli/main.js';
 import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { Asker } from './asker.js';
-import { newSession, openSession, type Session } from './session.js';
+import { newSession, offerTempCleanup, openSession, type Session } from './session.js';
 import { TerminalAsker } from './terminal.js';
 import { setOpenWorkpaper } from '../cli/stopped.js';
 
@@ -41,13 +42,39 @@ export function workpaperPath(cwd: string, file: string): string {
   return resolve(cwd, extname(f) === '' ? `${f}${WORKPAPER_SUFFIX}` : f);
 }
 
-/** Open an existing workpaper (with the outside-change check) or start a new one at `path`. */
+/** The workpaper is open in another session and the user chose to look at it read-only. */
+export interface ReadOnlyView {
+  readOnly: true;
+  path: string;
+}
+
+/**
+ * Open an existing workpaper (with the outside-change check) or start a new one at `path`. The
+ * session takes the file's lock first (src/io/lock.ts); when another session holds it, the user
+ * may open the file read-only instead (a ReadOnlyView: nothing is saved), else it is refused.
+ */
 export async function sessionFor(
   ctx: CommandContext,
   asker: Asker,
   path: string,
   o: InterviewOptions & { policyPath?: string; mustExist?: boolean },
-): Promise<Session | undefined> {
+): Promise<Session | ReadOnlyView | undefined> {
+  if (!existsSync(path) && o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, ['Start a test with: tolrate plan FILE']);
+  let lock: HeldLock;
+  try {
+    lock = acquireLock(path, (o.now ?? (() => new Date()))());
+  } catch (e) {
+    if (!(e instanceof WorkpaperLockedError) || !existsSync(path)) throw e;
+    ctx.stdout.write(`${e.message}\n${e.details.map((d) => `  ${d}\n`).join('')}`);
+    const look = await asker.confirm({
+      id: 'open.locked.readOnly',
+      message: 'Open it read-only (see where the test stands; nothing is saved)?',
+      default: true,
+    });
+    if (!look) throw e;
+    return { readOnly: true, path };
+  }
+  if (lock.tookOver) ctx.stdout.write(`Note: ${lock.tookOver}\n`);
   const base = {
     asker,
     out: ctx.stdout,
@@ -55,13 +82,24 @@ export async function sessionFor(
     color: ctx.color,
     cwd: ctx.cwd,
     toolVersion: packageVersion(),
+    lock,
     ...(o.now ? { now: o.now } : {}),
     ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
   };
-  // A Ctrl-C names the file only once it holds something: before the first step is saved
-  // there is no file to continue (the session names it at its first save).
-  setOpenWorkpaper(existsSync(path) ? path : undefined);
-  if (existsSync(path)) return openSession(base);
-  if (o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, ['Start a test with: tolrate plan FILE']);
-  return newSession(base);
+  try {
+    // A Ctrl-C names the file only once it holds something: before the first step is saved
+    // there is no file to continue (the session names it at its first save).
+    setOpenWorkpaper(existsSync(path) ? path : undefined);
+    if (existsSync(path)) {
+      const s = await openSession(base);
+      if (!s) lock.release();
+      return s;
+    }
+    const s = newSession(base);
+    await offerTempCleanup(s);
+    return s;
+  } catch (e) {
+    lock.release();
+    throw e;
+  }
 }

@@ -6,6 +6,7 @@
 import { relative, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { TolrateInputError } from '../errors.js';
+import { loadWorkpaper } from '../workpaper/file.js';
 import { int } from '../util/format.js';
 import type { Asker } from './asker.js';
 import { sessionFor, workpaperPath, type InterviewOptions } from './command.js';
@@ -25,7 +26,7 @@ function shown(ctx: CommandContext, path: string): string {
   return r && !r.startsWith('..') ? r : path;
 }
 
-async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean): Promise<Session | undefined> {
+async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean): Promise<Session | number | undefined> {
   if (o.policy) loadPolicy(resolve(ctx.cwd, o.policy));
   let file = o.file;
   if (file === undefined) {
@@ -42,6 +43,13 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
   }
   const path = workpaperPath(ctx.cwd, file);
   const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist });
+  if (s && 'readOnly' in s) {
+    // Another session has it open: show where the test stands, save nothing.
+    const wp = loadWorkpaper(path);
+    ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
+    ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
+    return 0;
+  }
   if (!s) {
     ctx.stdout.write('Nothing was changed.\n');
     return undefined;
@@ -72,81 +80,101 @@ function next(ctx: CommandContext, s: Session): void {
 /** `tolrate plan [FILE]`. */
 export async function planInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   const s = await open(ctx, asker, o, false);
+  if (typeof s === 'number') return s;
   if (!s) return 1;
-  const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
-  await runOpenSteps(s, PLAN_STEPS);
-  if (wasComplete) {
-    s.print('', 'Every planning step is answered.');
-    for (let i = 1; ; i++) {
-      const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
-      if (!st) break;
-      await runStep(s, st);
-      await runOpenSteps(s, PLAN_STEPS);
+  try {
+    const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
+    await runOpenSteps(s, PLAN_STEPS);
+    if (wasComplete) {
+      s.print('', 'Every planning step is answered.');
+      for (let i = 1; ; i++) {
+        const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
+        if (!st) break;
+        await runStep(s, st);
+        await runOpenSteps(s, PLAN_STEPS);
+      }
     }
+    next(ctx, s);
+    return 0;
+  } finally {
+    s.release();
   }
-  next(ctx, s);
-  return 0;
 }
 
 /** `tolrate record FILE`. */
 export async function recordInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   const s = await open(ctx, asker, o, true);
+  if (typeof s === 'number') return s;
   if (!s) return 1;
-  const open1 = firstOpen(s.wp, PLAN_STEPS);
-  if (open1) {
-    throw new TolrateInputError(`The plan is not finished (next: ${STEP_LABELS[open1]}), so there is nothing to record yet.`, 'PLAN_INCOMPLETE', [
-      `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
-    ]);
+  try {
+    const open1 = firstOpen(s.wp, PLAN_STEPS);
+    if (open1) {
+      throw new TolrateInputError(`The plan is not finished (next: ${STEP_LABELS[open1]}), so there is nothing to record yet.`, 'PLAN_INCOMPLETE', [
+        `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
+      ]);
+    }
+    await runStep(s, 'record');
+    next(ctx, s);
+    return 0;
+  } finally {
+    s.release();
   }
-  await runStep(s, 'record');
-  next(ctx, s);
-  return 0;
 }
 
 /** `tolrate conclude FILE`. */
 export async function concludeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   const s = await open(ctx, asker, o, true);
+  if (typeof s === 'number') return s;
   if (!s) return 1;
-  const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
-  if (open1) {
-    const detail =
-      open1 === 'record' && s.wp.selection
-        ? (() => {
-            const p = progress(s.wp);
-            return `${int(p.total - p.recorded)} of ${int(p.total)} items have no result yet`;
-          })()
-        : `next: ${STEP_LABELS[open1]}`;
-    throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
-      open1 === 'record' ? `Record the results with: tolrate record ${shown(ctx, s.path)}` : `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
-    ]);
+  try {
+    const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
+    if (open1) {
+      const detail =
+        open1 === 'record' && s.wp.selection
+          ? (() => {
+              const p = progress(s.wp);
+              return `${int(p.total - p.recorded)} of ${int(p.total)} items have no result yet`;
+            })()
+          : `next: ${STEP_LABELS[open1]}`;
+      throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
+        open1 === 'record' ? `Record the results with: tolrate record ${shown(ctx, s.path)}` : `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
+      ]);
+    }
+    if (s.wp.conclusion) {
+      const again = await asker.confirm({
+        id: 'conclude.again',
+        message: `The test is concluded${s.wp.signoffs?.preparer ? ` and signed off by ${s.wp.signoffs.preparer.name}` : ''}. Conclude it again?`,
+        default: false,
+      });
+      if (again) await runStep(s, 'conclude');
+    }
+    await runOpenSteps(s, ['conclude', 'signoff']);
+    next(ctx, s);
+    return 0;
+  } finally {
+    s.release();
   }
-  if (s.wp.conclusion) {
-    const again = await asker.confirm({
-      id: 'conclude.again',
-      message: `The test is concluded${s.wp.signoffs?.preparer ? ` and signed off by ${s.wp.signoffs.preparer.name}` : ''}. Conclude it again?`,
-      default: false,
-    });
-    if (again) await runStep(s, 'conclude');
-  }
-  await runOpenSteps(s, ['conclude', 'signoff']);
-  next(ctx, s);
-  return 0;
 }
 
 /** The start screen's "new test" and "continue": the whole test from the first open step. */
 export async function wholeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   const s = await open(ctx, asker, o, false);
+  if (typeof s === 'number') return s;
   if (!s) return 1;
-  const wasDone = firstOpen(s.wp) === undefined;
-  await runOpenSteps(s, STEPS);
-  if (wasDone) {
-    for (let i = 1; ; i++) {
-      const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
-      if (!st) break;
-      await runStep(s, st);
-      await runOpenSteps(s, STEPS);
+  try {
+    const wasDone = firstOpen(s.wp) === undefined;
+    await runOpenSteps(s, STEPS);
+    if (wasDone) {
+      for (let i = 1; ; i++) {
+        const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
+        if (!st) break;
+        await runStep(s, st);
+        await runOpenSteps(s, STEPS);
+      }
     }
+    next(ctx, s);
+    return 0;
+  } finally {
+    s.release();
   }
-  next(ctx, s);
-  return 0;
 }

@@ -803,6 +803,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     );
   }
   b.p(b.f(T.workpaperState), { style: 'MemoNote' });
+  if (m.cleanedNote) b.note(m.cleanedNote);
 
   // Appendix B.
   b.h1(H.appendixReperform, { pageBreakBefore: true, numbered: false });
