@@ -7,12 +7,14 @@ import { open } from 'node:fs/promises';
 import { basename } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
+import { assertRegularFile } from '../io/read.js';
 import { cellText, detectDelimiter, delimiterOption } from '../population/index.js';
 import { headerNames } from '../population/columns.js';
 
 const HEAD_BYTES = 1 << 16;
 
 export async function csvColumns(path: string, delimiter?: string): Promise<string[]> {
+  assertRegularFile(path, 'The population file');
   const fh = await open(path, 'r').catch((e: NodeJS.ErrnoException) => {
     throw new FileInputError(path, e.code === 'ENOENT' ? `No file at ${path}.` : `Cannot read ${path}: ${e.message}`);
   });

@@ -7,6 +7,7 @@ import { basename, dirname, extname, relative, resolve } from 'node:path';
 import type { Output } from '../commands/types.js';
 import { FileSystemError, TolrateInputError, WorkpaperChangedError } from '../errors.js';
 import { fsOps } from '../io/fs.js';
+import { visible } from '../io/text.js';
 import { acquireLock, type HeldLock } from '../io/lock.js';
 import { readRegularFile } from '../io/read.js';
 import { removeTempFiles, resolveTarget, staleTempFiles } from '../io/write.js';
@@ -125,12 +126,14 @@ export class Session {
 
   /** Write lines to the output. */
   print(...lines: string[]): void {
-    for (const l of lines) this.out.write(`${l}\n`);
+    // Lines may quote keys and values from files: control characters are shown, not sent.
+    for (const l of lines) this.out.write(`${visible(l, { keepLines: true })}\n`);
   }
 
   /** A heading for a stage of the interview. */
   heading(title: string): void {
-    this.print('', this.color ? `\x1b[1m${title}\x1b[22m` : title, this.color ? '' : '-'.repeat(Math.min(72, title.length)));
+    const t = visible(title);
+    this.out.write(`\n${this.color ? `\x1b[1m${t}\x1b[22m` : t}\n${this.color ? '' : '-'.repeat(Math.min(72, t.length))}\n`);
   }
 
   /** A reason to be recorded with the next save (outside edits accepted, a signed-off workpaper edited). */

@@ -16,7 +16,9 @@
  *  7. optionally the memo: it carries the same figures as the workpaper.
  */
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
-import { accessSync, constants, readFileSync } from 'node:fs';
+import { accessSync, constants } from 'node:fs';
+import { readRegularFile } from '../io/read.js';
+import { zipXmlProblems } from '../io/xml.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
 import { evaluate, proposeConclusion } from '../evaluation/index.js';
@@ -314,21 +316,30 @@ function checkConclusion(wp: Workpaper): Check {
 
 /** The plain text of a DOCX body (paragraph per line). */
 export async function docxText(path: string): Promise<string> {
-  let data: Buffer;
-  try {
-    data = readFileSync(path);
-  } catch {
-    throw new FileInputError(path, `Cannot read the memo ${path}.`);
-  }
+  return (await readDocx(path)).text;
+}
+
+/**
+ * A memo's body text and the XML parts of it that do not parse (strict XML 1.0: a memo whose
+ * XML does not parse is one Word may refuse to open, so it differs from what tolrate writes).
+ */
+export async function readDocx(path: string): Promise<{ text: string; xmlProblems: string[] }> {
+  const data = readRegularFile(path, 'The memo');
   const { default: JSZip } = await import('jszip');
   let xml: string | undefined;
+  let xmlProblems: string[] = [];
   try {
     const zip = await JSZip.loadAsync(data);
     xml = await zip.file('word/document.xml')?.async('string');
+    xmlProblems = await zipXmlProblems(data);
   } catch {
     xml = undefined;
   }
   if (!xml) throw new FileInputError(path, `${path} is not a DOCX file (no word/document.xml inside).`);
+  return { xmlProblems, text: docxBodyText(xml) };
+}
+
+function docxBodyText(xml: string): string {
   return xml
     .replace(/<w:tab\/>/g, '\t')
     .replace(/<\/w:p>/g, '\n')
@@ -364,13 +375,19 @@ export function memoFigures(wp: Workpaper): Array<{ label: string; text: string 
 }
 
 async function checkMemo(wp: Workpaper, memoPath: string): Promise<Check> {
-  const text = await docxText(memoPath);
+  const { text, xmlProblems } = await readDocx(memoPath);
   const flat = text.replace(/\s+/g, ' ');
   const diffs: string[] = [];
   for (const f of memoFigures(wp)) {
     if (!flat.includes(f.text)) diffs.push(`the memo does not show the ${f.label} (${f.text})`);
   }
-  const summary = diffs.length === 0 ? `${memoPath}: every figure of the workpaper found in the memo` : `${memoPath}: ${diffs.length} figure(s) missing or different`;
+  for (const p of xmlProblems) diffs.push(`the memo's XML does not parse (${p}); Word may refuse to open it`);
+  const summary =
+    diffs.length === 0
+      ? `${memoPath}: every figure of the workpaper found in the memo`
+      : xmlProblems.length
+        ? `${memoPath}: its XML does not parse${diffs.length > xmlProblems.length ? `, and ${diffs.length - xmlProblems.length} figure(s) missing or different` : ''}`
+        : `${memoPath}: ${diffs.length} figure(s) missing or different`;
   return { area: 'memo', summary, differences: diffs };
 }
 

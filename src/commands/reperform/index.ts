@@ -1,6 +1,7 @@
 import { parseFlags, str } from '../../cli/args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
+import { visible } from '../../io/text.js';
 
 const HELP = `tolrate reperform — re-derive a test from its workpaper file and report any difference
 
@@ -52,6 +53,6 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     ...(ctx.isTTY ? { progress: process.stderr } : {}),
   });
   if (p.values.json) ctx.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
-  else ctx.stdout.write(formatReport({ ...report, workpaperPath: file }));
+  else ctx.stdout.write(visible(formatReport({ ...report, workpaperPath: file }), { keepLines: true }));
   return report.ok ? 0 : 1;
 }
