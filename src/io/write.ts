@@ -9,7 +9,8 @@
  *     with no error, on a nearly full disk); the temporary file's size is checked against the
  *     expected size, and it is flushed to the disk (fsync).
  *  4. It is renamed over the target, and the folder is flushed, so the rename survives a power
- *     loss. Until the rename the old file is untouched.
+ *     loss. Until the rename the old file is untouched. (A folder that cannot be flushed does not
+ *     undo the save: the new file is complete; `folderFlushed` says so.)
  *  5. On any failure the temporary file is removed and the error becomes a FileSystemError (exit 2)
  *     saying what to do ("disk full", "permission denied", ...).
  *
@@ -31,6 +32,8 @@ export interface Written {
   /** The file actually written (a symbolic link's target). */
   path: string;
   bytes: number;
+  /** False when the folder could not be flushed after the rename (the file is complete and in place). */
+  folderFlushed: boolean;
 }
 
 /** The temporary file name pattern of the writer, for `staleTempFiles`. */
@@ -61,18 +64,28 @@ export function resolveTarget(path: string): string {
   throw errnoError('ELOOP', 'readlink', path);
 }
 
-function flushFolder(dir: string): void {
-  if (!fsyncWanted()) return;
+/**
+ * Flush the folder so that the rename is on the disk. False when it could not be flushed: the
+ * new file is complete and in place, but a power loss in the next moments could bring back the
+ * old one (some file systems cannot flush a folder at all).
+ */
+function flushFolder(dir: string): boolean {
+  if (!fsyncWanted()) return true;
   let fd: number | undefined;
   try {
     fd = fsOps.openSync(dir, 'r');
     fsOps.fsyncSync(fd);
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    // Some file systems cannot flush a folder; the rename is then as durable as they make it.
-    if (code !== 'EINVAL' && code !== 'ENOTSUP' && code !== 'EISDIR' && code !== 'EBADF') throw e;
+    return true;
+  } catch {
+    return false;
   } finally {
-    if (fd !== undefined) fsOps.closeSync(fd);
+    if (fd !== undefined) {
+      try {
+        fsOps.closeSync(fd);
+      } catch {
+        // nothing more to do
+      }
+    }
   }
 }
 
@@ -111,8 +124,7 @@ export function writeFileSafely(path: string, data: string | Uint8Array, o: Writ
     fsOps.closeSync(closing);
     fsOps.renameSync(tmp, target);
     tmp = undefined;
-    flushFolder(dirname(target));
-    return { path: target, bytes: buf.length };
+    return { path: target, bytes: buf.length, folderFlushed: flushFolder(dirname(target)) };
   } catch (e) {
     if (fd !== undefined) {
       try {
