@@ -5,7 +5,7 @@
 import { existsSync } from 'node:fs';
 import { extname, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
-import { UsageError, WorkpaperLockedError } from '../errors.js';
+import { FileSystemError, UsageError, WorkpaperLockedError } from '../errors.js';
 import { acquireLock, type HeldLock } from '../io/lock.js';
 import { packageVersion } from '../cli/main.js';
 import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
@@ -64,7 +64,8 @@ export async function sessionFor(
   try {
     lock = acquireLock(path, (o.now ?? (() => new Date()))());
   } catch (e) {
-    if (!(e instanceof WorkpaperLockedError) || !existsSync(path)) throw e;
+    // Held by another session, or the folder takes no lock file (read-only): the file can still be looked at.
+    if (!(e instanceof WorkpaperLockedError || e instanceof FileSystemError) || !existsSync(path)) throw e;
     ctx.stdout.write(`${e.message}\n${e.details.map((d) => `  ${d}\n`).join('')}`);
     const look = await asker.confirm({
       id: 'open.locked.readOnly',
