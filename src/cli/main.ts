@@ -46,8 +46,9 @@ export function mainHelp(): string {
   lines.push('  tolrate size --confidence 95 --tolerable 6 --expected 1');
   lines.push('  tolrate limit --sample 78 --deviations 2 --confidence 95 --tolerable 6');
   lines.push('');
-  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage;');
-  lines.push('            130 stopped with Ctrl-C (every step answered before is saved).');
+  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage,');
+  lines.push('            or the disk refused (full, read-only, no permission), or the file is open in');
+  lines.push('            another session; 130 stopped with Ctrl-C (every step saved before is kept).');
   lines.push('');
   lines.push('The tool computes. Whether a control can be relied on, and how severe a deficiency is, are');
   lines.push('the practitioner\'s judgements under the auditing standards that apply (e.g. AU-C 530,');

@@ -26,6 +26,12 @@ say "not yet evaluated".
 A template folder is checked when it is read: every placeholder such as {{entity}} must be
 one the memo knows; a problem names the file, the key and the placeholder.
 
+Characters a Word document cannot hold (control characters, U+FFFE, U+FFFF) are left out of
+the memo, and its appendix says how many and from where. The memo is checked with a strict XML
+parser, then written to a temporary file and renamed over MEMO.docx: on a full or read-only
+disk the old memo stays as it was and the message says what to do (exit 2). The workpaper is
+only read (no lock is needed while another session has it open).
+
 Examples:
   tolrate memo C-310.tolrate.json
   tolrate memo C-310.tolrate.json --out review/C-310-memo.docx --template firm-templates/memo

@@ -13,12 +13,13 @@ It checks:
   - the selection, drawn again from the recorded seed and algorithm, item by item;
   - the sample size, every rate, upper limit, risk of overreliance, decision and extension;
   - the conclusion against the recomputed figures and recorded causes;
-  - with --memo, that the memo carries the same figures.
+  - with --memo, that the memo carries the same figures, and that its XML parses (strict
+    XML 1.0; a memo that does not parse is a difference).
 
 Options:
   --population PATH  the population file, when it has moved (default: the path recorded in the
                      workpaper, relative to the workpaper file's folder)
-  --memo PATH        also check this DOCX memo
+  --memo PATH        also check this DOCX memo (figures and XML)
   --json             print the report as JSON
   -h, --help         this text
 
