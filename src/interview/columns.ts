@@ -62,6 +62,7 @@ interface BookReader {
 
 /** Header of an XLSX sheet (the first sheet when none is named): the first row with any value. */
 export async function xlsxColumns(path: string, sheet?: string): Promise<{ sheet: string; columns: string[] }> {
+  assertRegularFile(path, 'The population file');
   const ExcelJS = (await import('exceljs')).default;
   const reader = new ExcelJS.stream.xlsx.WorkbookReader(path, {
     worksheets: 'emit',
@@ -100,6 +101,7 @@ export async function xlsxColumns(path: string, sheet?: string): Promise<{ sheet
 
 /** The names of an XLSX workbook's worksheets, in order (the rows are not read). */
 export async function xlsxSheetNames(path: string): Promise<string[]> {
+  assertRegularFile(path, 'The population file');
   const ExcelJS = (await import('exceljs')).default;
   const reader = new ExcelJS.stream.xlsx.WorkbookReader(path, {
     worksheets: 'emit',

@@ -19,6 +19,7 @@
  * every cell that cannot be read is reported with its row, column, value and why.
  */
 import { readRegularFile } from '../io/read.js';
+import { withoutQuotes } from '../io/messages.js';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
 import { KEY_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
@@ -110,7 +111,7 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
   try {
     records = parse(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true }) as string[][];
   } catch (e) {
-    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${(e as Error).message}`);
+    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${withoutQuotes((e as Error).message)}`);
   }
   const problems: SheetProblem[] = [];
   const out: SheetRead = { items: new Map(), problems };

@@ -72,6 +72,15 @@ export function readError(e: unknown, path: string, what: string): TolrateInputE
 }
 
 /**
+ * A parser's message (CSV, XML) without the pieces of the file it quotes: quoted runs become
+ * "…", and it is kept short. The line and column the parser names stay.
+ */
+export function withoutQuotes(message: string): string {
+  const m = message.replace(/"[^"\n]{0,200}"|'[^'\n]{0,200}'/g, '"…"').replace(/\s+/g, ' ').trim();
+  return m.length > 160 ? `${m.slice(0, 157)}...` : m;
+}
+
+/**
  * Where a JSON text stops being valid, without quoting any of it (Node's own message quotes a
  * snippet of the text, which may be anything: a file that is not what was asked for).
  */
