@@ -5,6 +5,7 @@
  * on Ctrl-C and on SIGTERM/SIGHUP (a `kill -9` or a power loss leaves it: the next session on the
  * same host sees that its process is gone and takes it over, with a note).
  */
+import { readFileSync } from 'node:fs';
 import { hostname, userInfo } from 'node:os';
 import { basename } from 'node:path';
 import { WorkpaperLockedError } from '../errors.js';
@@ -42,12 +43,22 @@ function whoAmI(): string {
   }
 }
 
+/**
+ * Whether the process that wrote a lock still runs. After a crash its number may have been given
+ * to another program: where the system says what a process runs (Linux's /proc/PID/cmdline), one
+ * that is not Node (tolrate runs under node) is not the lock's holder.
+ */
 function alive(pid: number): boolean {
   try {
     process.kill(pid, 0);
-    return true;
   } catch (e) {
-    return (e as NodeJS.ErrnoException).code === 'EPERM';
+    if ((e as NodeJS.ErrnoException).code !== 'EPERM') return false;
+  }
+  try {
+    const cmd = readFileSync(`/proc/${pid}/cmdline`, 'utf8');
+    return cmd === '' || /node/i.test(cmd);
+  } catch {
+    return true;
   }
 }
 

@@ -3,6 +3,7 @@ import { dirname, extname } from 'node:path';
 import { TolrateInputError } from '../errors.js';
 import { writeFileSafely } from '../io/write.js';
 import { xmlText } from '../io/text.js';
+import { zipXmlProblems } from '../io/xml.js';
 import type { PopulationRow } from '../population/types.js';
 import type { Selection } from './types.js';
 
@@ -112,7 +113,11 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
     about.getColumn(1).width = 100;
     for (const line of sheet.notes) about.addRow([xmlText(line)]);
   }
-  return Buffer.from(await wb.xlsx.writeBuffer());
+  const buf = Buffer.from(await wb.xlsx.writeBuffer());
+  // The cells were cleaned above; a sheet whose XML does not parse would be tolrate's own fault.
+  const problems = await zipXmlProblems(buf);
+  if (problems.length) throw new Error(`the fieldwork sheet's XML does not parse, so it was not written: ${problems.slice(0, 3).join('; ')}`);
+  return buf;
 }
 
 /** Write a file through the one writer (src/io/write.ts), creating its folder first. */

@@ -6,6 +6,7 @@
  * linked workpaper, and the temporary files of a killed save.
  */
 import { describe, expect, it } from 'vitest';
+import { spawn } from 'node:child_process';
 import { chmodSync, existsSync, lstatSync, readFileSync, readdirSync, renameSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
@@ -191,6 +192,19 @@ describe('one writer at a time', () => {
     expect(ctx.text()).toContain('Note: A lock left by someone on');
     expect(ctx.text()).toContain('(process 99999999, since 2026-01-01T00:00:00.000Z), which is no longer running, was taken over.');
     expect(existsSync(lockPathFor(file))).toBe(false);
+  });
+
+  it('a lock whose process number now belongs to another program (not node) is stale too', async () => {
+    const { dir, file } = await plannedTest();
+    const other = spawn('sleep', ['30'], { stdio: 'ignore' });
+    try {
+      writeFileSync(lockPathFor(file), JSON.stringify({ tool: 'tolrate', host: hostname(), pid: other.pid, user: 'someone', startedAt: '2026-01-01T00:00:00.000Z', file: 't1.tolrate.json' }));
+      const ctx = captureContext(dir);
+      expect(await record(['t1.tolrate.json'], ctx, new ScriptedAsker(conforming), { now: fixedClock() })).toBe(0);
+      expect(ctx.text()).toContain(`(process ${other.pid}, since 2026-01-01T00:00:00.000Z), which is no longer running, was taken over.`);
+    } finally {
+      other.kill('SIGKILL');
+    }
   });
 
   it('a lock from another computer is not taken over (its process cannot be checked from here)', async () => {

@@ -96,6 +96,32 @@ describe('text from files on the terminal', () => {
     expect(hasControl('plain ünïcode')).toBe(false);
   });
 
+  it("the terminal answerer shows a question's message and its choices with control characters written out", async () => {
+    const { TerminalAsker } = await import('../../src/interview/terminal.js');
+    const seen: Array<{ message: string; choices?: Array<{ name: string }> }> = [];
+    const asker = new TerminalAsker({ out: { write: () => undefined }, color: false });
+    // The prompts library is replaced by one that records what it would draw.
+    (asker as unknown as { prompts: unknown }).prompts = {
+      select: async (c: { message: string; choices: Array<{ name: string; value: string }> }) => {
+        seen.push(c);
+        return c.choices[0]!.value;
+      },
+      confirm: async (c: { message: string }) => {
+        seen.push(c);
+        return true;
+      },
+      input: async (c: { message: string }) => {
+        seen.push(c);
+        return 'x';
+      },
+    };
+    await asker.select({ id: 't', message: 'Item K-1\u001b]0;pwned\u0007', choices: [{ value: 'a', name: 'K-2\u001b[8m' }] });
+    await asker.confirm({ id: 'c', message: 'Remove \u001b[2J?' });
+    await asker.text({ id: 'x', message: 'Key \u009b31m', parse: (t) => t });
+    expect(seen.map((q) => q.message)).toEqual(['Item K-1\\x1b]0;pwned\\x07', 'Remove \\x1b[2J?', 'Key \\x9b31m']);
+    expect(seen[0]!.choices![0]!.name).toBe('K-2\\x1b[8m');
+  });
+
   it('select: keys with escape sequences are shown written out, and the population check reports them', async () => {
     // The case found: keys were printed raw (a key could retitle the window or hide text) and not reported.
     const dir = tempDir();
