@@ -55,6 +55,16 @@ describe('the memo', () => {
     expect(await runCli(['reperform', f.path, '--memo', 'm.docx'], rp)).toBe(0);
   });
 
+  it('reperform --memo: a key with a character XML forbids is found in the memo as the memo holds it', async () => {
+    const f = buildFixture({ variant: 'supported' });
+    const wp = JSON.parse(JSON.stringify(f.wp)) as typeof f.wp;
+    wp.selection!.items[0]!.key = `${wp.selection!.items[0]!.key}\u0001`;
+    writeFileSync(join(f.dir, 'm.docx'), await renderMemo(wp, { workpaperPath: f.path }));
+    const { reperform } = await import('../../src/reperform/index.js');
+    const r = await reperform({ workpaper: wp, workpaperPath: f.path, memoPath: join(f.dir, 'm.docx') });
+    expect(r.checks.find((c) => c.area === 'memo')!.differences).toEqual([]);
+  });
+
   it('reperform --memo: a memo whose XML does not parse is a difference', async () => {
     const f = buildFixture({ variant: 'supported' });
     const good = await renderMemo(f.wp, { workpaperPath: f.path });
