@@ -5,4 +5,4 @@
 export * from './stats/index.js';
 export * from './errors.js';
 export * as workpaper from './workpaper/index.js';
-export * as evaluation from './evaluation/index.js';
+export * as evaluation from './control-test/index.js';

@@ -1,25 +1,14 @@
-import { readFileSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
-import { dirname, join } from 'node:path';
+import { basename, relative } from 'node:path';
+import { packageVersion } from '../util/version.js';
 import { COMMANDS, findCommand } from '../commands/registry.js';
 import type { CommandContext, CommandRun } from '../commands/types.js';
 import { isInputError } from '../errors.js';
-import { nearest } from './args.js';
-import { releaseAllLocks } from '../io/lock.js';
+import { nearest } from '../util/text.js';
+import { heldLocks, releaseAllLocks } from '../io/lock.js';
 import { visible } from '../io/text.js';
 
-export function packageVersion(): string {
-  const here = dirname(fileURLToPath(import.meta.url));
-  for (const p of [join(here, '..', '..', 'package.json'), join(here, '..', 'package.json')]) {
-    try {
-      const pkg = JSON.parse(readFileSync(p, 'utf8')) as { name?: string; version?: string };
-      if (pkg.name === 'tolrate' && pkg.version) return pkg.version;
-    } catch {
-      // try the next location
-    }
-  }
-  return 'unknown';
-}
+export { packageVersion };
+
 
 export function mainHelp(): string {
   const lines: string[] = [];
@@ -71,12 +60,29 @@ export function defaultContext(): CommandContext {
     color: Boolean(process.stdout.isTTY) && !('NO_COLOR' in process.env && process.env.NO_COLOR !== ''),
     cwd: process.cwd(),
     env: process.env,
+    invocation: invocation(process.argv[1], process.cwd()),
   };
+}
+
+/**
+ * How the user started tolrate, for the commands the tool prints ("Continue with: ..."): `tolrate`
+ * when installed on the PATH, `npx tolrate` under npx, `node dist/cli.js` when run from a clone.
+ */
+export function invocation(script: string | undefined, cwd: string): string {
+  if (!script) return 'tolrate';
+  const parts = script.split(/[\\/]/);
+  // The bin link: in a node_modules folder (npx, or a local install) it is run with npx; on the PATH as is.
+  if (basename(script) === 'tolrate' || basename(script) === 'tolrate.cmd') return parts.includes('node_modules') ? 'npx tolrate' : 'tolrate';
+  if (parts.includes('node_modules')) return 'npx tolrate';
+  const r = relative(cwd, script);
+  const shown = r && !r.startsWith('..') && !r.startsWith('/') ? r : script;
+  return `node ${/\s/.test(shown) ? `"${shown}"` : shown}`;
 }
 
 /** Run the CLI with the given arguments; resolves to the exit code. */
 export async function runCli(argv: string[], ctx: CommandContext = defaultContext()): Promise<number> {
   const [first, ...rest] = argv;
+  const locksBefore = heldLocks();
   try {
     if (first === undefined) {
       return await (await loadCommand('start'))([], ctx);
@@ -121,14 +127,14 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
     }
     if (e instanceof Error && e.name === 'ExitPromptError') {
       // Stopped while a failed save was being handled: the session says what is not on disk.
-      const note = (e as { tolrateStopNote?: unknown }).tolrateStopNote;
+      const note = (e as { stopNote?: unknown }).stopNote;
       if (typeof note === 'string') {
         ctx.stderr.write(note);
         return 130;
       }
       const { stoppedMessage } = await import('./stopped.js');
-      const { relative } = await import('node:path');
-      ctx.stderr.write(stoppedMessage(ctx.cwd, relative));
+      const info = e as { workpaper?: string; keptUnfinished?: boolean };
+      ctx.stderr.write(stoppedMessage(ctx.cwd, relative, { workpaper: info.workpaper, keptUnfinished: info.keptUnfinished }, ctx.invocation));
       return 130;
     }
     const sys = e as { code?: unknown; syscall?: unknown; path?: unknown };
@@ -148,6 +154,6 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
     return 70;
   } finally {
     // Whatever way the command ended, the locks it took are given back.
-    releaseAllLocks();
+    releaseAllLocks(locksBefore);
   }
 }

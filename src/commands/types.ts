@@ -15,6 +15,8 @@ export interface CommandContext {
   color: boolean;
   cwd: string;
   env: Record<string, string | undefined>;
+  /** How tolrate was started (`tolrate`, `npx tolrate`, `node dist/cli.js`), for the commands it prints. Default `tolrate`. */
+  invocation?: string;
 }
 
 /** A command module (src/commands/NAME/index.ts) exports `run` with this signature. */

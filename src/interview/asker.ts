@@ -63,6 +63,12 @@ export function refusal(e: unknown): string {
 
 /** Raised by an answerer when the user stops the interview (Ctrl-C); same name as inquirer's. */
 export class InterviewStopped extends Error {
+  /** The workpaper file, once it holds something (the stop message names it). */
+  workpaper?: string;
+  /** The answers given in the step in progress were kept in the workpaper. */
+  keptUnfinished?: boolean;
+  /** Said instead of the usual stop message: a save had just failed, so the last answer is not on disk. */
+  stopNote?: string;
   constructor(message = 'The interview was stopped.') {
     super(message);
     this.name = 'ExitPromptError';

@@ -7,12 +7,11 @@ import { extname, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { FileSystemError, UsageError, WorkpaperLockedError } from '../errors.js';
 import { acquireLock, type HeldLock } from '../io/lock.js';
-import { packageVersion } from '../cli/main.js';
+import { packageVersion } from '../util/version.js';
 import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { Asker } from './asker.js';
 import { newSession, offerTempCleanup, openSession, type Session } from './session.js';
 import { TerminalAsker } from './terminal.js';
-import { setOpenWorkpaper } from '../cli/stopped.js';
 
 /** Options an interview run takes besides the answerer (tests fix the clock). */
 export interface InterviewOptions {
@@ -21,12 +20,13 @@ export interface InterviewOptions {
 
 /** Without a terminal an interview cannot ask: say how to run it instead (exit 2). */
 export function needsTerminal(ctx: CommandContext, command: string): number {
-  const how = command === 'start' ? 'tolrate' : `tolrate ${command} ${command === 'plan' ? '[FILE]' : 'FILE'}`;
+  const t = ctx.invocation ?? 'tolrate';
+  const how = command === 'start' ? t : `${t} ${command} ${command === 'plan' ? '[FILE]' : 'FILE'}`;
   ctx.stderr.write(
     `${command === 'start' ? 'tolrate' : `tolrate ${command}`} is an interview and needs a terminal (stdin and stdout); this is not one.\n` +
       `  Run it in a terminal:  ${how}\n` +
-      '  For a complete scripted run that asks nothing:  tolrate demo\n' +
-      '  The calculators work without a terminal:  tolrate size, limit, table, select (see tolrate --help)\n',
+      `  For a complete scripted run that asks nothing:  ${t} demo\n` +
+      `  The calculators work without a terminal:  ${t} size, limit, table, select (see ${t} --help)\n`,
   );
   return 2;
 }
@@ -57,9 +57,9 @@ export async function sessionFor(
   ctx: CommandContext,
   asker: Asker,
   path: string,
-  o: InterviewOptions & { policyPath?: string; mustExist?: boolean },
+  o: InterviewOptions & { policyPath?: string; mustExist?: boolean; hold?: (s: Session) => Session },
 ): Promise<Session | ReadOnlyView | undefined> {
-  if (!existsSync(path) && o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, ['Start a test with: tolrate plan FILE']);
+  if (!existsSync(path) && o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, [`Start a test with: ${ctx.invocation ?? 'tolrate'} plan FILE`]);
   let lock: HeldLock;
   try {
     lock = acquireLock(path, (o.now ?? (() => new Date()))());
@@ -83,20 +83,19 @@ export async function sessionFor(
     color: ctx.color,
     cwd: ctx.cwd,
     toolVersion: packageVersion(),
+    invocation: ctx.invocation ?? 'tolrate',
     lock,
     ...(o.now ? { now: o.now } : {}),
     ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
   };
+  const hold = o.hold ?? ((s: Session) => s);
   try {
-    // A Ctrl-C names the file only once it holds something: before the first step is saved
-    // there is no file to continue (the session names it at its first save).
-    setOpenWorkpaper(existsSync(path) ? path : undefined);
     if (existsSync(path)) {
-      const s = await openSession(base);
+      const s = await openSession({ ...base, hold });
       if (!s) lock.release();
       return s;
     }
-    const s = newSession(base);
+    const s = hold(newSession(base));
     await offerTempCleanup(s);
     return s;
   } catch (e) {

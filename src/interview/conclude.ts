@@ -3,12 +3,12 @@
  * practitioner's conclusion, the follow-up actions, the severity (asked, never chosen by the
  * tool) and the preparer's sign-off.
  */
-import { evaluate } from '../evaluation/evaluate.js';
-import { proposeConclusion, SEVERITY_QUESTIONS } from '../evaluation/conclude.js';
+import { evaluate } from '../control-test/evaluate.js';
+import { proposeConclusion, SEVERITY_QUESTIONS } from '../control-test/conclude.js';
+import { FOLLOW_UP_LABELS, SEVERITY_LABELS } from '../control-test/index.js';
 import {
   FOLLOW_UP_KINDS,
   SEVERITIES,
-  SEVERITY_LABELS,
   type Conclusion,
   type Evaluation,
   type FollowUp,
@@ -21,14 +21,7 @@ import type { Session } from './session.js';
 import { date, optionalDate, optionalText, requiredText, today } from './parse.js';
 import { CAUTION, table, wrap } from './show.js';
 
-export const FOLLOW_UP_LABELS: Record<FollowUpKind, string> = {
-  'extend-sample': 'Extend the sample',
-  'test-compensating-control': 'Test a compensating control',
-  'reduce-reliance': 'Reduce reliance, expand substantive work',
-  communicate: 'Communicate',
-  'assess-severity': 'Assess severity',
-  other: 'Other',
-};
+export { FOLLOW_UP_LABELS };
 
 /** The evaluation table as text lines (also used by the demo narrative). */
 export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
@@ -96,27 +89,41 @@ async function askFollowUpDetails(s: Session, id: string, f: FollowUp, editDescr
   return out;
 }
 
-async function askFollowUps(s: Session, proposed: FollowUp[]): Promise<FollowUp[]> {
+async function askFollowUps(s: Session, proposed: FollowUp[], prior: readonly FollowUp[]): Promise<FollowUp[]> {
   const a = s.asker;
   const out: FollowUp[] = [];
   s.heading('Follow-up actions');
   if (proposed.length === 0) s.print('The tool proposes no follow-up action.');
+  const unused = [...prior];
   for (const [i, f] of proposed.entries()) {
     const id = `conclude.followUps.${i + 1}`;
+    // An earlier answer of the same kind: its owner, due date and wording are offered again.
+    const j = unused.findIndex((x) => x.kind === f.kind);
+    const before = j >= 0 ? unused.splice(j, 1)[0] : undefined;
     // The heading already ends with a blank line; later actions are set apart by one.
     s.print(...(i > 0 ? [''] : []), `${i + 1}. ${FOLLOW_UP_LABELS[f.kind]}:`, ...wrap(f.description, 92, '   '));
+    const reworded = before !== undefined && before.description !== f.description && f.kind !== 'extend-sample';
+    if (before) s.print(...wrap(`Earlier answer: ${reworded ? `"${before.description}"; ` : ''}owner ${before.owner ?? 'none yet'}, due ${before.due ?? 'none yet'}.`, 92, '   '));
     const what = await a.select({
       id: `${id}.action`,
       message: 'Keep this action?',
       choices: [
         { value: 'keep', name: 'Keep it as proposed' },
-        { value: 'edit', name: 'Keep it, with my own wording' },
+        { value: 'edit', name: reworded ? 'Keep it, with my earlier (or new) wording' : 'Keep it, with my own wording' },
         { value: 'remove', name: 'Remove it' },
       ],
-      default: 'keep',
+      default: reworded ? 'edit' : 'keep',
     });
     if (what === 'remove') continue;
-    out.push(await askFollowUpDetails(s, id, f, what === 'edit'));
+    const base: FollowUp = { ...f, ...(before?.owner ? { owner: before.owner } : {}), ...(before?.due ? { due: before.due } : {}) };
+    out.push(await askFollowUpDetails(s, id, what === 'edit' && reworded ? { ...base, description: before!.description } : base, what === 'edit'));
+  }
+  // Earlier actions the tool no longer proposes (the practitioner's own ones among them).
+  for (const [k, f] of unused.entries()) {
+    const id = `conclude.followUps.earlier.${k + 1}`;
+    s.print('', `Earlier action: ${FOLLOW_UP_LABELS[f.kind]}:`, ...wrap(f.description, 92, '   '), ...wrap(`Owner ${f.owner ?? 'none yet'}, due ${f.due ?? 'none yet'}.`, 92, '   '));
+    const keep = await a.confirm({ id: `${id}.keep`, message: 'Keep this earlier action?', default: f.kind === 'other' || f.kind === 'communicate' });
+    if (keep) out.push(f);
   }
   for (let j = 1; ; j++) {
     const more = await a.confirm({ id: `conclude.followUps.add.${j}`, message: 'Add a follow-up action of your own?', default: false });
@@ -133,13 +140,14 @@ async function askFollowUps(s: Session, proposed: FollowUp[]): Promise<FollowUp[
   return out;
 }
 
-async function askSeverity(s: Session): Promise<NonNullable<Conclusion['severity']>> {
+async function askSeverity(s: Session, prior?: Conclusion['severity']): Promise<NonNullable<Conclusion['severity']>> {
   const a = s.asker;
   s.heading('Severity of the deficiency');
   s.print(...wrap('Reliance is not supported. Answer these questions; then choose the classification yourself. The tool does not classify the deficiency.'));
   const answers: Array<{ question: string; answer: string }> = [];
   for (const [i, q] of SEVERITY_QUESTIONS.entries()) {
-    const answer = await a.text({ id: `conclude.severity.q${i + 1}`, message: q, parse: requiredText('The answer') });
+    const earlier = prior?.answers.find((x) => x.question === q)?.answer;
+    const answer = await a.text({ id: `conclude.severity.q${i + 1}`, message: q, ...(earlier ? { default: earlier, editable: true } : {}), parse: requiredText('The answer') });
     answers.push({ question: q, answer });
   }
   const order = ['deficiency', 'significant-deficiency', 'material-weakness', 'none'] as const;
@@ -149,10 +157,12 @@ async function askSeverity(s: Session): Promise<NonNullable<Conclusion['severity
     message: 'Your classification',
     help: 'Your judgement under the applicable standards and the firm\'s methodology.',
     choices: order.map((v) => ({ value: v, name: SEVERITY_LABELS[v] })),
+    ...(prior ? { default: prior.classification } : {}),
   });
   const rationale = await a.text({
     id: 'conclude.severity.rationale',
     message: 'Why this classification?',
+    ...(prior && prior.classification === classification ? { default: prior.rationale, editable: true } : {}),
     parse: requiredText('The rationale'),
   });
   return { answers, classification, rationale };
@@ -165,6 +175,12 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
   const ev = await runEvaluation(s);
   s.print(...evaluationLines(s.wp, ev));
   const proposal = proposeConclusion(s.wp, ev, s.now());
+  // Concluding again (after a change to the results or an earlier answer): every earlier answer
+  // is offered as the default; the ones the new figures contradict are flagged and asked afresh.
+  const prior = s.wp.conclusion ?? s.wp.earlierConclusion;
+  if (prior && !s.wp.conclusion) {
+    s.print('', ...wrap('The test was concluded before, from other results or answers. Your earlier answers are offered as defaults; the ones the new figures contradict are marked and must be answered afresh.', 92, '  '));
+  }
 
   s.heading('Qualitative review');
   for (const f of proposal.findings) s.print(...wrap(`${f.attributeId}: ${f.reasoning}`, 92, '  '), '');
@@ -175,13 +191,13 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
     id: 'conclude.compensatingControls',
     message: 'Compensating controls considered (blank = none)',
     help: 'Another control over the same risk, and whether it has been tested.',
-    default: s.wp.conclusion?.qualitative.compensatingControls ?? '',
+    default: prior?.qualitative.compensatingControls ?? '',
     parse: optionalText,
   });
   const notes = await a.text({
     id: 'conclude.notes',
     message: 'Other notes on the qualitative review (blank = none)',
-    default: s.wp.conclusion?.qualitative.notes ?? '',
+    default: prior?.qualitative.notes ?? '',
     parse: optionalText,
   });
 
@@ -189,10 +205,17 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
   const attributes: Conclusion['attributes'] = [];
   for (const f of proposal.findings) {
     const word = f.supportsReliance ? 'supports' : 'does not support';
+    const before = prior?.attributes.find((x) => x.attributeId === f.attributeId);
+    // The earlier answer agreed with the evidence as it was; it holds if the evidence says the same now.
+    const earlierDisagreed = before !== undefined && / The practitioner concluded otherwise: /.test(before.reasoning);
+    const contradicted = before !== undefined && !earlierDisagreed && before.supportsReliance !== f.supportsReliance;
+    if (contradicted) {
+      s.print(...wrap(`Changed: earlier you concluded that ${f.attributeId} ${before.supportsReliance ? 'supports' : 'does not support'} reliance; the figures now say it ${word} it. Answer afresh.`, 92, '  '));
+    }
     const agree = await a.confirm({
       id: `conclude.attribute.${f.attributeId}.agree`,
       message: `${f.attributeId}: the evidence ${word} the planned reliance. Do you agree?`,
-      default: true,
+      ...(contradicted ? {} : { default: !earlierDisagreed || before!.supportsReliance === f.supportsReliance }),
     });
     if (agree) {
       attributes.push({ attributeId: f.attributeId, supportsReliance: f.supportsReliance, reasoning: f.reasoning });
@@ -201,9 +224,11 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
     if (!f.supportsReliance) {
       s.print(...wrap('Warning: the rates or the qualitative review do not support reliance; concluding otherwise needs a strong, documented reason.', 92, '  '));
     }
+    const earlierWhy = earlierDisagreed && before!.supportsReliance !== f.supportsReliance ? before!.reasoning.split(' The practitioner concluded otherwise: ')[1] : undefined;
     const why = await a.text({
       id: `conclude.attribute.${f.attributeId}.reason`,
       message: `Why do you conclude that ${f.attributeId} ${f.supportsReliance ? 'does not support' : 'supports'} reliance?`,
+      ...(earlierWhy ? { default: earlierWhy, editable: true } : {}),
       parse: requiredText('The reason'),
     });
     attributes.push({
@@ -220,15 +245,19 @@ export async function askConclusion(s: Session): Promise<Conclusion> {
       : all
         ? `The results support the planned reliance on ${controlId} for the period tested, as concluded by the practitioner.`
         : `The results do not support the planned reliance on ${controlId} (${attributes.filter((x) => !x.supportsReliance).map((x) => x.attributeId).join(', ')}). The follow-up actions below apply.`;
+  const earlierText = prior && prior.control.supportsReliance === all && prior.control.text !== proposedText ? prior.control.text : undefined;
+  if (prior && prior.control.supportsReliance !== all) {
+    s.print(...wrap(`Changed: earlier the conclusion on the control was that the results ${prior.control.supportsReliance ? 'support' : 'do not support'} the planned reliance; now they ${all ? 'do' : 'do not'}. The proposed wording replaces your earlier one.`, 92, '  '));
+  }
   const text = await a.text({
     id: 'conclude.control.text',
     message: 'Conclusion on the control (edit it, or press Enter to keep it)',
-    default: proposedText,
+    default: earlierText ?? proposedText,
     editable: true,
     parse: requiredText('The conclusion'),
   });
-  const followUps = await askFollowUps(s, proposal.followUps);
-  const severity = all ? undefined : await askSeverity(s);
+  const followUps = await askFollowUps(s, proposal.followUps, prior?.followUps ?? []);
+  const severity = all ? undefined : await askSeverity(s, prior?.severity);
   s.print('', ...wrap(CAUTION));
   return {
     attributes,

@@ -1,114 +1,17 @@
 /**
- * The order of the interview's steps, which of them a workpaper has answered, and the runs of
- * the stages (plan, record, conclude) from the first unanswered step. Each step saves when it
+ * The runs of the interview's steps (their order and what each writes are the test's rules, in
+ * src/control-test/steps.ts): from the first unanswered step, revisits, and the step list. Each step saves when it
  * is answered, so an interruption at any question leaves the last answered step on file.
  */
 import type { Workpaper } from '../workpaper/schema.js';
-import { canonicalJson } from '../workpaper/log.js';
+import { clearSteps, dependents, firstOpen, isAnswered, recordingComplete, sameAnswer, STEP_LABELS, STEP_MEMBERS, STEPS, type StepName } from '../control-test/index.js';
 import type { Session } from './session.js';
 import { askAttributes, askControl, askEngagement } from './plan-basics.js';
 import { askApproach } from './plan-approach.js';
 import { askPopulation } from './plan-population.js';
 import { askSelection } from './plan-selection.js';
-import { changeResults, recordingComplete, runRecordStep } from './record.js';
+import { changeResults, runRecordStep } from './record.js';
 import { askConclusion, askSignoff } from './conclude.js';
-
-export const PLAN_STEPS = ['plan.engagement', 'plan.control', 'plan.attributes', 'plan.population', 'plan.approach', 'plan.selection'] as const;
-export const STEPS = [...PLAN_STEPS, 'record', 'conclude', 'signoff'] as const;
-export type StepName = (typeof STEPS)[number];
-
-export const STEP_LABELS: Record<StepName, string> = {
-  'plan.engagement': 'Engagement',
-  'plan.control': 'Control',
-  'plan.attributes': 'Attributes',
-  'plan.population': 'Population',
-  'plan.approach': 'Approach and sample size',
-  'plan.selection': 'Selection',
-  record: 'Results',
-  conclude: 'Evaluation and conclusion',
-  signoff: 'Sign-off',
-};
-
-/** The workpaper members each step writes, in step order (later steps depend on earlier ones). */
-const STEP_MEMBERS: Record<StepName, ReadonlyArray<keyof Workpaper>> = {
-  'plan.engagement': ['engagement'],
-  'plan.control': ['control'],
-  'plan.attributes': ['attributes'],
-  'plan.population': ['population'],
-  'plan.approach': ['approach'],
-  'plan.selection': ['selection'],
-  record: ['results'],
-  conclude: ['evaluation', 'conclusion'],
-  signoff: ['signoffs'],
-};
-
-export function isAnswered(wp: Workpaper, step: StepName): boolean {
-  switch (step) {
-    case 'plan.engagement':
-      return wp.engagement !== undefined;
-    case 'plan.control':
-      return wp.control !== undefined;
-    case 'plan.attributes':
-      return wp.attributes !== undefined && wp.attributes.length > 0;
-    case 'plan.population':
-      return wp.population !== undefined;
-    case 'plan.approach':
-      return wp.approach !== undefined;
-    case 'plan.selection':
-      return wp.selection !== undefined;
-    case 'record':
-      return recordingComplete(wp);
-    case 'conclude':
-      return wp.conclusion !== undefined;
-    case 'signoff':
-      return wp.signoffs?.preparer !== undefined;
-  }
-}
-
-/** The first step not answered, or undefined when the whole test is done. */
-export function firstOpen(wp: Workpaper, steps: readonly StepName[] = STEPS): StepName | undefined {
-  return steps.find((st) => !isAnswered(wp, st));
-}
-
-/**
- * Steps whose answers would be invalid if `step` changed to `value`. The engagement changes
- * nothing below. The control changes the approach onwards only when a non-statistical size was
- * read from the firm's policy for its frequency and the frequency changed. The attributes do not
- * change the population (only the sizes, the sheet's result columns and what follows).
- */
-export function dependents(step: StepName, wp?: Workpaper, value?: unknown): StepName[] {
-  const from = (first: StepName) => STEPS.slice(STEPS.indexOf(first)).filter((x) => x !== 'signoff');
-  if (step === 'plan.engagement') return [];
-  if (step === 'plan.control') {
-    const freq = (value as { frequency?: string } | undefined)?.frequency;
-    const ap = wp?.approach;
-    return ap?.kind === 'non-statistical' && ap.policy && freq !== undefined && freq !== ap.policy.frequency ? from('plan.approach') : [];
-  }
-  if (step === 'plan.attributes') return from('plan.approach');
-  const i = STEPS.indexOf(step);
-  return STEPS.slice(i + 1).filter((x) => x !== 'signoff');
-}
-
-/** Drop the members written by `steps` (and the sign-offs, which no longer cover the test). */
-function clear(wp: Workpaper, steps: readonly StepName[]): Workpaper {
-  const out: Record<string, unknown> = { ...wp };
-  for (const st of steps) for (const m of STEP_MEMBERS[st]) delete out[m];
-  if (steps.length > 0) delete out.signoffs;
-  return out as Workpaper;
-}
-
-/** Times of reading or selecting: not part of the answer when deciding whether it changed. */
-const TIMES = ['scannedAt', 'selectedAt', 'concludedAt', 'recordedAt', 'evaluatedAt'];
-
-function sameAnswer(a: unknown, b: unknown): boolean {
-  const strip = (v: unknown) => {
-    if (!v || typeof v !== 'object' || Array.isArray(v)) return v;
-    const o = { ...(v as Record<string, unknown>) };
-    for (const t of TIMES) delete o[t];
-    return o;
-  };
-  return canonicalJson(strip(a)) === canonicalJson(strip(b));
-}
 
 /**
  * Run one step: ask, store, save. For a step answered before (a revisit), the new answer
@@ -116,6 +19,7 @@ function sameAnswer(a: unknown, b: unknown): boolean {
  * those later steps are cleared (they will be asked again).
  */
 export async function runStep(s: Session, step: StepName): Promise<'done' | 'stopped' | 'kept'> {
+  s.currentStep = step;
   const revisit = isAnswered(s.wp, step) || (step === 'record' && s.wp.results !== undefined);
   if (s.wp.signoffs?.preparer && step !== 'signoff') await s.beforeEdit(STEP_LABELS[step].toLowerCase());
   const set = async (member: keyof Workpaper, value: unknown): Promise<'done' | 'kept'> => {
@@ -130,7 +34,7 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
       s.print('', `  This change makes the later steps out of date: ${later.map((d) => STEP_LABELS[d]).join(', ')}. They will be cleared and asked again.`);
       const go = await s.asker.confirm({ id: `${step}.clearLater`, message: 'Make the change?', default: false });
       if (!go) return 'kept';
-      s.wp = clear(s.wp, later);
+      s.wp = clearSteps(s.wp, later);
     }
     s.wp = { ...s.wp, [member]: value } as Workpaper;
     await s.save(step);
@@ -153,7 +57,8 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
       return recordingComplete(s.wp) ? changeResults(s) : runRecordStep(s);
     case 'conclude': {
       const c = await askConclusion(s);
-      s.wp = { ...s.wp, conclusion: c };
+      const { earlierConclusion: _earlier, ...rest } = s.wp;
+      s.wp = { ...rest, conclusion: c } as Workpaper;
       await s.save('conclude');
       return 'done';
     }
@@ -165,6 +70,8 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
     }
   }
 }
+
+export { PLAN_STEPS, STEPS, STEP_LABELS, isAnswered, firstOpen, dependents, type StepName } from '../control-test/index.js';
 
 /** Run the given steps in order from the first unanswered one. */
 export async function runOpenSteps(s: Session, steps: readonly StepName[]): Promise<'done' | 'stopped'> {

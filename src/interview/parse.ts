@@ -7,7 +7,7 @@ import { existsSync, statSync } from 'node:fs';
 import { isAbsolute, resolve } from 'node:path';
 import { parseCount, parsePercent } from '../util/percent.js';
 import { int, pctPlain } from '../util/format.js';
-import { nearest } from '../cli/args.js';
+import { nearest } from '../util/text.js';
 
 export class AnswerError extends Error {
   constructor(message: string) {

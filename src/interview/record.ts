@@ -5,71 +5,16 @@
  * resumes at the first unrecorded item.
  */
 import { isAbsolute, relative, resolve } from 'node:path';
-import { CAUSES, CAUSE_LABELS, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
+import { CAUSES, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
+import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
+
+export { worklist, isRecorded, progress, recordingComplete } from '../control-test/index.js';
 import { AnswerError, existingFile, requiredText } from './parse.js';
 import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
 import { table, wrap } from './show.js';
-
-export interface Worklist {
-  /** The items to test, in order: each sample item, and after a voided one the spare that replaces it. */
-  items: Array<{ item: SelectedItem; replaces?: string }>;
-  /** The first item with no result, or undefined when all are recorded. */
-  next: { item: SelectedItem; replaces?: string } | undefined;
-  /** The next spare not yet used, if any. */
-  nextSpare: SelectedItem | undefined;
-  /** Voided items for which no spare was left. */
-  shortBy: number;
-}
-
-export function worklist(wp: Workpaper): Worklist {
-  const sel = wp.selection;
-  if (!sel) throw new Error('no selection');
-  const results = new Map((wp.results?.items ?? []).map((r) => [r.key, r]));
-  const spares = sel.items.filter((i) => i.role === 'spare').sort((a, b) => a.seq - b.seq);
-  const sample = sel.items.filter((i) => i.role === 'sample').sort((a, b) => a.seq - b.seq);
-  const used = new Set([...results.values()].map((r) => r.void?.replacedBy).filter((k): k is string => k !== undefined));
-  const items: Worklist['items'] = [];
-  let shortBy = 0;
-  const visit = (item: SelectedItem, replaces?: string) => {
-    items.push({ item, ...(replaces ? { replaces } : {}) });
-    const r = results.get(item.key);
-    if (r?.void) {
-      const spare = r.void.replacedBy ? spares.find((s) => s.key === r.void!.replacedBy) : undefined;
-      if (spare) visit(spare, item.key);
-      else shortBy++;
-    }
-  };
-  for (const it of sample) visit(it);
-  const attrs = (wp.attributes ?? []).map((a) => a.id);
-  const complete = (key: string) => {
-    const r = results.get(key);
-    return r !== undefined && (r.void !== undefined || attrs.every((id) => r.attributes[id] !== undefined));
-  };
-  return {
-    items,
-    next: items.find((x) => !complete(x.item.key)),
-    nextSpare: spares.find((s) => !used.has(s.key) && !results.has(s.key)),
-    shortBy,
-  };
-}
-
-/** True when the item has its result: void, or a result for every attribute. */
-export function isRecorded(wp: Workpaper, key: string): boolean {
-  const r = wp.results?.items.find((x) => x.key === key);
-  return r !== undefined && (r.void !== undefined || (wp.attributes ?? []).every((a) => r.attributes[a.id] !== undefined));
-}
-
-/** Items of the worklist with their result, and in all. */
-export function progress(wp: Workpaper): { recorded: number; total: number } {
-  const wl = worklist(wp);
-  return { recorded: wl.items.filter((x) => isRecorded(wp, x.item.key)).length, total: wl.items.length };
-}
-
-export function recordingComplete(wp: Workpaper): boolean {
-  return wp.selection !== undefined && wp.results !== undefined && worklist(wp).next === undefined;
-}
+import { canonicalJson } from '../workpaper/log.js';
 
 function describe(item: SelectedItem, max = 6): string {
   const vals = Object.entries(item.values).filter(([k, v]) => k !== '' && v !== item.key).slice(0, max);
@@ -77,42 +22,30 @@ function describe(item: SelectedItem, max = 6): string {
 }
 
 /**
- * results.items in the order of the worklist: the recorded results, and a placeholder (no result
- * yet) for every other item to test. Keeping every item in place means each later save changes
- * one element, so the change log names the item recorded.
- */
-function arranged(wp: Workpaper, items: readonly ItemResult[]): ItemResult[] {
-  const probe: Workpaper = { ...wp, results: { source: 'interview', items: [...items], recordedAt: wp.updatedAt } };
-  const by = new Map(items.map((r) => [r.key, r]));
-  return worklist(probe).items.map(
-    ({ item, replaces }) => by.get(item.key) ?? { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: {} },
-  );
-}
-
-/**
  * Store one item's result (and save, unless `save` is false). An evaluation or conclusion made
- * from the old results is dropped in the same save (it no longer matches them).
+ * from the old results no longer holds: they are cleared in the same save, and the conclusion's
+ * answers are kept as the defaults for concluding again.
  */
 export async function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): Promise<void> {
-  if (s.wp.evaluation || s.wp.conclusion) {
-    const { evaluation: _e, conclusion: _c, ...rest } = s.wp;
-    s.wp = rest as Workpaper;
-    s.print('  The results changed: the evaluation and conclusion made from the old results are cleared; conclude again.');
+  const before = s.wp.results?.items.find((x) => x.key === r.key);
+  if (before && canonicalJson(before) === canonicalJson(r)) {
+    s.print(`  ${r.key}: unchanged.`);
+    return;
   }
-  const prev = s.wp.results;
-  const items = arranged(s.wp, [...(prev?.items ?? []).filter((x) => x.key !== r.key), r]);
-  const src = prev?.source === 'sheet' || source === 'sheet' ? 'sheet' : 'interview';
-  const path = sheetPath ?? prev?.sheetPath;
-  s.wp = { ...s.wp, results: { source: src, ...(path ? { sheetPath: path } : {}), items, recordedAt: s.now().toISOString() } };
+  if (s.wp.evaluation || s.wp.conclusion) {
+    s.wp = clearSteps(s.wp, ['conclude']);
+    s.print('  The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).');
+  }
+  s.wp = withResult(s.wp, r, { source, ...(sheetPath ? { sheetPath } : {}), at: s.now() });
   if (save) await s.save('record');
 }
 
 /** Record a void: the item is replaced by the next unused spare (or the sample is one short). */
 function voidItem(s: Session, item: SelectedItem, replaces: string | undefined, reason: string): ItemResult {
-  const spare = worklist(s.wp).nextSpare;
+  const { result, spare } = voidResult(s.wp, item, replaces, reason);
   if (spare) s.print(`  ${item.key} is void; it is replaced by spare ${spare.key} (item ${spare.seq}).`);
   else s.print(`  ${item.key} is void and no spare is left: the sample will be one item short unless more items are selected.`);
-  return { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), void: { reason, ...(spare ? { replacedBy: spare.key } : {}) }, attributes: {} };
+  return result;
 }
 
 /** Results are read back from a CSV sheet only: an XLSX fieldwork sheet is saved as CSV first. */
@@ -127,8 +60,8 @@ export const RESULT_HELP =
 /** Sessions that have shown the result help once (it is not repeated for every item). */
 const helped = new WeakSet<Session>();
 
-/** Ask one item's results. */
-export async function askItem(s: Session, item: SelectedItem, replaces: string | undefined, position: string): Promise<ItemResult> {
+/** Ask one item's results. A result recorded before is preselected, and its finding offered to keep or edit. */
+export async function askItem(s: Session, item: SelectedItem, replaces: string | undefined, position: string, previous?: ItemResult): Promise<ItemResult> {
   const a = s.asker;
   const attrs = s.wp.attributes!;
   s.print('', `Item ${position}: ${item.key} (row ${int(item.row)})${replaces ? `, spare replacing ${replaces}` : ''}`);
@@ -146,44 +79,62 @@ export async function askItem(s: Session, item: SelectedItem, replaces: string |
         { value: 'deviation', name: `Deviation (${attr.deviationDefinition})` },
         ...(i === 0 ? [{ value: 'void' as const, name: 'Void: properly cancelled document, replace with the next spare' }] : []),
       ],
-      default: 'conforms',
+      default: i === 0 && previous?.void ? 'void' : (previous?.attributes[attr.id]?.result ?? 'conforms'),
     });
     helped.add(s);
     if (result === 'void') {
-      const reason = await a.text({ id: `record.item.${item.seq}.void`, message: 'Why is the document void?', parse: requiredText('The reason') });
+      const reason = await a.text({
+        id: `record.item.${item.seq}.void`,
+        message: 'Why is the document void?',
+        ...(previous?.void ? { default: previous.void.reason, editable: true } : {}),
+        parse: requiredText('The reason'),
+      });
       return voidItem(s, item, replaces, reason);
     }
     if (result === 'conforms') {
       out.attributes[attr.id] = { result: 'conforms' };
       continue;
     }
-    out.attributes[attr.id] = await askDeviation(s, id);
+    const before = previous?.attributes[attr.id];
+    out.attributes[attr.id] = await askDeviation(s, id, before?.result === 'deviation' ? before : undefined);
   }
   return out;
 }
 
-async function askDeviation(s: Session, id: string): Promise<AttributeResult> {
+async function askDeviation(s: Session, id: string, before?: Extract<AttributeResult, { result: 'deviation' }>): Promise<AttributeResult> {
   const a = s.asker;
-  const found = await a.text({ id: `${id}.found`, message: 'What was found?', parse: requiredText('What was found') });
+  const found = await a.text({
+    id: `${id}.found`,
+    message: 'What was found?',
+    ...(before ? { default: before.found, editable: true } : {}),
+    parse: requiredText('What was found'),
+  });
   const cause = await a.select({
     id: `${id}.cause`,
     message: 'Cause',
     choices: CAUSES.map((c) => ({ value: c, name: CAUSE_LABELS[c] })),
+    ...(before ? { default: before.cause } : {}),
   });
   const causeDetail =
     cause === 'other'
-      ? await a.text({ id: `${id}.causeDetail`, message: 'Describe the cause', parse: requiredText('The cause') })
+      ? await a.text({
+          id: `${id}.causeDetail`,
+          message: 'Describe the cause',
+          ...(before?.causeDetail ? { default: before.causeDetail, editable: true } : {}),
+          parse: requiredText('The cause'),
+        })
       : undefined;
   const intentional = await a.select({
     id: `${id}.intent`,
     message: 'Does it look intentional?',
-    choices: INTENT.map((v) => ({ value: v, name: v === 'no' ? 'No' : v === 'suspected' ? 'Suspected' : 'Yes' })),
-    default: 'no',
+    choices: INTENT.map((v) => ({ value: v, name: INTENT_LABELS[v] })),
+    default: before?.intentional ?? 'no',
   });
   const pattern = await a.select({
     id: `${id}.pattern`,
     message: 'Isolated or systemic?',
-    choices: PATTERNS.map((v) => ({ value: v, name: v === 'isolated' ? 'Isolated' : v === 'systemic' ? 'Systemic (likely to recur)' : 'Unclear' })),
+    choices: PATTERNS.map((v) => ({ value: v, name: v === 'systemic' ? 'Systemic (likely to recur)' : PATTERN_LABELS[v] })),
+    ...(before ? { default: before.pattern } : {}),
   });
   return { result: 'deviation', found, cause, ...(causeDetail ? { causeDetail } : {}), intentional, pattern };
 }
@@ -306,12 +257,7 @@ async function recordTyped(s: Session): Promise<'done'> {
 /** Summary of what is recorded (per attribute: tested, deviations; voids). */
 export function recordSummary(wp: Workpaper): string[] {
   const results = wp.results?.items ?? [];
-  const tested = results.filter((r) => !r.void && Object.keys(r.attributes).length > 0);
-  const rows = (wp.attributes ?? []).map((a) => {
-    const n = tested.filter((r) => r.attributes[a.id]).length;
-    const k = tested.filter((r) => r.attributes[a.id]?.result === 'deviation').length;
-    return [a.id, int(n), int(k)];
-  });
+  const rows = countResults(wp).map((c) => [c.attributeId, int(c.sampleSize), int(c.deviations)]);
   const voids = results.filter((r) => r.void);
   return [
     ...table(['Attribute', 'Tested', 'Deviations'], rows),
@@ -368,7 +314,8 @@ export async function changeResults(s: Session): Promise<'done' | 'stopped'> {
     if (pick === '') return 'done';
     const wl = worklist(s.wp);
     const entry = wl.items.find((x) => x.item.key === pick)!;
-    const r = await askItem(s, entry.item, entry.replaces, `${wl.items.indexOf(entry) + 1} of ${wl.items.length}`);
+    const previous = s.wp.results?.items.find((x) => x.key === pick);
+    const r = await askItem(s, entry.item, entry.replaces, `${wl.items.indexOf(entry) + 1} of ${wl.items.length}`, previous);
     await storeResult(s, r, 'interview');
     if (!recordingComplete(s.wp)) {
       const got = await runRecordStep(s);

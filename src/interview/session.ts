@@ -9,14 +9,15 @@ import { FileSystemError, TolrateInputError, WorkpaperChangedError } from '../er
 import { fsOps } from '../io/fs.js';
 import { visible } from '../io/text.js';
 import { acquireLock, type HeldLock } from '../io/lock.js';
-import { readRegularFile } from '../io/read.js';
+import { readRegularText } from '../io/read.js';
 import { removeTempFiles, resolveTarget, staleTempFiles } from '../io/write.js';
 import { loadWorkpaperText, newWorkpaper, saveWorkpaper, WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import { verifyLog } from '../workpaper/log.js';
 import type { Workpaper } from '../workpaper/schema.js';
 import { isStop, type Asker } from './asker.js';
 import { requiredText } from './parse.js';
-import { setOpenWorkpaper } from '../cli/stopped.js';
+import { afterOutsideEdit } from '../control-test/index.js';
+import { RememberingAsker } from './remembering.js';
 
 export interface SessionOptions {
   asker: Asker;
@@ -41,6 +42,8 @@ export interface SessionOptions {
   loadedText?: string;
   /** When a save fails: ask what to do (retry, a copy elsewhere, stop), or throw at once (the demo). */
   onSaveFailure?: 'ask' | 'throw';
+  /** How tolrate was started, for the commands the interview prints (default `tolrate`). */
+  invocation?: string;
 }
 
 function sha256(data: string | Uint8Array): string {
@@ -65,20 +68,24 @@ export class Session {
   readonly policyPath: string | undefined;
   readonly color: boolean;
   readonly cwd: string;
+  readonly invocation: string;
+  /** The step being asked, for keeping its answers if the user stops. */
+  currentStep: string | undefined;
+  /** The answerer, remembering the answers given since the last save (kept if the user stops). */
+  private readonly remembering: RememberingAsker;
   private pendingReasons: string[] = [];
   private editReasonAsked = false;
   private lock: HeldLock | undefined;
   /** SHA-256 of the file as this session last read or wrote it; undefined: no file expected. */
   private diskHash: string | undefined;
   private readonly onSaveFailure: 'ask' | 'throw';
-  /** Whether anything of this session is on disk (for the message when it is stopped). */
-  private saved: boolean;
 
   constructor(o: SessionOptions) {
     this.wp = o.wp;
     this.path = o.path;
     this.dir = dirname(o.path);
-    this.asker = o.asker;
+    this.remembering = new RememberingAsker(o.asker, o.wp.unfinishedStep?.answers ?? {});
+    this.asker = this.remembering;
     this.out = o.out;
     this.now = o.now ?? (() => new Date());
     this.policyPath = o.policyPath;
@@ -87,7 +94,45 @@ export class Session {
     this.lock = o.lock;
     this.diskHash = o.loadedText !== undefined ? sha256(o.loadedText) : undefined;
     this.onSaveFailure = o.onSaveFailure ?? 'ask';
-    this.saved = o.loadedText !== undefined;
+    this.invocation = o.invocation ?? 'tolrate';
+  }
+
+  /**
+   * True once the workpaper file holds something (the first answered step is saved). A save
+   * that fails leaves the log as it was, so this stays false until a save has reached the disk.
+   */
+  get saved(): boolean {
+    return this.wp.log.length > 0;
+  }
+
+  /** `tolrate record FILE`, as the user started tolrate. */
+  command(sub: string, file: string): string {
+    return `${this.invocation} ${sub}${file ? ` ${/\s/.test(file) ? `"${file}"` : file}` : ''}`.replace(/\s+$/, '');
+  }
+
+  /**
+   * The user stopped in the middle of a step: keep the answers given since the last save in the
+   * workpaper, so that they are offered as defaults when the step is asked again. Returns true
+   * when something was kept. Like every save it first checks the file on disk, and a failure
+   * keeps nothing (the stop goes on).
+   */
+  keepUnfinished(step: string): boolean {
+    const answers = this.remembering.given();
+    if (!this.saved || Object.keys(answers).length === 0) return false;
+    try {
+      this.wp = saveWorkpaper(this.path, { ...this.wp, unfinishedStep: { step, answers } }, {
+        by: this.by,
+        step: `${step}.stopped`,
+        at: this.now(),
+        beforeWrite: () => this.checkDisk(this.path, this.diskHash),
+        afterWrite: (text) => {
+          this.diskHash = sha256(text);
+        },
+      });
+      return true;
+    } catch {
+      return false;
+    }
   }
 
   /** Give up the lock on the file (the end of the session). */
@@ -106,7 +151,8 @@ export class Session {
   private checkDisk(path: string, expected: string | undefined): void {
     let now: string | undefined;
     try {
-      now = sha256(readRegularFile(resolveTarget(path), 'The workpaper'));
+      // As the loader reads it (UTF-8, without a byte order mark), so the two compare.
+      now = sha256(readRegularText(resolveTarget(path), 'The workpaper'));
     } catch (e) {
       if (!(e instanceof FileSystemError && e.errno === 'ENOENT')) throw e;
       now = undefined;
@@ -157,8 +203,10 @@ export class Session {
     for (;;) {
       const reason = this.pendingReasons.length > 0 ? this.pendingReasons.join(' ') : undefined;
       const before = this.wp.log.length;
+      // What was asked until now is saved: answers of an earlier stopped step are no longer needed.
+      const { unfinishedStep: _u, ...current } = this.wp;
       try {
-        this.wp = saveWorkpaper(this.path, this.wp, {
+        this.wp = saveWorkpaper(this.path, current as Workpaper, {
           by,
           step,
           at: this.now(),
@@ -166,7 +214,6 @@ export class Session {
           beforeWrite: () => this.checkDisk(this.path, this.diskHash),
           afterWrite: (text) => {
             this.diskHash = sha256(text);
-            this.saved = true;
           },
         });
       } catch (e) {
@@ -174,7 +221,7 @@ export class Session {
         if (await this.afterFailedSave(e, step, by)) return;
         continue;
       }
-      if (this.saved) setOpenWorkpaper(this.path);
+      this.remembering.forget();
       if (this.wp.log.length > before) this.pendingReasons = [];
       return;
     }
@@ -185,7 +232,7 @@ export class Session {
     const f = this.shown();
     const q = /\s/.test(f) ? `"${f}"` : f;
     return this.saved
-      ? `\nStopped. The last answer was NOT saved (${why}). ${f} holds the steps saved before it.\nContinue with: tolrate ${q}\n`
+      ? `\nStopped. The last answer was NOT saved (${why}). ${f} holds the steps saved before it.\nContinue with: ${this.invocation} ${q}\n`
       : `\nStopped. Nothing was saved (${why}): ${f} was never written.\n`;
   }
 
@@ -203,13 +250,13 @@ export class Session {
       if (what === 'retry') return false;
       if (what === 'copy') return await this.saveCopy(step, by);
     } catch (x) {
-      if (isStop(x)) (x as { tolrateStopNote?: string }).tolrateStopNote = this.stopNote(why);
+      if (isStop(x)) (x as { stopNote?: string }).stopNote = this.stopNote(why);
       throw x;
     }
     const f = this.shown();
     throw new NotSavedError(
       this.saved ? `Stopped: the last answer was not saved (${why}). ${f} holds the steps saved before it.` : `Stopped: nothing was saved (${why}); ${f} was never written.`,
-      this.saved ? [`Continue with: tolrate ${f}`] : [],
+      this.saved ? [`Continue with: ${this.invocation} ${f}`] : [],
     );
   }
 
@@ -242,7 +289,8 @@ export class Session {
       lock = acquireLock(to, this.now());
       const reason = this.pendingReasons.length > 0 ? this.pendingReasons.join(' ') : undefined;
       let text = '';
-      const wp = saveWorkpaper(to, this.wp, {
+      const { unfinishedStep: _u, ...current } = this.wp;
+      const wp = saveWorkpaper(to, current as Workpaper, {
         by,
         step,
         at: this.now(),
@@ -260,14 +308,13 @@ export class Session {
         this.wp = wp;
         this.path = to;
         this.diskHash = sha256(text);
-        this.saved = true;
-        setOpenWorkpaper(to);
+        this.remembering.forget();
         this.print(`Saved to ${this.shown(to)}. This session goes on in it; ${old} is left as it was.`);
         return true;
       }
       lock.release();
       throw new NotSavedError(`A copy with every answer so far is saved as ${to}; ${old} is left as it was.`, [
-        `Move the copy beside ${old} (the paths inside it are relative to the workpaper's folder), then continue with: tolrate ${basename(to)}`,
+        `Move the copy beside ${old} (the paths inside it are relative to the workpaper's folder), then continue with: ${this.invocation} ${basename(to)}`,
       ]);
     } catch (x) {
       if (x instanceof NotSavedError) throw x;
@@ -308,9 +355,10 @@ export class Session {
  * file was changed outside tolrate show what changed and ask why (the reason is saved at once,
  * with those changes, in a log entry of its own). Returns undefined when the user does not go on.
  */
-export async function openSession(o: Omit<SessionOptions, 'wp' | 'loadedText'>): Promise<Session | undefined> {
+export async function openSession(o: Omit<SessionOptions, 'wp' | 'loadedText'> & { hold?: (s: Session) => Session }): Promise<Session | undefined> {
   const { wp, text } = loadWorkpaperText(o.path);
   const s = new Session({ ...o, wp, loadedText: text });
+  o.hold?.(s);
   await offerTempCleanup(s);
   const problems = verifyLog(wp);
   if (problems.length === 0) return s;
@@ -330,6 +378,14 @@ export async function openSession(o: Omit<SessionOptions, 'wp' | 'loadedText'>):
     parse: requiredText('The reason'),
   });
   s.addReason(`Changes made outside tolrate accepted: ${reason}`);
+  // The record as it now is decides: evaluate again, clear the sign-offs, keep a conclusion only
+  // while the new figures bear it out.
+  const after = afterOutsideEdit(s.wp, s.now());
+  s.wp = after.wp;
+  if (after.notes.length > 0) {
+    s.print(...after.notes.map((n) => `  Because of the change: ${n}.`));
+    s.addReason(`Because of the change: ${after.notes.join('; ')}.`);
+  }
   await s.save('accept-outside-changes');
   return s;
 }

@@ -23,7 +23,8 @@ import { withoutQuotes } from '../io/messages.js';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
 import { KEY_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
-import { CAUSES, CAUSE_LABELS, INTENT, PATTERNS, type Attribute, type AttributeResult, type Cause, type SelectedItem } from '../workpaper/schema.js';
+import { CAUSE_LABELS } from '../control-test/index.js';
+import { CAUSES, INTENT, PATTERNS, type Attribute, type AttributeResult, type Cause, type SelectedItem } from '../workpaper/schema.js';
 
 export { SEQ_COLUMN, KEY_COLUMN };
 export const VOID_COLUMN = 'Void reason';

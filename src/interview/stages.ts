@@ -8,7 +8,7 @@ import type { CommandContext } from '../commands/types.js';
 import { TolrateInputError } from '../errors.js';
 import { loadWorkpaper } from '../workpaper/file.js';
 import { int } from '../util/format.js';
-import type { Asker } from './asker.js';
+import { InterviewStopped, isStop, type Asker } from './asker.js';
 import { sessionFor, workpaperPath, type InterviewOptions } from './command.js';
 import { chooseRevisit, firstOpen, isAnswered, PLAN_STEPS, runOpenSteps, runStep, STEP_LABELS, STEPS, statusLines, type StepName } from './flow.js';
 import { loadPolicy } from './policy.js';
@@ -26,7 +26,33 @@ function shown(ctx: CommandContext, path: string): string {
   return r && !r.startsWith('..') ? r : path;
 }
 
-async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean): Promise<Session | number | undefined> {
+/**
+ * Run an interview so that a stop (Ctrl-C) names the workpaper once it holds something, and
+ * keeps the answers given in the step in progress (offered again when it is asked again).
+ * However it ends, the session gives back the workpaper's lock.
+ */
+async function guarded(run: (hold: (s: Session) => Session) => Promise<number>): Promise<number> {
+  let held: Session | undefined;
+  try {
+    return await run((s) => (held = s));
+  } catch (e) {
+    if (!isStop(e)) throw e;
+    const stop = new InterviewStopped((e as Error).message);
+    const note = (e as InterviewStopped).stopNote;
+    if (note !== undefined) {
+      // Stopped while a failed save was being handled: the last answer is not on disk, say so.
+      stop.stopNote = note;
+    } else if (held?.saved) {
+      stop.keptUnfinished = held.currentStep !== undefined && held.keepUnfinished(held.currentStep);
+      stop.workpaper = held.path;
+    }
+    throw stop;
+  } finally {
+    held?.release();
+  }
+}
+
+async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean, hold: (s: Session) => Session): Promise<Session | number | undefined> {
   if (o.policy) loadPolicy(resolve(ctx.cwd, o.policy));
   let file = o.file;
   if (file === undefined) {
@@ -42,7 +68,7 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     });
   }
   const path = workpaperPath(ctx.cwd, file);
-  const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist });
+  const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
   if (s && 'readOnly' in s) {
     // Another session has it open: show where the test stands, save nothing.
     const wp = loadWorkpaper(path);
@@ -65,24 +91,24 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
 function next(ctx: CommandContext, s: Session): void {
   const st = firstOpen(s.wp);
   const f = shown(ctx, s.path);
-  if (st === undefined) s.print('', `The test is complete and signed off. Write the memo with: tolrate memo ${f}`);
+  if (st === undefined) s.print('', `The test is complete and signed off. Write the memo with: ${s.command('memo', f)}`);
   else if (st === 'record') {
     const sheet = s.wp.selection?.fieldworkSheet;
     s.print(
       '',
       `Planning is complete.${sheet ? ` The fieldwork sheet is ${sheet} (beside the workpaper).` : ''}`,
-      `Test the items, then record the results with: tolrate record ${f}`,
+      `Test the items, then record the results with: ${s.command('record', f)}`,
     );
-  } else if (st === 'conclude' || st === 'signoff') s.print('', `Next: tolrate conclude ${f}`);
-  else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: tolrate plan ${f}`);
+  } else if (st === 'conclude' || st === 'signoff') s.print('', `Next: ${s.command('conclude', f)}`);
+  else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: ${s.command('plan', f)}`);
 }
 
 /** `tolrate plan [FILE]`. */
 export async function planInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, false);
-  if (typeof s === 'number') return s;
-  if (!s) return 1;
-  try {
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, false, hold);
+    if (typeof s === 'number') return s;
+    if (!s) return 1;
     const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
     await runOpenSteps(s, PLAN_STEPS);
     if (wasComplete) {
@@ -96,37 +122,33 @@ export async function planInterview(ctx: CommandContext, asker: Asker, o: StageO
     }
     next(ctx, s);
     return 0;
-  } finally {
-    s.release();
-  }
+  });
 }
 
 /** `tolrate record FILE`. */
 export async function recordInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, true);
-  if (typeof s === 'number') return s;
-  if (!s) return 1;
-  try {
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, true, hold);
+    if (typeof s === 'number') return s;
+    if (!s) return 1;
     const open1 = firstOpen(s.wp, PLAN_STEPS);
     if (open1) {
       throw new TolrateInputError(`The plan is not finished (next: ${STEP_LABELS[open1]}), so there is nothing to record yet.`, 'PLAN_INCOMPLETE', [
-        `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
+        `Continue planning with: ${s.command('plan', shown(ctx, s.path))}`,
       ]);
     }
     await runStep(s, 'record');
     next(ctx, s);
     return 0;
-  } finally {
-    s.release();
-  }
+  });
 }
 
 /** `tolrate conclude FILE`. */
 export async function concludeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, true);
-  if (typeof s === 'number') return s;
-  if (!s) return 1;
-  try {
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, true, hold);
+    if (typeof s === 'number') return s;
+    if (!s) return 1;
     const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
     if (open1) {
       const detail =
@@ -137,7 +159,7 @@ export async function concludeInterview(ctx: CommandContext, asker: Asker, o: St
             })()
           : `next: ${STEP_LABELS[open1]}`;
       throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
-        open1 === 'record' ? `Record the results with: tolrate record ${shown(ctx, s.path)}` : `Continue planning with: tolrate plan ${shown(ctx, s.path)}`,
+        open1 === 'record' ? `Record the results with: ${s.command('record', shown(ctx, s.path))}` : `Continue planning with: ${s.command('plan', shown(ctx, s.path))}`,
       ]);
     }
     if (s.wp.conclusion) {
@@ -151,17 +173,15 @@ export async function concludeInterview(ctx: CommandContext, asker: Asker, o: St
     await runOpenSteps(s, ['conclude', 'signoff']);
     next(ctx, s);
     return 0;
-  } finally {
-    s.release();
-  }
+  });
 }
 
 /** The start screen's "new test" and "continue": the whole test from the first open step. */
 export async function wholeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
-  const s = await open(ctx, asker, o, false);
-  if (typeof s === 'number') return s;
-  if (!s) return 1;
-  try {
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, false, hold);
+    if (typeof s === 'number') return s;
+    if (!s) return 1;
     const wasDone = firstOpen(s.wp) === undefined;
     await runOpenSteps(s, STEPS);
     if (wasDone) {
@@ -174,7 +194,5 @@ export async function wholeInterview(ctx: CommandContext, asker: Asker, o: Stage
     }
     next(ctx, s);
     return 0;
-  } finally {
-    s.release();
-  }
+  });
 }

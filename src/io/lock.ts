@@ -115,9 +115,17 @@ function removeHandlers(): void {
   for (const s of SIGNALS) process.off(s, onSignal);
 }
 
-/** Release every lock this process holds (the CLI calls it when a command ends, however it ends). */
-export function releaseAllLocks(): void {
-  releaseAll();
+/** The locks this process holds now (to release, later, only those taken since). */
+export function heldLocks(): ReadonlySet<HeldLock> {
+  return new Set(held);
+}
+
+/**
+ * Release every lock taken since `before` (all of them when not given). The CLI calls it when a
+ * command ends, however it ends.
+ */
+export function releaseAllLocks(before: ReadonlySet<HeldLock> = new Set()): void {
+  for (const l of [...held]) if (!before.has(l)) l.release();
 }
 
 /**

@@ -8,12 +8,15 @@
  * and the memo is marked DRAFT.
  */
 import { existsSync, statSync } from 'node:fs';
-import { basename, dirname, join, resolve } from 'node:path';
+import { createHash } from 'node:crypto';
+import { basename, dirname, isAbsolute, join, relative, resolve } from 'node:path';
+import { stateHash } from '../workpaper/log.js';
 import { FileInputError } from '../errors.js';
+import { saveWorkpaper } from '../workpaper/file.js';
 import { writeFileSafely } from '../io/write.js';
 import { xmlSafeDeep, type Removal } from '../io/text.js';
 import { zipXmlProblems } from '../io/xml.js';
-import type { Workpaper } from '../workpaper/schema.js';
+import type { MemoRecord, Workpaper } from '../workpaper/schema.js';
 import { buildModel, type MemoModel } from './model.js';
 import { buildDocument, packDocument } from './render.js';
 import { loadTemplate, type MemoTemplate } from './template.js';
@@ -29,6 +32,8 @@ export interface RenderMemoOptions {
   now?: Date;
   /** Draw the picture of the rates (default true). */
   chart?: boolean;
+  /** Further reasons the memo is not final, listed under its DRAFT banner. */
+  extraNotFinal?: string[];
 }
 
 export interface WriteMemoOptions {
@@ -40,6 +45,7 @@ export interface WriteMemoOptions {
   /** An already loaded template (takes precedence over templateDir). */
   template?: MemoTemplate;
   now?: Date;
+  extraNotFinal?: string[];
 }
 
 /** The default memo path for a workpaper file: `x/NAME.tolrate.json` -> `x/NAME.memo.docx`. */
@@ -51,7 +57,15 @@ export function defaultMemoPath(workpaperPath: string): string {
 /** The memo's content, before layout (for callers that want to know what is missing). */
 export async function memoModel(workpaper: Workpaper, opts: RenderMemoOptions = {}): Promise<MemoModel> {
   const template = opts.template ?? (await loadTemplate(opts.templateDir));
-  return buildModel(workpaper, template, { ...(opts.workpaperPath ? { workpaperPath: opts.workpaperPath } : {}), ...(opts.now ? { now: opts.now } : {}) });
+  return buildModel(workpaper, template, modelOptions(opts));
+}
+
+function modelOptions(opts: RenderMemoOptions) {
+  return {
+    ...(opts.workpaperPath ? { workpaperPath: opts.workpaperPath } : {}),
+    ...(opts.now ? { now: opts.now } : {}),
+    ...(opts.extraNotFinal ? { extraNotFinal: opts.extraNotFinal } : {}),
+  };
 }
 
 /**
@@ -84,7 +98,7 @@ export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions =
   const loaded = opts.template ?? (await loadTemplate(opts.templateDir));
   const clean = cleanForMemo(workpaper, loaded);
   const template = clean.template;
-  const model = buildModel(clean.workpaper, template, { ...(opts.workpaperPath ? { workpaperPath: opts.workpaperPath } : {}), ...(opts.now ? { now: opts.now } : {}) });
+  const model = buildModel(clean.workpaper, template, modelOptions(opts));
   if (clean.note) model.cleanedNote = clean.note;
   const doc = await buildDocument(model, template, { chart: opts.chart ?? true });
   const buf = await packDocument(doc);
@@ -97,7 +111,7 @@ export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions =
 }
 
 /** Render the memo and write it (atomically) to `out` or beside the workpaper. */
-export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string; bytes: number }> {
+export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string; bytes: number; sha256: string }> {
   const path = resolve(opts.out ?? defaultMemoPath(opts.workpaperPath));
   if (!/\.docx$/i.test(path)) {
     throw new FileInputError(path, `The memo must be written to a .docx file; ${path} does not end in .docx.`);
@@ -114,12 +128,52 @@ export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string;
     ...(opts.templateDir ? { templateDir: opts.templateDir } : {}),
     ...(opts.template ? { template: opts.template } : {}),
     ...(opts.now ? { now: opts.now } : {}),
+    ...(opts.extraNotFinal ? { extraNotFinal: opts.extraNotFinal } : {}),
   });
   const written = writeFileSafely(path, buf, { what: 'the memo' });
-  return { path: written.path, bytes: buf.length };
+  return { path: written.path, bytes: buf.length, sha256: createHash('sha256').update(buf).digest('hex') };
+}
+
+/**
+ * The record of a memo written from `workpaper` (as it was when written: the state its figures
+ * show), to be kept in the workpaper so that a reviewer can tell which memo belongs to which state.
+ */
+export function memoRecord(workpaper: Workpaper, workpaperPath: string, written: { path: string; sha256: string }, o: { at: Date; final: boolean; templateDir?: string }): MemoRecord {
+  const last = workpaper.log[workpaper.log.length - 1];
+  const base = dirname(resolve(workpaperPath));
+  const rel = relative(base, written.path);
+  const tpl = o.templateDir ? relative(base, resolve(o.templateDir)) : undefined;
+  return {
+    sha256: written.sha256,
+    path: rel && !rel.startsWith('..') && !isAbsolute(rel) ? rel.split('\\').join('/') : written.path,
+    at: o.at.toISOString(),
+    stateHash: stateHash(workpaper),
+    logSeq: workpaper.log.length,
+    logHash: last?.hash ?? '',
+    final: o.final,
+    ...(tpl !== undefined ? { template: tpl.split('\\').join('/') || '.' } : {}),
+  };
 }
 
 export { loadTemplate, TemplateError, PLACEHOLDERS, ATTRIBUTE_PLACEHOLDERS, ATTRIBUTE_SCOPED_KEYS, DEFAULT_TEMPLATE_DIR } from './template.js';
 export type { MemoTemplate, TemplateProblem } from './template.js';
 export type { MemoModel, Outcome } from './model.js';
 export { chartSvg } from './chart.js';
+/** Keep the record of a written memo in the workpaper (one save, one change-log entry). */
+export function recordMemo(
+  workpaper: Workpaper,
+  workpaperPath: string,
+  written: { path: string; sha256: string },
+  o: { at: Date; final: boolean; templateDir?: string; beforeWrite?: () => void },
+): { record: MemoRecord; saved: Workpaper } {
+  const record = memoRecord(workpaper, workpaperPath, written, o);
+  const saved = saveWorkpaper(workpaperPath, { ...workpaper, memos: [...(workpaper.memos ?? []), record] }, {
+    by: workpaper.engagement?.preparer ?? 'tolrate',
+    step: 'memo',
+    at: o.at,
+    ...(o.beforeWrite ? { beforeWrite: o.beforeWrite } : {}),
+  });
+  return { record, saved };
+}
+
+export { readMemoBlocks, compareMemoBlocks, type MemoBlock, type MemoDifference } from './read.js';

@@ -10,12 +10,15 @@ import { int, pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js
 import type {
   Attribute,
   AttributeEvaluation,
-  AttributeResult,
+  Evaluation,
   FollowUp,
   SelectedItem,
   Workpaper,
 } from '../workpaper/schema.js';
 import type { MemoTemplate } from './template.js';
+import { countResults, evidenceSupports, ratesSupport, testedResults, testState } from '../control-test/index.js';
+import { stateHash } from '../workpaper/log.js';
+import { tolerableDeviations } from '../stats/index.js';
 
 export type Outcome = 'supported' | 'not-supported' | 'draft';
 
@@ -67,7 +70,14 @@ export interface SpareView {
 
 export interface MemoModel {
   wp: Workpaper;
+  /** Not a final memo: something is open or does not agree (see notFinal). Marked DRAFT on every page. */
   draft: boolean;
+  /** Every reason the memo is not final (steps open, no sign-off, the file changed outside tolrate, figures that do not follow from the results). */
+  notFinal: string[];
+  /** The test is evaluated and concluded (its conclusion sections are filled). */
+  concluded: boolean;
+  /** The evaluation shown: the recorded one, or the one the recorded results give when they differ. */
+  evaluation: Evaluation | undefined;
   outcome: Outcome;
   nonStatistical: boolean;
   haphazard: boolean;
@@ -104,11 +114,6 @@ function signedAmount(d: string | undefined): string | undefined {
   return /^-/.test(t) || /^0+(\.0+)?$/.test(t) ? f : `+${f}`;
 }
 
-/** ⌈x⌉ without binary noise: 0.06 × 1000 = 60.000000000000007 is 60. */
-export function ceilClean(x: number): number {
-  return Math.ceil(Number(x.toPrecision(12)));
-}
-
 /** 'random-v1: generator ... order' -> { id: 'random-v1', description: 'generator ... order' }. */
 export function algorithmParts(algorithm: string): { id: string; description: string | undefined } {
   const i = algorithm.indexOf(':');
@@ -123,6 +128,8 @@ function dateTime(iso: string): string {
 
 export interface ModelOptions {
   workpaperPath?: string;
+  /** Further reasons the memo is not final (e.g. it is written on request from a file changed outside tolrate). */
+  extraNotFinal?: string[];
   now?: Date;
   toolVersion?: string;
 }
@@ -138,8 +145,14 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   const nonStatistical = a?.kind === 'non-statistical';
   const haphazard = s?.method === 'haphazard';
   const illustrative = nonStatistical || haphazard;
-  const draft = !wp.evaluation || !wp.conclusion;
-  const outcome: Outcome = draft ? 'draft' : wp.conclusion!.control.supportsReliance ? 'supported' : 'not-supported';
+  const state = testState(wp);
+  const notFinal = [...state.notFinal, ...(opts.extraNotFinal ?? [])];
+  const draft = notFinal.length > 0;
+  // The memo never shows figures the recorded results do not give: when the recorded evaluation
+  // differs from them, the figures shown are the ones the results give (and the memo is a draft).
+  const evaluation = state.evaluation.length > 0 && state.fresh ? state.fresh : wp.evaluation;
+  const concluded = evaluation !== undefined && wp.conclusion !== undefined;
+  const outcome: Outcome = !concluded ? 'draft' : wp.conclusion!.control.supportsReliance ? 'supported' : 'not-supported';
   const missing: string[] = [];
   for (const [k, v] of [
     ['engagement', e], ['control', c], ['attributes', wp.attributes], ['population', p], ['approach', a],
@@ -167,7 +180,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
 
   // Results, counted from the record (voided items are not tested).
   const resultItems = wp.results?.items ?? [];
-  const tested = resultItems.filter((i) => !i.void);
+  const tested = testedResults(wp);
+  const counts = countResults(wp);
   const bySeq = new Map(resultItems.map((i) => [i.seq, i]));
 
   const deviations: DeviationView[] = [];
@@ -202,9 +216,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   /** Does the recorded evaluation, with the recorded causes, leave reliance unsupported? */
   const evidenceAgainst = (attrId: string, ev: AttributeEvaluation | undefined): boolean => {
     if (!ev) return false;
-    const byRates = ev.illustrative ? ev.deviations === 0 : ev.supportedByRates;
-    const escalated = deviations.some((d) => d.attributeId === attrId && (d.intentionalCode !== 'no' || d.patternCode === 'systemic'));
-    return !byRates || escalated;
+    const devs = deviations.filter((d) => d.attributeId === attrId).map((d) => ({ intentional: d.intentionalCode, pattern: d.patternCode }));
+    return !evidenceSupports(ev, devs);
   };
 
   const decisionFor = (attrId: string, ev: AttributeEvaluation | undefined, con: { supportsReliance: boolean } | undefined): string => {
@@ -212,22 +225,17 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
       if (con.supportsReliance) return evidenceAgainst(attrId, ev) ? L.decisionAgainstEvidence : L.decisionSupported;
       return ev && !ev.illustrative && ev.supportedByRates ? L.decisionOverridden : L.decisionNotSupported;
     }
-    if (ev) return (ev.illustrative ? ev.deviations === 0 : ev.supportedByRates) ? L.decisionSupported : L.decisionNotSupported;
+    if (ev) return ratesSupport(ev) ? L.decisionSupported : L.decisionNotSupported;
     return L.notYetEvaluated;
   };
 
   const attributes: AttributeView[] = attrs.map((attr) => {
     const tdr = attr.tolerableRate ?? a?.tolerableRate;
-    const ev = wp.evaluation?.attributes.find((x) => x.attributeId === attr.id);
+    const ev = evaluation?.attributes.find((x) => x.attributeId === attr.id);
     const con = wp.conclusion?.attributes.find((x) => x.attributeId === attr.id);
-    let n = 0;
-    let k = 0;
-    for (const it of tested) {
-      const r: AttributeResult | undefined = it.attributes[attr.id];
-      if (!r) continue;
-      n++;
-      if (r.result === 'deviation') k++;
-    }
+    const count = counts.find((x) => x.attributeId === attr.id);
+    const n = count?.sampleSize ?? 0;
+    const k = count?.deviations ?? 0;
     const decision = decisionFor(attr.id, ev, con);
     const view: AttributeView = {
       attribute: attr,
@@ -318,7 +326,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     firstKey: p?.fingerprint.firstKey,
     lastKey: p?.fingerprint.lastKey,
     populationSize: populationSize !== undefined ? int(populationSize) : undefined,
-    populationDeviations: populationSize !== undefined && a ? int(ceilClean(a.tolerableRate * populationSize)) : undefined,
+    populationDeviations: populationSize !== undefined && a ? int(tolerableDeviations(populationSize, a.tolerableRate)) : undefined,
     approachKind: a ? L.approaches[a.kind] : undefined,
     confidence: confidence !== undefined ? pctPlain(confidence) : undefined,
     risk,
@@ -364,10 +372,11 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     workpaperId: wp.id,
     logEntries: int(wp.log.length),
     lastLogHash: last?.hash,
+    contentHash: stateHash(wp),
   };
 
   const followUps = (wp.conclusion?.followUps ?? []).map((f) => ({ ...f, kindLabel: L.followUpKinds[f.kind] }));
-  return { wp, draft, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing };
+  return { wp, draft, notFinal, concluded, evaluation, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing };
 }
 
 /** Exact figures for the appendix, to 4 decimal places of a percent. */

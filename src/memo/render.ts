@@ -266,23 +266,30 @@ export interface RenderOptions {
   chart?: boolean;
 }
 
-/** Build the memo document (not yet packed). */
-export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOptions = {}): Promise<Document> {
-  const W = t.memo;
-  const L = W.labels;
-  const H = W.headings;
-  const T = W.text;
-  const O = t.outcomes;
-  const wp = m.wp;
-  const values = { ...m.values };
-  const b = new Builder(t, m, values);
-  const fs = W.settings.fontSize;
+/** What every section of the memo is written with. */
+interface Ctx {
+  b: Builder;
+  m: MemoModel;
+  t: MemoTemplate;
+  W: MemoTemplate['memo'];
+  L: MemoTemplate['memo']['labels'];
+  H: MemoTemplate['memo']['headings'];
+  T: MemoTemplate['memo']['text'];
+  O: MemoTemplate['outcomes'];
+  wp: MemoModel['wp'];
+  values: Record<string, string | undefined>;
+  fs: number;
+  a: MemoModel['wp']['approach'];
+  pop: MemoModel['wp']['population'];
+  s: MemoModel['wp']['selection'];
+  con: MemoModel['wp']['conclusion'];
+  /** Every attribute has its evaluation. */
+  evaluated: boolean;
+  o: RenderOptions;
+}
 
-  // The follow-up section's number, for texts that point to it: count the numbered sections before it.
-  const followUpsNumber = 10;
-  values.followUpsSection = W.settings.numberHeadings ? String(followUpsNumber) : H.followUps;
-
-  // Title block.
+async function titleBlock(c: Ctx): Promise<void> {
+  const { b, m, W, L, T, O, wp, values } = c;
   b.children.push(new Paragraph({ heading: HeadingLevel.TITLE, children: [new TextRun(b.f(W.title))] }));
   b.p(b.f(W.subtitle), { style: 'Subtitle' });
   if (m.draft) {
@@ -291,6 +298,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
       shading: { fill: 'FCE4D6', type: ShadingType.CLEAR, color: 'auto' },
       border: { top: { style: BorderStyle.SINGLE, size: 6, color: 'C55A11', space: 4 }, bottom: { style: BorderStyle.SINGLE, size: 6, color: 'C55A11', space: 4 } },
     });
+    if (m.notFinal.length > 0) {
+      b.p(b.f(O.draft.reasonsLead), { bold: true, keepNext: true });
+      b.bullets(m.notFinal);
+    }
   }
   const signedLine = (date: string | undefined) => date ?? `${L.date}: ____________  (${L.notSigned})`;
   b.kv([
@@ -304,8 +315,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   ]);
   b.ps(T.intro);
 
-  // 1. Objective and control.
-  b.h1(H.objective);
+}
+
+async function objectiveSection(c: Ctx): Promise<void> {
+  const { b, L, T, wp } = c;
   b.ps(T.objective);
   if (wp.control) {
     const c = wp.control;
@@ -320,8 +333,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     ]);
   } else b.note(L.notRecorded);
 
-  // 2. Attributes.
-  b.h1(H.attributes);
+}
+
+async function attributesSection(c: Ctx): Promise<void> {
+  const { b, m, L, T, wp, a } = c;
   if (wp.attributes) {
     b.ps(T.attributes);
     b.table(
@@ -335,9 +350,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     );
   } else b.note(b.f(T.attributesMissing));
 
-  // 3. Population and completeness.
-  b.h1(H.population);
-  const pop = wp.population;
+}
+
+async function populationSection(c: Ctx): Promise<void> {
+  const { b, L, H, T, values, pop } = c;
   if (pop) {
     b.ps(T.population);
     const src = pop.source;
@@ -378,9 +394,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     }
   } else b.note(b.f(T.populationMissing));
 
-  // 4. Approach and sample size.
-  b.h1(H.approach);
-  const a = wp.approach;
+}
+
+async function approachSection(c: Ctx): Promise<void> {
+  const { b, L, H, T, O, values, a, s } = c;
   if (a) {
     if (a.kind === 'statistical') b.ps(T.approachStatistical);
     else {
@@ -421,9 +438,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     b.ps(T.adopted);
   } else b.note(b.f(T.approachMissing));
 
-  // 5. Selection.
-  b.h1(H.selection);
-  const s = wp.selection;
+}
+
+async function selectionSection(c: Ctx): Promise<void> {
+  const { b, m, L, H, T, O, wp, values, fs, pop, s } = c;
   if (s) {
     b.ps(s.method === 'random' ? T.selectionRandom : s.method === 'systematic' ? T.selectionSystematic : T.selectionHaphazard);
     if (s.method === 'haphazard') b.p(b.f(O.haphazard.selectionNote), { bold: true });
@@ -469,9 +487,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     }
   } else b.note(b.f(T.selectionMissing));
 
-  // 6. Results.
-  b.h1(H.results);
-  const evaluated = m.attributes.length > 0 && m.attributes.every((x) => x.evaluation);
+}
+
+async function resultsSection(c: Ctx): Promise<void> {
+  const { b, m, L, H, T, O, wp, a, evaluated, o } = c;
   if (!wp.results) b.note(b.f(T.resultsMissing));
   else {
     if (!evaluated) b.note(b.f(T.resultsNotEvaluated));
@@ -502,7 +521,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
       ]),
     );
     if (evaluated) {
-      const model = wp.evaluation?.attributes[0]?.model ?? a?.model ?? 'binomial';
+      const model = m.evaluation?.attributes[0]?.model ?? a?.model ?? 'binomial';
       b.ps(model === 'hypergeometric' ? T.limitRuleHypergeometric : model === 'poisson' ? T.limitRulePoisson : T.limitRuleBinomial);
       if (!m.illustrative) b.ps(T.decisionRule);
       if (caveat) b.p(b.f(caveat.resultsNote), { bold: true });
@@ -511,7 +530,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
       // in place of the summary that would claim every attribute passed.
       const against = m.attributes.some((x) => x.againstEvidence);
       if (against) b.ps(T.againstEvidence);
-      else if (!m.draft && !m.illustrative) b.ps(m.outcome === 'supported' ? O.supported.resultsSummary : O['not-supported'].resultsSummary);
+      else if (m.concluded && !m.illustrative) b.ps(m.outcome === 'supported' ? O.supported.resultsSummary : O['not-supported'].resultsSummary);
       for (const x of m.attributes) {
         const ev = x.evaluation!;
         if (!ev.illustrative && !ev.supportedByRates && ev.extension !== null && ev.extension > 0) b.ps(T.extension, x.values);
@@ -556,8 +575,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     }
   }
 
-  // 7. Deviations.
-  b.h1(H.deviations);
+}
+
+async function deviationsSection(c: Ctx): Promise<void> {
+  const { b, m, L, T, wp } = c;
   if (!wp.results) b.note(b.f(T.deviationsMissing));
   else if (m.deviations.length === 0) b.ps(T.deviationsNone);
   else {
@@ -575,9 +596,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     );
   }
 
-  // 8. Qualitative review.
-  b.h1(H.qualitative);
-  const con = wp.conclusion;
+}
+
+async function qualitativeSection(c: Ctx): Promise<void> {
+  const { b, m, L, T, con } = c;
   if (con) {
     b.ps(m.deviations.length > 0 ? T.qualitative : T.deviationsNone);
     b.kv(
@@ -591,9 +613,11 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     );
   } else b.note(b.f(T.qualitativeMissing));
 
-  // 9. Conclusion.
-  b.h1(H.conclusion);
-  if (con && !m.draft) {
+}
+
+async function conclusionSection(c: Ctx): Promise<void> {
+  const { b, m, L, T, O, con } = c;
+  if (con && m.concluded) {
     b.p(b.f(m.outcome === 'supported' ? O.supported.verdict : O['not-supported'].verdict), { bold: true });
     if (m.attributes.some((x) => x.againstEvidence)) b.ps(T.againstEvidence);
     b.p(`**${L.recordedConclusion}:** ${con.control.text}`);
@@ -612,9 +636,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     b.note(b.f(T.conclusionMissing));
   }
 
-  // 10. Follow-up actions.
-  const fuNumber = b.h1(H.followUps);
-  if (fuNumber !== followUpsNumber) throw new Error(`internal: follow-up section is ${fuNumber}, expected ${followUpsNumber}`);
+}
+
+async function followUpsSection(c: Ctx): Promise<void> {
+  const { b, m, L, T, con } = c;
   if (!con) b.note(b.f(T.followUpsMissing));
   else if (m.followUps.length === 0) b.ps(T.followUpsNone);
   else {
@@ -634,8 +659,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     );
   }
 
-  // 11. Severity.
-  b.h1(H.severity);
+}
+
+async function severitySection(c: Ctx): Promise<void> {
+  const { b, m, L, T, con } = c;
   if (con?.severity) {
     b.ps(T.severity);
     b.kv([
@@ -651,18 +678,22 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
         con.severity.answers.map((x) => [x.question, x.answer]),
       );
     }
-  } else if (con && !m.draft && m.outcome === 'supported' && !m.attributes.some((x) => x.againstEvidence)) b.ps(T.severityNotNeeded);
+  } else if (con && m.concluded && m.outcome === 'supported' && !m.attributes.some((x) => x.againstEvidence)) b.ps(T.severityNotNeeded);
   else b.note(b.f(T.severityMissing));
 
-  // 12. Responsibility.
-  b.h1(H.responsibility);
+}
+
+async function responsibilitySection(c: Ctx): Promise<void> {
+  const { b, T } = c;
   b.p(b.f(T.caution), {
     shading: { fill: 'F2F2F2', type: ShadingType.CLEAR, color: 'auto' },
     border: { left: { style: BorderStyle.SINGLE, size: 18, color: ACCENT, space: 6 } },
   });
 
-  // 13. Sign-off.
-  b.h1(H.signoff);
+}
+
+async function signoffSection(c: Ctx): Promise<void> {
+  const { b, L, T, wp, fs } = c;
   b.ps(T.signoff);
   {
     const ws = b.widths([{ w: 1.2 }, { w: 1.9 }, { w: 2.2 }, { w: 1.2 }]);
@@ -709,8 +740,11 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     b.spacer();
   }
 
-  // Appendix A.
-  b.h1(H.appendixItems, { pageBreakBefore: true, numbered: false });
+}
+
+async function appendixItemsSection(c: Ctx): Promise<void> {
+  const { b, m, L, H, T, a, evaluated } = c;
+  b.h2(H.appendixItemsList);
   if (m.items.length === 0) b.note(b.f(T.appendixItemsMissing));
   else {
     b.ps(T.appendixItems);
@@ -805,8 +839,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   b.p(b.f(T.workpaperState), { style: 'MemoNote' });
   if (m.cleanedNote) b.note(m.cleanedNote);
 
-  // Appendix B.
-  b.h1(H.appendixReperform, { pageBreakBefore: true, numbered: false });
+}
+
+async function appendixReperformSection(c: Ctx): Promise<void> {
+  const { b, m, H, T, a } = c;
   b.ps(T.reperform);
   b.h2(H.reperformCommand);
   b.ps(T.reperformCommand);
@@ -827,6 +863,63 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     ].map((x) => b.f(x)),
   );
 
+}
+
+/**
+ * The numbered sections of the memo, in order: a section's number is its place in this list, so
+ * a section added or moved renumbers the rest (and the texts that point to one).
+ */
+const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings']; render: (c: Ctx) => Promise<void> }> = [
+  { heading: 'objective', render: objectiveSection },
+  { heading: 'attributes', render: attributesSection },
+  { heading: 'population', render: populationSection },
+  { heading: 'approach', render: approachSection },
+  { heading: 'selection', render: selectionSection },
+  { heading: 'results', render: resultsSection },
+  { heading: 'deviations', render: deviationsSection },
+  { heading: 'qualitative', render: qualitativeSection },
+  { heading: 'conclusion', render: conclusionSection },
+  { heading: 'followUps', render: followUpsSection },
+  { heading: 'severity', render: severitySection },
+  { heading: 'responsibility', render: responsibilitySection },
+  { heading: 'signoff', render: signoffSection },
+];
+
+/** The appendices, unnumbered, each on a new page. */
+const APPENDICES: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings']; render: (c: Ctx) => Promise<void> }> = [
+  { heading: 'appendixItems', render: appendixItemsSection },
+  { heading: 'appendixReperform', render: appendixReperformSection },
+];
+
+/** The number of a section, as printed (or its heading when headings are not numbered). */
+export function sectionNumber(heading: keyof MemoTemplate['memo']['headings']): number {
+  const i = SECTIONS.findIndex((x) => x.heading === heading);
+  if (i < 0) throw new Error(`internal: no numbered memo section ${heading}`);
+  return i + 1;
+}
+
+/** Build the memo document (not yet packed). */
+export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOptions = {}): Promise<Document> {
+  const W = t.memo;
+  const values = { ...m.values };
+  values.followUpsSection = W.settings.numberHeadings ? String(sectionNumber('followUps')) : W.headings.followUps;
+  const b = new Builder(t, m, values);
+  const wp = m.wp;
+  const c: Ctx = {
+    b, m, t, W, L: W.labels, H: W.headings, T: W.text, O: t.outcomes, wp, values, fs: W.settings.fontSize,
+    a: wp.approach, pop: wp.population, s: wp.selection, con: wp.conclusion,
+    evaluated: m.attributes.length > 0 && m.attributes.every((x) => x.evaluation),
+    o,
+  };
+  await titleBlock(c);
+  for (const sec of SECTIONS) {
+    b.h1(W.headings[sec.heading]);
+    await sec.render(c);
+  }
+  for (const app of APPENDICES) {
+    b.h1(W.headings[app.heading], { pageBreakBefore: true, numbered: false });
+    await app.render(c);
+  }
   return assemble(b, m, t);
 }
 

@@ -25,6 +25,7 @@ import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
 import { editDistance } from '../util/text.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
+import { CAUSE_LABELS, FOLLOW_UP_LABELS, INTENT_LABELS, PATTERN_LABELS, SEVERITY_LABELS } from '../control-test/labels.js';
 import {
   CAUSES,
   FOLLOW_UP_KINDS,
@@ -121,6 +122,7 @@ export const PLACEHOLDERS = {
   workpaperId: 'the workpaper id',
   logEntries: 'the number of change-log entries',
   lastLogHash: 'the hash of the last change-log entry',
+  contentHash: 'SHA-256 of the workpaper\'s content as it is now (without its log); equal to the state hash of the last log entry unless the file was changed outside tolrate',
 } as const;
 
 /** Placeholders of the paragraphs written once per attribute (see ATTRIBUTE_SCOPED_KEYS). */
@@ -201,7 +203,11 @@ export const MemoFile = z.strictObject({
   }),
   title: para,
   subtitle: para,
-  headings: z.strictObject(Object.fromEntries(HEADINGS.map((k) => [k, para])) as Record<(typeof HEADINGS)[number], z.ZodString>),
+  headings: z.strictObject({
+    ...(Object.fromEntries(HEADINGS.map((k) => [k, para])) as Record<(typeof HEADINGS)[number], z.ZodString>),
+    // Added after the first release: a firm's copy without it gets the default.
+    appendixItemsList: para.default('A.1 Items and their results'),
+  }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
     frequencies: labelsOf(FREQUENCIES),
@@ -209,11 +215,13 @@ export const MemoFile = z.strictObject({
     approaches: labelsOf(['statistical', 'non-statistical'] as const),
     models: labelsOf(MODELS),
     methods: labelsOf(['random', 'systematic', 'haphazard'] as const),
-    causes: labelsOf(CAUSES),
-    intent: labelsOf(INTENT),
-    patterns: labelsOf(PATTERNS),
-    severities: labelsOf(SEVERITIES),
-    followUpKinds: labelsOf(FOLLOW_UP_KINDS),
+    // The words for the recorded codes are the test's own (src/control-test/labels.ts); a firm's
+    // template may give its own wording for any of these lists.
+    causes: labelsOf(CAUSES).default(CAUSE_LABELS),
+    intent: labelsOf(INTENT).default(INTENT_LABELS),
+    patterns: labelsOf(PATTERNS).default(PATTERN_LABELS),
+    severities: labelsOf(SEVERITIES).default(SEVERITY_LABELS),
+    followUpKinds: labelsOf(FOLLOW_UP_KINDS).default(FOLLOW_UP_LABELS),
     roles: labelsOf(['sample', 'spare'] as const),
   }),
   text: z.strictObject({
@@ -230,7 +238,7 @@ export const OUTCOME_FILES = {
   'not-supported': Verdict,
   'non-statistical': Caveat.extend({ approachNote: para }),
   haphazard: Caveat.extend({ selectionNote: para }),
-  draft: z.strictObject({ headerMark: para, banner: para, verdict: para }),
+  draft: z.strictObject({ headerMark: para, banner: para, verdict: para, reasonsLead: para.default('Not final because:') }),
 } as const;
 
 export type MemoWording = z.infer<typeof MemoFile>;

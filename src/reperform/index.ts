@@ -18,17 +18,18 @@
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { accessSync, constants } from 'node:fs';
 import { readRegularFile } from '../io/read.js';
-import { zipXmlProblems } from '../io/xml.js';
-import { xmlText } from '../io/text.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
-import { evaluate, proposeConclusion } from '../evaluation/index.js';
-import { verifyLog, type Workpaper } from '../workpaper/index.js';
+import { conclusionProblems, evaluate, evaluationDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
+import { parseWorkpaper, verifyLog, type Workpaper } from '../workpaper/index.js';
+import { replay } from '../workpaper/log.js';
+import { compareMemoBlocks, readMemoBlocks } from '../memo/read.js';
+import { createHash } from 'node:crypto';
 import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
 import { pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { wrap } from '../util/text.js';
 
-export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'evaluation' | 'conclusion' | 'memo';
+export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'results' | 'evaluation' | 'conclusion' | 'memo';
 
 export interface Check {
   area: Area;
@@ -55,6 +56,10 @@ export interface ReperformOptions {
   /** Overrides the population path recorded in the workpaper. */
   populationPath?: string;
   memoPath?: string;
+  /** The memo template the memo was written with, when not the one recorded with it. */
+  templateDir?: string;
+  /** The memo's name as the user gave it (shown in the report; default: its path). */
+  memoLabel?: string;
   /** Progress bar stream for big populations (a terminal), or nothing. */
   progress?: { write(text: string): unknown; isTTY?: boolean };
 }
@@ -246,10 +251,22 @@ function checkSampleSize(wp: Workpaper): Check {
   return { area: 'sample size', summary, differences: diffs };
 }
 
+function checkResults(wp: Workpaper): Check {
+  if (!wp.results || !wp.selection) return { area: 'results', summary: 'no results recorded yet', differences: [], skipped: true };
+  const evaluated = wp.evaluation !== undefined || wp.conclusion !== undefined;
+  const diffs = worklistProblems(wp, { requireComplete: evaluated });
+  const wl = worklist(wp);
+  const p = progress(wp);
+  const replacing = wl.items.length - wl.items.filter((x) => x.item.role === 'sample').length;
+  const summary = diffs.length === 0
+    ? `${p.recorded} of ${wl.items.length} worklist items recorded${replacing > 0 ? ` (${replacing} spare(s) replacing voided items)` : ''}; every result is for a selected item, in draw order`
+    : `${diffs.length} difference(s) between the results and the selection`;
+  return { area: 'results', summary, differences: diffs };
+}
+
 function checkEvaluation(wp: Workpaper): Check {
   if (!wp.results) return { area: 'evaluation', summary: 'no results recorded yet', differences: [], skipped: true };
   if (!wp.evaluation) return { area: 'evaluation', summary: 'results recorded but not evaluated yet', differences: [], skipped: true };
-  const diffs: string[] = [];
   let fresh;
   try {
     fresh = evaluate(wp);
@@ -257,28 +274,7 @@ function checkEvaluation(wp: Workpaper): Check {
     if (e instanceof TolrateInputError) return { area: 'evaluation', summary: 'cannot be recomputed', differences: [`the recorded results cannot be evaluated: ${e.message}`] };
     throw e;
   }
-  for (const f of fresh.attributes) {
-    const r = wp.evaluation.attributes.find((x) => x.attributeId === f.attributeId);
-    if (!r) {
-      diffs.push(`${f.attributeId}: no recorded evaluation`);
-      continue;
-    }
-    const id = f.attributeId;
-    if (r.sampleSize !== f.sampleSize) diffs.push(`${id}: recorded n = ${r.sampleSize}, the results give ${f.sampleSize}`);
-    if (r.deviations !== f.deviations) diffs.push(`${id}: recorded ${r.deviations} deviation(s), the results give ${f.deviations}`);
-    if (r.model !== f.model) diffs.push(`${id}: recorded model ${r.model}, the approach gives ${f.model}`);
-    if (!close(r.tolerableRate, f.tolerableRate)) diffs.push(`${id}: recorded tolerable rate ${pct(r.tolerableRate)}, the plan gives ${pct(f.tolerableRate)}`);
-    if (!close(r.confidence, f.confidence)) diffs.push(`${id}: recorded confidence ${pct(r.confidence)}, the plan gives ${pct(f.confidence)}`);
-    if (!close(r.sampleRate, f.sampleRate)) diffs.push(`${id}: recorded sample deviation rate ${pctExact(r.sampleRate)}, recomputed ${pctExact(f.sampleRate)}`);
-    if (!close(r.upperLimit, f.upperLimit)) diffs.push(`${id}: recorded upper deviation limit ${pctExact(r.upperLimit)}, recomputed ${pctExact(f.upperLimit)}`);
-    if (!close(r.achievedRisk, f.achievedRisk)) diffs.push(`${id}: recorded risk of overreliance ${pctExact(r.achievedRisk)}, recomputed ${pctExact(f.achievedRisk)}`);
-    if (r.supportedByRates !== f.supportedByRates) diffs.push(`${id}: recorded that the rates ${r.supportedByRates ? 'support' : 'do not support'} reliance; recomputed: they ${f.supportedByRates ? 'do' : 'do not'}`);
-    if (r.extension !== f.extension) diffs.push(`${id}: recorded extension ${r.extension ?? 'not practical'}, recomputed ${f.extension ?? 'not practical'}`);
-    if (r.illustrative !== f.illustrative) diffs.push(`${id}: recorded as ${r.illustrative ? '' : 'not '}illustrative, recomputed ${f.illustrative ? '' : 'not '}illustrative`);
-    if ((r.deviationsInPopulation ?? null) !== (f.deviationsInPopulation ?? null)) {
-      diffs.push(`${id}: recorded upper limit count ${r.deviationsInPopulation ?? '(none)'}, recomputed ${f.deviationsInPopulation ?? '(none)'}`);
-    }
-  }
+  const diffs = evaluationDifferences(wp.evaluation, fresh, { pct, exact: (x: number) => pctExact(x) });
   const summary = diffs.length === 0
     ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctLimit(f.upperLimit, f.tolerableRate)}`).join('; ') + ' — as recorded'
     : `${diffs.length} difference(s)`;
@@ -287,109 +283,62 @@ function checkEvaluation(wp: Workpaper): Check {
 
 function checkConclusion(wp: Workpaper): Check {
   if (!wp.conclusion || !wp.results) return { area: 'conclusion', summary: 'not concluded yet', differences: [], skipped: true };
-  const diffs: string[] = [];
-  let proposal;
-  try {
-    proposal = proposeConclusion(wp, evaluate(wp));
-  } catch (e) {
-    if (e instanceof TolrateInputError) return { area: 'conclusion', summary: 'cannot be checked', differences: [`cannot re-derive the conclusion: ${e.message}`] };
-    throw e;
-  }
-  for (const f of proposal.findings) {
-    const r = wp.conclusion.attributes.find((a) => a.attributeId === f.attributeId);
-    if (!r) diffs.push(`${f.attributeId}: no recorded conclusion`);
-    else if (r.supportsReliance && !f.supportsReliance) {
-      diffs.push(`${f.attributeId}: concluded as supporting reliance, but the recomputed figures and recorded causes do not support it`);
-    }
-  }
-  const allAttr = wp.conclusion.attributes.every((a) => a.supportsReliance);
-  if (wp.conclusion.control.supportsReliance && !allAttr) diffs.push('the control is concluded as supporting reliance although an attribute does not');
-  if (wp.conclusion.control.supportsReliance && !proposal.control.supportsReliance) {
-    diffs.push('the control is concluded as supporting reliance, but the recomputed results do not support it');
-  }
-  if (wp.conclusion.qualitative.intentionalFound !== proposal.qualitative.intentionalFound) diffs.push(`recorded that intentional deviations were ${wp.conclusion.qualitative.intentionalFound ? '' : 'not '}found; the results say otherwise`);
-  if (wp.conclusion.qualitative.systemicFound !== proposal.qualitative.systemicFound) diffs.push(`recorded that systemic deviations were ${wp.conclusion.qualitative.systemicFound ? '' : 'not '}found; the results say otherwise`);
+  const diffs = conclusionProblems(wp);
   const summary = diffs.length === 0
     ? `${wp.conclusion.control.supportsReliance ? 'supports' : 'does not support'} reliance — consistent with the figures and causes`
     : `${diffs.length} difference(s)`;
   return { area: 'conclusion', summary, differences: diffs };
 }
 
-/** The plain text of a DOCX body (paragraph per line). */
-export async function docxText(path: string): Promise<string> {
-  return (await readDocx(path)).text;
+/** The workpaper as it stood after log entry `seq` (content replayed from the log, log cut there). */
+export function stateAt(wp: Workpaper, seq: number): Workpaper {
+  const log = wp.log.slice(0, seq);
+  return parseWorkpaper({ ...replay(log), log } as unknown, `the workpaper as of log entry ${seq}`);
 }
 
 /**
- * A memo's body text and the XML parts of it that do not parse (strict XML 1.0: a memo whose
- * XML does not parse is one Word may refuse to open, so it differs from what tolrate writes).
+ * The memo compared in place: its SHA-256 looked up among the memos the workpaper records (which
+ * says which state of the file it shows), the memo rendered afresh from that state with the same
+ * template, and the two compared section by section and table cell by table cell.
  */
-export async function readDocx(path: string): Promise<{ text: string; xmlProblems: string[] }> {
-  const data = readRegularFile(path, 'The memo');
-  const { default: JSZip } = await import('jszip');
-  let xml: string | undefined;
-  let xmlProblems: string[] = [];
-  try {
-    const zip = await JSZip.loadAsync(data);
-    xml = await zip.file('word/document.xml')?.async('string');
-    xmlProblems = await zipXmlProblems(data);
-  } catch {
-    xml = undefined;
-  }
-  if (!xml) throw new FileInputError(path, `${path} is not a DOCX file (no word/document.xml inside).`);
-  return { xmlProblems, text: docxBodyText(xml) };
-}
-
-function docxBodyText(xml: string): string {
-  return xml
-    .replace(/<w:tab\/>/g, '\t')
-    .replace(/<\/w:p>/g, '\n')
-    .replace(/<[^>]+>/g, '')
-    .replace(/&lt;/g, '<')
-    .replace(/&gt;/g, '>')
-    .replace(/&quot;/g, '"')
-    .replace(/&apos;/g, "'")
-    .replace(/&amp;/g, '&');
-}
-
-/** The figures a memo must carry, each with a label, in the memo's own format. */
-export function memoFigures(wp: Workpaper): Array<{ label: string; text: string }> {
-  const out: Array<{ label: string; text: string }> = [];
-  if (wp.engagement) out.push({ label: 'workpaper reference', text: wp.engagement.reference });
-  if (wp.population) {
-    out.push({ label: 'population SHA-256', text: wp.population.fingerprint.sha256 });
-    out.push({ label: 'population row count', text: wp.population.fingerprint.rowCount.toLocaleString('en-US') });
-  }
-  if (wp.selection?.seed) out.push({ label: 'selection seed', text: wp.selection.seed });
-  if (wp.approach) out.push({ label: 'sample size', text: wp.approach.sampleSize.toLocaleString('en-US') });
-  for (const ev of wp.evaluation?.attributes ?? []) {
-    const id = ev.attributeId;
-    out.push({ label: `${id} sample deviation rate`, text: pct(ev.sampleRate) });
-    out.push({ label: `${id} upper deviation limit`, text: pctLimit(ev.upperLimit, ev.tolerableRate) });
-    out.push({ label: `${id} exact upper deviation limit`, text: pctExact(ev.upperLimit) });
-    out.push({ label: `${id} exact risk of overreliance`, text: pctExact(ev.achievedRisk) });
-  }
-  for (const it of wp.selection?.items ?? []) out.push({ label: `item ${it.seq}`, text: it.key });
-  const last = wp.log[wp.log.length - 1];
-  if (last) out.push({ label: 'hash of the last change-log entry (a memo written before the last save of the workpaper lacks it)', text: last.hash });
-  return out;
-}
-
-async function checkMemo(wp: Workpaper, memoPath: string): Promise<Check> {
-  const { text, xmlProblems } = await readDocx(memoPath);
-  const flat = text.replace(/\s+/g, ' ');
+async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string, templateDir?: string, label = memoPath): Promise<Check> {
+  const data = readRegularFile(memoPath, 'The memo');
   const diffs: string[] = [];
-  for (const f of memoFigures(wp)) {
-    // The memo holds text as XML allows it (src/io/text.ts), so a key's forbidden characters are not in it.
-    if (!flat.includes(xmlText(f.text).replace(/\s+/g, ' '))) diffs.push(`the memo does not show the ${f.label} (${f.text})`);
+  const sha = createHash('sha256').update(data).digest('hex');
+  const records = wp.memos ?? [];
+  const record = records.find((r) => r.sha256 === sha);
+  const last = records[records.length - 1];
+  const against = record ?? last;
+  if (!record) {
+    diffs.push(
+      records.length === 0
+        ? `the workpaper records no memo written from it (this file's SHA-256 is ${sha.slice(0, 16)}…): compared with the memo of the file as it is now`
+        : `this file (SHA-256 ${sha.slice(0, 16)}…) is not a memo tolrate recorded writing from this workpaper: it was changed after it was written, or belongs to another file; compared with the last memo recorded (${last!.at}, the state after log entry ${last!.logSeq})`,
+    );
   }
-  for (const p of xmlProblems) diffs.push(`the memo's XML does not parse (${p}); Word may refuse to open it`);
-  const summary =
-    diffs.length === 0
-      ? `${memoPath}: every figure of the workpaper found in the memo`
-      : xmlProblems.length
-        ? `${memoPath}: its XML does not parse${diffs.length > xmlProblems.length ? `, and ${diffs.length - xmlProblems.length} figure(s) missing or different` : ''}`
-        : `${memoPath}: ${diffs.length} figure(s) missing or different`;
+  let blocks;
+  try {
+    blocks = await readMemoBlocks(data, memoPath);
+  } catch (e) {
+    if (e instanceof FileInputError) return { area: 'memo', summary: `${memoPath}: cannot be read`, differences: [...diffs, e.message] };
+    throw e;
+  }
+  const base = dirname(resolve(workpaperPath));
+  const tpl = templateDir ?? (against?.template ? resolve(base, against.template) : undefined);
+  const state = against && against.logSeq <= wp.log.length ? stateAt(wp, against.logSeq) : wp;
+  const { loadTemplate, renderMemo } = await import('../memo/index.js');
+  const template = await loadTemplate(tpl);
+  const expected = await readMemoBlocks(await renderMemo(state, { workpaperPath, template }), 'the memo rendered from the workpaper');
+  const found = compareMemoBlocks(blocks, expected);
+  for (const d of found.slice(0, 60)) diffs.push(`${d.section}, ${d.where}: the memo has "${d.memo}", the workpaper gives "${d.expected}"`);
+  if (found.length > 60) diffs.push(`... and ${found.length - 60} more differences`);
+  const later = against ? wp.log.length - against.logSeq - 1 : 0;
+  const shows = against
+    ? `it shows the state after log entry ${against.logSeq}${later > 0 ? ` (${later} later change(s) are not in it)` : ''}`
+    : 'compared with the workpaper as it is now';
+  const summary = diffs.length === 0
+    ? `${label}: as tolrate wrote it on ${against!.at.replace('T', ' ').replace(/(\.\d+)?Z$/, ' UTC')}; ${shows}; every section and table cell agrees`
+    : `${label}: ${found.length} difference(s) in the text; ${shows}`;
   return { area: 'memo', summary, differences: diffs };
 }
 
@@ -418,9 +367,10 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
   checks.push(popCheck);
   checks.push(checkSampleSize(wp));
   checks.push(await checkSelection(wp, source, rowCount));
+  checks.push(checkResults(wp));
   checks.push(checkEvaluation(wp));
   checks.push(checkConclusion(wp));
-  if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath));
+  if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath, opts.workpaperPath, opts.templateDir, opts.memoLabel));
   return {
     workpaperPath: opts.workpaperPath,
     ...(opts.populationPath ? { populationPath: opts.populationPath } : {}),

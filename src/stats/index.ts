@@ -34,6 +34,7 @@ export { overrelianceRisk } from './overreliance-risk.js';
 export { extensionSize } from './extension-size.js';
 export { planningTable } from './planning-table.js';
 export { decision } from './decision.js';
+export { withinRisk } from './within-risk.js';
 export { resolveModel } from './resolve-model.js';
 export { expectedDeviations } from './expected-deviations.js';
 export { tolerableDeviations } from './tolerable-deviations.js';

@@ -3,11 +3,11 @@
  * numbers. Nothing here touches the terminal or the file system.
  */
 
-/** The probability model used for the risk of overreliance. */
-export type Model = 'binomial' | 'hypergeometric' | 'poisson';
+/** Every model name the engine accepts, in the order shown to users (the workpaper schema uses this list). */
+export const MODELS = ['binomial', 'hypergeometric', 'poisson'] as const;
 
-/** Every model name the engine accepts, in the order shown to users. */
-export const MODELS: readonly Model[] = ['binomial', 'hypergeometric', 'poisson'];
+/** The probability model used for the risk of overreliance. */
+export type Model = (typeof MODELS)[number];
 
 /** Options of {@link sampleSize}. */
 export interface SampleSizeOptions {

@@ -29,3 +29,25 @@ export function wrap(text: string, width = 92, indent = ''): string[] {
   }
   return out;
 }
+
+function commonPrefix(a: string, b: string): number {
+  let i = 0;
+  while (i < a.length && i < b.length && a[i] === b[i]) i++;
+  return i;
+}
+
+/** The closest candidate to `word`, or undefined when nothing is reasonably close. */
+export function nearest(word: string, candidates: readonly string[]): string | undefined {
+  let best: string | undefined;
+  let bestD = Infinity;
+  for (const c of candidates) {
+    const d = c.startsWith(word) || word.startsWith(c) ? Math.min(1, editDistance(word, c)) : editDistance(word, c);
+    // On a tie, prefer the longer common prefix (--sede -> --seed, not --size).
+    if (d < bestD || (d === bestD && best !== undefined && commonPrefix(c, word) > commonPrefix(best, word))) {
+      bestD = d;
+      best = c;
+    }
+  }
+  const limit = Math.max(2, Math.floor(word.length / 3));
+  return bestD <= limit ? best : undefined;
+}

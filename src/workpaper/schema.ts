@@ -10,6 +10,7 @@
  * (file.ts) before validation; then `npm run schema` regenerates schema/workpaper.schema.json.
  */
 import * as z from 'zod';
+import { MODELS } from '../stats/types.js';
 
 export const SCHEMA_VERSION = 1;
 
@@ -24,7 +25,7 @@ const count = z.number().int('must be a whole number').nonnegative('must not be 
 const positive = z.number().int('must be a whole number').positive('must be at least 1');
 const decimal = z.string().regex(/^-?\d+(\.\d+)?$/, 'must be a decimal number such as 1234.50');
 
-export const MODELS = ['binomial', 'hypergeometric', 'poisson'] as const;
+export { MODELS };
 export const FREQUENCIES = ['annual', 'quarterly', 'monthly', 'weekly', 'daily', 'many-times-daily'] as const;
 export const NATURES = ['manual', 'automated', 'it-dependent-manual'] as const;
 export const CAUSES = [
@@ -35,23 +36,9 @@ export const CAUSES = [
   'system',
   'other',
 ] as const;
-export const CAUSE_LABELS: Record<(typeof CAUSES)[number], string> = {
-  'not-performed': 'Control not performed',
-  'performed-late': 'Performed late',
-  'wrong-performer': 'Wrong or unauthorised performer',
-  'evidence-missing': 'Evidence missing',
-  system: 'System or configuration',
-  other: 'Other',
-};
 export const INTENT = ['no', 'suspected', 'yes'] as const;
 export const PATTERNS = ['isolated', 'systemic', 'unclear'] as const;
 export const SEVERITIES = ['none', 'deficiency', 'significant-deficiency', 'material-weakness'] as const;
-export const SEVERITY_LABELS: Record<(typeof SEVERITIES)[number], string> = {
-  none: 'No deficiency',
-  deficiency: 'Deficiency',
-  'significant-deficiency': 'Significant deficiency',
-  'material-weakness': 'Material weakness',
-};
 export const FOLLOW_UP_KINDS = [
   'extend-sample',
   'test-compensating-control',
@@ -321,6 +308,21 @@ export const Conclusion = z.object({
 
 export const SignOff = z.object({ name: text, date: isoDate });
 
+export const MemoRecord = z.object({
+  /** SHA-256 of the DOCX file as written. */
+  sha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal'),
+  /** Where it was written, relative to the workpaper's folder when it is inside it. */
+  path: z.string(),
+  at: isoTime,
+  /** The state the memo shows: the SHA-256 of the workpaper's content, and the last log entry then. */
+  stateHash: z.string(),
+  logSeq: count,
+  logHash: z.string(),
+  final: z.boolean(),
+  /** The memo template folder, when not the shipped one. */
+  template: z.string().optional(),
+});
+
 export const LogChange = z.object({
   /** JSON path of the changed value, e.g. ["results","items",3,"attributes","A1"]. */
   path: z.array(z.union([z.string(), z.number().int()])),
@@ -359,6 +361,17 @@ export const Workpaper = z.object({
   evaluation: Evaluation.optional(),
   conclusion: Conclusion.optional(),
   signoffs: z.object({ preparer: SignOff.optional(), reviewer: SignOff.optional() }).optional(),
+  /**
+   * The conclusion as it was before a change to the results (or an earlier answer) made it out of
+   * date. Not a conclusion: its answers are offered as the defaults when the test is concluded again.
+   */
+  earlierConclusion: Conclusion.optional(),
+  /** The answers given in a step that was stopped before it was complete (offered as defaults when it is asked again). */
+  unfinishedStep: z
+    .object({ step: z.string(), answers: z.record(z.string(), z.union([z.string(), z.boolean()])) })
+    .optional(),
+  /** Every memo written from this workpaper: its SHA-256, when, and the state it shows. */
+  memos: z.array(MemoRecord).optional(),
   log: z.array(LogEntry).default([]),
 }).superRefine((wp, ctx) => {
   const ids = new Set((wp.attributes ?? []).map((a) => a.id));
@@ -404,6 +417,7 @@ export type Evaluation = z.infer<typeof Evaluation>;
 export type FollowUp = z.infer<typeof FollowUp>;
 export type Conclusion = z.infer<typeof Conclusion>;
 export type LogEntry = z.infer<typeof LogEntry>;
+export type MemoRecord = z.infer<typeof MemoRecord>;
 export type LogChange = z.infer<typeof LogChange>;
 export type Model = (typeof MODELS)[number];
 export type Frequency = (typeof FREQUENCIES)[number];

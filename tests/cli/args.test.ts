@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { editDistance, nearest, parseFlags } from '../../src/cli/args.js';
+import { editDistance, nearest, parseFlags } from '../../src/commands/args.js';
 import { UsageError } from '../../src/errors.js';
 
 describe('argument parsing', () => {
@@ -17,5 +17,17 @@ describe('argument parsing', () => {
     expect(() => parseFlags('select', ['--size'], spec)).toThrowError(/--size needs a value/);
     expect(() => parseFlags('select', ['extra'], spec)).toThrowError(/unexpected argument: extra/);
     expect(parseFlags('select', ['--size', '5'], spec).values.size).toBe('5');
+  });
+});
+
+describe('how tolrate was started, for the commands it prints', () => {
+  it('names the command the user can type again', async () => {
+    const { invocation } = await import('../../src/cli/main.js');
+    expect(invocation('/usr/local/bin/tolrate', '/home/a')).toBe('tolrate');
+    expect(invocation('/root/.npm/_npx/1a2b/node_modules/.bin/tolrate', '/home/a')).toBe('npx tolrate');
+    expect(invocation('/home/a/proj/node_modules/tolrate/dist/cli.js', '/home/a/proj')).toBe('npx tolrate');
+    expect(invocation('/home/a/tolrate/dist/cli.js', '/home/a/tolrate')).toBe('node dist/cli.js');
+    expect(invocation('/home/a/tolrate/dist/cli.js', '/tmp/work')).toBe('node /home/a/tolrate/dist/cli.js');
+    expect(invocation(undefined, '/tmp')).toBe('tolrate');
   });
 });

@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import { runWith as record } from '../../src/commands/record/index.js';
 import { runWith as conclude } from '../../src/commands/conclude/index.js';
 import { runCli } from '../../src/cli/main.js';
-import { SEVERITY_QUESTIONS } from '../../src/evaluation/conclude.js';
+import { SEVERITY_QUESTIONS } from '../../src/control-test/conclude.js';
 import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';

@@ -14,7 +14,7 @@ import { runWith as plan } from '../../src/commands/plan/index.js';
 import { runWith as record } from '../../src/commands/record/index.js';
 import { runWith as conclude } from '../../src/commands/conclude/index.js';
 import { run as select } from '../../src/commands/select/index.js';
-import { setOpenWorkpaper, stoppedMessage } from '../../src/cli/stopped.js';
+import { stoppedMessage } from '../../src/cli/stopped.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation } from '../fixtures/interview.js';
 
@@ -208,14 +208,15 @@ describe('lines fit a 100-column terminal', () => {
 describe('Ctrl-C before the first step is saved', () => {
   it('does not name a workpaper file that does not exist; once a step is saved it does', async () => {
     const dir = tempDir();
-    setOpenWorkpaper(undefined);
     const early = new ScriptedAsker(planAnswers('0'), { stopAt: 2 });
-    await expect(plan(['t1'], captureContext(dir), early, { now: fixedClock() })).rejects.toThrow(/Stopped at question 2/);
+    const e1 = await plan(['t1'], captureContext(dir), early, { now: fixedClock() }).catch((e: unknown) => e as { message: string; workpaper?: string });
+    expect((e1 as Error).message).toMatch(/Stopped at question 2/);
     expect(existsSync(join(dir, 't1.tolrate.json'))).toBe(false);
-    expect(stoppedMessage(dir, relative)).not.toContain('t1.tolrate.json');
+    expect(stoppedMessage(dir, relative, e1 as { workpaper?: string })).not.toContain('t1.tolrate.json');
     const later = new ScriptedAsker(planAnswers('0'), { stopAt: 8 });
-    await expect(plan(['t1'], captureContext(dir), later, { now: fixedClock() })).rejects.toThrow(/Stopped at question 8/);
+    const e2 = await plan(['t1'], captureContext(dir), later, { now: fixedClock() }).catch((e: unknown) => e as { message: string; workpaper?: string });
+    expect((e2 as Error).message).toMatch(/Stopped at question 8/);
     expect(existsSync(join(dir, 't1.tolrate.json'))).toBe(true);
-    expect(stoppedMessage(dir, relative)).toContain('Stopped. t1.tolrate.json holds every step answered before this question.');
+    expect(stoppedMessage(dir, relative, e2 as { workpaper?: string })).toContain('Stopped. t1.tolrate.json holds every step answered before this question.');
   });
 });

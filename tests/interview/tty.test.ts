@@ -79,7 +79,8 @@ describe.skipIf(reason !== '')(`a real terminal (tmux)${reason ? `: skipped, ${r
     for (let i = 0; i < 50 && !existsSync(join(dir, 'exit.txt')); i++) await new Promise((r) => setTimeout(r, 100));
     expect(readFileSync(join(dir, 'exit.txt'), 'utf8').trim()).toBe('EXIT=130');
     expect(screen()).toContain('Stopped. t1.tolrate.json holds every step answered before this question.');
-    expect(screen()).toContain('Continue with: tolrate t1.tolrate.json');
+    // Started as `node .../dist/cli.js`, so the command to continue is given the same way.
+    expect(screen()).toMatch(/Continue with: node \S*dist\/cli\.js t1\.tolrate\.json/);
     const wp = loadWorkpaper(join(dir, 't1.tolrate.json'));
     expect(verifyLog(wp)).toEqual([]);
     expect(wp.engagement).toMatchObject({ entity: 'Corrow Fittings Ltd', periodEnd: '2025-12-31' });

@@ -65,13 +65,18 @@ describe('environment errors give a message and exit 2', () => {
     expect(existsSync(lockPathFor(file))).toBe(false);
   });
 
-  it('memo and reperform read a workpaper that another session has open (no lock needed to read)', async () => {
+  it('memo and reperform read a workpaper that another session has open (no lock needed to read); memo then does not record itself in it', async () => {
     const { dir, file } = await plannedTest();
     const { acquireLock } = await import('../../src/io/lock.js');
     const lock = acquireLock(file);
     try {
       expect(await runCli(['reperform', 't1.tolrate.json'], captureContext(dir, false))).toBe(0);
-      expect(await runCli(['memo', 't1.tolrate.json'], captureContext(dir, false))).toBe(0);
+      const before = readFileSync(file);
+      const m = captureContext(dir, false);
+      expect(await runCli(['memo', 't1.tolrate.json'], m)).toBe(0);
+      // Recording the memo in the workpaper is a save: not while another session has it open.
+      expect(m.text()).toMatch(/Not recorded in the workpaper: t1\.tolrate\.json is open in another session/);
+      expect(readFileSync(file).equals(before)).toBe(true);
     } finally {
       lock.release();
     }

@@ -107,7 +107,7 @@ describe('a save that fails in the interview', () => {
     const f = diskFull(100);
     const err = await withFsOps(f.ops, () => record(['t1.tolrate.json'], captureContext(dir), asker, { now: fixedClock() }).catch((e: unknown) => e));
     expect((err as Error).name).toBe('ExitPromptError');
-    const note = (err as { tolrateStopNote?: string }).tolrateStopNote!;
+    const note = (err as { stopNote?: string }).stopNote!;
     expect(note).toContain('The last answer was NOT saved (disk full). t1.tolrate.json holds the steps saved before it.');
     expect(note).not.toContain('holds every step answered');
     expect(existsSync(lockPathFor(file))).toBe(false);

@@ -66,8 +66,8 @@ describe('tolrate memo', () => {
     const f = buildFixture({ variant: 'supported', stage: 'selected' });
     const k = ctx(f.dir);
     expect(await runCli(['memo', 'C-310.tolrate.json'], k.c)).toBe(0);
-    expect(k.out()).toContain('DRAFT: the test is not concluded');
-    expect(k.out()).toContain('Not yet in the workpaper: results, evaluation, conclusion.');
+    expect(k.out()).toContain('DRAFT: the memo is marked DRAFT on every page, because:');
+    expect(k.out()).toContain('steps still open: Results, Evaluation and conclusion, Sign-off');
     expect(k.out()).toContain('Continue with: tolrate record C-310.tolrate.json');
     const doc = await readDocx(readFileSync(join(f.dir, 'C-310.memo.docx')));
     expect(doc.headerFooter).toContain('DRAFT');

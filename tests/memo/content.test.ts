@@ -6,7 +6,7 @@ import { createRequire } from 'node:module';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { renderMemo } from '../../src/memo/index.js';
 import { int, pct, pctExact, pctPlain, pctUp } from '../../src/util/format.js';
-import { CAUSE_LABELS } from '../../src/workpaper/schema.js';
+import { CAUSE_LABELS } from '../../src/control-test/index.js';
 import { findTable, readDocx, rowByFirstCell, type DocxText } from './docx-text.js';
 import { buildFixture, SCENARIO, type Fixture } from './fixtures.js';
 

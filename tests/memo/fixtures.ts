@@ -12,7 +12,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { sampleSize } from '../../src/stats/index.js';
 import { HAPHAZARD_V1, selectRandom } from '../../src/selection/index.js';
-import { evaluate, proposeConclusion } from '../../src/evaluation/index.js';
+import { evaluate, proposeConclusion } from '../../src/control-test/index.js';
 import { newWorkpaper, parseWorkpaper, saveWorkpaper } from '../../src/workpaper/index.js';
 import type { AttributeResult, ItemResult, Model, SelectedItem, Workpaper } from '../../src/workpaper/schema.js';
 

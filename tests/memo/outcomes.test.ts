@@ -88,7 +88,10 @@ describe('a test in progress', () => {
   it('planned only: DRAFT in the header and the banner, later sections not yet evaluated', async () => {
     const { doc } = await memoOf({ variant: 'supported', stage: 'planned' });
     expect(doc.headerFooter).toContain('DRAFT');
-    expect(doc.text).toContain('DRAFT — the test is in progress.');
+    expect(doc.text).toContain('DRAFT — this memo is not final');
+    // The open steps are named under the banner.
+    expect(doc.text).toContain('Not final because:');
+    expect(doc.text).toMatch(/steps still open: Selection, Results, Evaluation and conclusion, Sign-off/);
     expect(doc.text).toContain('The sample has not been selected yet.');
     expect(doc.text).toContain('The results have not been recorded yet: this section is not yet evaluated.');
     expect(doc.text).toContain('The test has not been concluded yet: not yet evaluated.');
@@ -147,7 +150,7 @@ describe('other records', () => {
   });
 
   it('a Poisson evaluation names the factor method in the results and the formulas', async () => {
-    const { evaluate } = await import('../../src/evaluation/index.js');
+    const { evaluate } = await import('../../src/control-test/index.js');
     const f = buildFixture({ variant: 'supported', stage: 'recorded' });
     const wp = { ...f.wp, approach: { ...f.wp.approach!, model: 'poisson' as const } };
     wp.evaluation = evaluate(wp);

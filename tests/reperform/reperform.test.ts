@@ -148,7 +148,9 @@ describe('tolrate reperform', () => {
     const r = await reperform(dir, ['--memo', MEMO]);
     expect(r.code).toBe(1);
     expect(r.out).toMatch(/memo\s+DIFFERS/);
-    expect(r.out).toMatch(/the memo does not show the population SHA-256/);
+    expect(r.out).toMatch(/is not a memo tolrate recorded writing from this workpaper/);
+    // Compared in place: a section's paragraph or cell, with both texts.
+    expect(r.out).toMatch(/the memo has "[^"]*", the workpaper gives "/);
   });
 
   it('unusable input exits 2 with a message, never a stack trace', async () => {

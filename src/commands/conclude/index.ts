@@ -1,4 +1,4 @@
-import { parseFlags } from '../../cli/args.js';
+import { parseFlags } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 import type { Asker } from '../../interview/asker.js';

@@ -1,9 +1,9 @@
 import { rmSync } from 'node:fs';
-import { parseFlags, str } from '../../cli/args.js';
+import { parseFlags, str } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 import { fileLines, loadScenario, narrative, runDemoInterview, SCENARIOS, type Scenario } from '../../interview/demo.js';
-import { nearest } from '../../cli/args.js';
+import { nearest } from '../args.js';
 
 const SPEC = { out: { type: 'string' as const }, scenario: { type: 'string' as const }, verbose: { type: 'boolean' as const } };
 
@@ -46,9 +46,12 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const out = str(p, 'out') ?? 'demo-output';
   const title = loadScenario(scenario).title;
   const got = await runDemoInterview(ctx, { out, scenario, verbose: p.values.verbose === true });
-  const { defaultMemoPath, writeMemo } = await import('../../memo/index.js');
+  const { defaultMemoPath, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
   rmSync(defaultMemoPath(got.workpaperPath), { force: true });
-  const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath, now: got.now() });
+  const at = got.now();
+  const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath, now: at });
+  const final = !(await memoModel(got.workpaper, { workpaperPath: got.workpaperPath })).draft;
+  recordMemo(got.workpaper, got.workpaperPath, memo, { at, final });
   got.files.push({ what: 'memo', path: memo.path });
   if (p.values.verbose) ctx.stdout.write('\n');
   ctx.stdout.write(`${narrative(got.workpaper, `tolrate demo: ${title}`).join('\n')}\n`);

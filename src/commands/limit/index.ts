@@ -1,4 +1,4 @@
-import { parseFlags, required, type FlagSpec } from '../../cli/args.js';
+import { parseFlags, required, type FlagSpec } from '../args.js';
 import { NoPracticalSizeError, UsageError } from '../../errors.js';
 import {
   decision,

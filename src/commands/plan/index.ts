@@ -1,4 +1,4 @@
-import { parseFlags, str } from '../../cli/args.js';
+import { parseFlags, str } from '../args.js';
 import type { CommandContext } from '../types.js';
 import type { Asker } from '../../interview/asker.js';
 import { needsTerminal, terminalAsker, type InterviewOptions } from '../../interview/command.js';

@@ -1,6 +1,6 @@
 import { existsSync, statSync } from 'node:fs';
 import { extname, isAbsolute, relative, resolve } from 'node:path';
-import { parseFlags, str, type FlagSpec, type ParsedArgs } from '../../cli/args.js';
+import { parseFlags, str, type FlagSpec, type ParsedArgs } from '../args.js';
 import { FileInputError, UsageError } from '../../errors.js';
 import { findKeys, readRowsAt, scanPopulation } from '../../population/index.js';
 import type { DateOrder, PopulationScan, PopulationSource, ProgressStream } from '../../population/types.js';

@@ -2,7 +2,7 @@
  * Helpers shared by the calculator commands (size, limit, table): flag parsing for the model and
  * the population, key–value blocks, and the closing caution.
  */
-import { nearest, str, type ParsedArgs } from '../../cli/args.js';
+import { nearest, str, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { MODELS, type Model } from '../../stats/index.js';
 import { parseCount } from '../../util/percent.js';

@@ -1,4 +1,4 @@
-import { parseFlags, required, type FlagSpec } from '../../cli/args.js';
+import { parseFlags, required, type FlagSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { expectedDeviations, overrelianceRisk, sampleSize, type SampleSizeResult } from '../../stats/index.js';
 import { int, pctExact, pctPlain, pctUp } from '../../util/format.js';

@@ -1,5 +1,5 @@
 import { readdirSync } from 'node:fs';
-import { parseFlags, str } from '../../cli/args.js';
+import { parseFlags, str } from '../args.js';
 import type { CommandContext, CommandRun } from '../types.js';
 import type { Asker } from '../../interview/asker.js';
 import { needsTerminal, terminalAsker, workpaperPath } from '../../interview/command.js';

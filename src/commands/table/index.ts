@@ -1,4 +1,4 @@
-import { parseFlags, required, str, type FlagSpec } from '../../cli/args.js';
+import { parseFlags, required, str, type FlagSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import {
   DEFAULT_EXPECTED_RATES,

@@ -3,10 +3,29 @@
  * actions. Everything here is a proposal: the interview shows it, the practitioner edits and
  * accepts it. The tool never classifies the severity of a deficiency; it asks the questions.
  */
-import type { Conclusion, Evaluation, FollowUp, Workpaper } from '../workpaper/schema.js';
-import { CAUSE_LABELS } from '../workpaper/schema.js';
+import type { AttributeEvaluation, Conclusion, Evaluation, FollowUp, Workpaper } from '../workpaper/schema.js';
 import { pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
-import { countResults, isIllustrative, type DeviationRecord } from './evaluate.js';
+import { countResults, evaluate, isIllustrative, type DeviationRecord } from './evaluate.js';
+import { CAUSE_LABELS } from './labels.js';
+import { TolrateInputError } from '../errors.js';
+
+/** What the rates alone say. An illustrative evaluation (non-statistical, haphazard) supports reliance only without deviations. */
+export function ratesSupport(ev: Pick<AttributeEvaluation, 'illustrative' | 'deviations' | 'supportedByRates'>): boolean {
+  return ev.illustrative ? ev.deviations === 0 : ev.supportedByRates;
+}
+
+/** A deviation that escalates whatever the rates say: intentional or suspected, or systemic. */
+export function escalates(d: { intentional: string; pattern: string }): { intentional: boolean; systemic: boolean } {
+  return { intentional: d.intentional !== 'no', systemic: d.pattern === 'systemic' };
+}
+
+/** Whether the evidence (the rates and the qualitative review of the deviations) supports reliance. */
+export function evidenceSupports(ev: Pick<AttributeEvaluation, 'illustrative' | 'deviations' | 'supportedByRates'>, deviations: ReadonlyArray<{ intentional: string; pattern: string }>): boolean {
+  return ratesSupport(ev) && !deviations.some((d) => {
+    const e = escalates(d);
+    return e.intentional || e.systemic;
+  });
+}
 
 export interface AttributeFinding {
   attributeId: string;
@@ -38,13 +57,12 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
   const illustrative = isIllustrative(wp);
   return evaluation.attributes.map((ev) => {
     const devs = counts.find((c) => c.attributeId === ev.attributeId)?.deviationRecords ?? [];
-    const intentional = devs.filter((d) => d.result.intentional !== 'no');
-    const systemic = devs.filter((d) => d.result.pattern === 'systemic');
+    const intentional = devs.filter((d) => escalates(d.result).intentional);
+    const systemic = devs.filter((d) => escalates(d.result).systemic);
     const beta = 1 - ev.confidence;
     const parts: string[] = [];
-    let byRates: boolean;
+    const byRates = ratesSupport(ev);
     if (illustrative) {
-      byRates = ev.deviations === 0;
       // A statistically sized sample chosen haphazardly has no firm-policy size to point to.
       const nonStatistical = wp.approach?.kind === 'non-statistical';
       parts.push(
@@ -57,7 +75,6 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
             : `${ev.deviations} deviation(s) in ${ev.sampleSize} items. The selection was haphazard, so sampling risk is not quantified and the result does not support the planned reliance without a larger, randomly selected sample or other evidence.`,
       );
     } else {
-      byRates = ev.supportedByRates;
       parts.push(
         `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctLimit(ev.upperLimit, ev.tolerableRate)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
       );
@@ -94,12 +111,12 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
   const out: FollowUp[] = [];
   const owner = wp.control?.owner;
   const failing = findings.filter((f) => !f.supportsReliance);
-  const anyIntentional = findings.some((f) => f.deviations.some((d) => d.result.intentional !== 'no'));
+  const anyIntentional = findings.some((f) => f.deviations.some((d) => escalates(d.result).intentional));
   for (const f of failing) {
     const ev = evaluation.attributes.find((e) => e.attributeId === f.attributeId)!;
     // Extending the sample answers sampling risk only: not an intentional or systemic cause.
-    const intentional = f.deviations.some((d) => d.result.intentional !== 'no');
-    const systemic = f.deviations.some((d) => d.result.pattern === 'systemic');
+    const intentional = f.deviations.some((d) => escalates(d.result).intentional);
+    const systemic = f.deviations.some((d) => escalates(d.result).systemic);
     if (!intentional && !systemic && !ev.illustrative && ev.extension !== null && ev.extension > 0) {
       out.push({
         kind: 'extend-sample',
@@ -152,11 +169,43 @@ export function proposeConclusion(
     findings,
     attributes: findings.map((f) => ({ attributeId: f.attributeId, supportsReliance: f.supportsReliance, reasoning: f.reasoning })),
     qualitative: {
-      intentionalFound: findings.some((f) => f.deviations.some((d) => d.result.intentional !== 'no')),
-      systemicFound: findings.some((f) => f.deviations.some((d) => d.result.pattern === 'systemic')),
+      intentionalFound: findings.some((f) => f.deviations.some((d) => escalates(d.result).intentional)),
+      systemicFound: findings.some((f) => f.deviations.some((d) => escalates(d.result).systemic)),
     },
     control: { supportsReliance: all, text },
     followUps: proposeFollowUps(wp, evaluation, findings),
     concludedAt: now.toISOString(),
   };
+}
+
+/**
+ * Where a recorded conclusion goes further than the evidence: an attribute or the control
+ * concluded as supporting reliance that the figures or the recorded causes do not support, or
+ * qualitative findings recorded against what the results say. Empty when it is consistent.
+ */
+export function conclusionProblems(wp: Workpaper): string[] {
+  if (!wp.conclusion || !wp.results) return [];
+  let proposal;
+  try {
+    proposal = proposeConclusion(wp, evaluate(wp));
+  } catch (e) {
+    if (e instanceof TolrateInputError) return [`cannot re-derive the conclusion: ${e.message}`];
+    throw e;
+  }
+  const diffs: string[] = [];
+  for (const f of proposal.findings) {
+    const r = wp.conclusion.attributes.find((a) => a.attributeId === f.attributeId);
+    if (!r) diffs.push(`${f.attributeId}: no recorded conclusion`);
+    else if (r.supportsReliance && !f.supportsReliance) {
+      diffs.push(`${f.attributeId}: concluded as supporting reliance, but the recomputed figures and recorded causes do not support it`);
+    }
+  }
+  const allAttr = wp.conclusion.attributes.every((a) => a.supportsReliance);
+  if (wp.conclusion.control.supportsReliance && !allAttr) diffs.push('the control is concluded as supporting reliance although an attribute does not');
+  if (wp.conclusion.control.supportsReliance && !proposal.control.supportsReliance) {
+    diffs.push('the control is concluded as supporting reliance, but the recomputed results do not support it');
+  }
+  if (wp.conclusion.qualitative.intentionalFound !== proposal.qualitative.intentionalFound) diffs.push(`recorded that intentional deviations were ${wp.conclusion.qualitative.intentionalFound ? '' : 'not '}found; the results say otherwise`);
+  if (wp.conclusion.qualitative.systemicFound !== proposal.qualitative.systemicFound) diffs.push(`recorded that systemic deviations were ${wp.conclusion.qualitative.systemicFound ? '' : 'not '}found; the results say otherwise`);
+  return diffs;
 }

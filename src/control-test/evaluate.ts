@@ -3,8 +3,9 @@
  * limit at the planned confidence, the achieved risk of overreliance at the tolerable rate, the
  * decision the rates alone give, and the extension that would be needed. Pure: no I/O.
  */
-import { extensionSize, overrelianceRisk, upperLimit } from '../stats/index.js';
+import { extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
 import { NoPracticalSizeError, TolrateInputError } from '../errors.js';
+import { progress, testedResults, worklist } from './worklist.js';
 import type {
   Attribute,
   AttributeEvaluation,
@@ -14,9 +15,6 @@ import type {
   Model,
   Workpaper,
 } from '../workpaper/schema.js';
-
-/** Tolerance when comparing an achieved risk with 1 − confidence (binary noise only). */
-export const RISK_TOLERANCE = 1e-12;
 
 export interface DeviationRecord {
   key: string;
@@ -53,9 +51,13 @@ export function isIllustrative(wp: Workpaper): boolean {
   return wp.approach?.kind === 'non-statistical' || wp.selection?.method === 'haphazard';
 }
 
-/** The items that make up the tested sample: sample items plus the spares that replaced voids. */
+/**
+ * The items that make up the tested sample: the worklist's sample items, and the spares that
+ * replaced voided ones, with their results. A result recorded for any other item is not counted
+ * (re-performance names it).
+ */
 export function testedItems(wp: Workpaper): ItemResult[] {
-  return (wp.results?.items ?? []).filter((i) => !i.void);
+  return testedResults(wp);
 }
 
 export function countResults(wp: Workpaper): AttributeCounts[] {
@@ -96,8 +98,8 @@ export function attributeFigures(args: {
   const common = { sampleSize: n, deviations: k, confidence, model, ...(populationSize !== undefined ? { populationSize } : {}) };
   const limit = upperLimit(common);
   const achievedRisk = overrelianceRisk({ sampleSize: n, deviations: k, tolerableRate, model, ...(populationSize !== undefined ? { populationSize } : {}) });
-  const beta = 1 - confidence;
-  const supportedByRates = achievedRisk <= beta + RISK_TOLERANCE;
+  // The one comparison of the engine (stats/within-risk.ts): risk ≤ β, an exact tie counting as achieved.
+  const supportedByRates = withinRisk(achievedRisk, 1 - confidence);
   let extension: number | null = 0;
   if (!supportedByRates) {
     if (k >= n) extension = null;
@@ -132,6 +134,11 @@ export function attributeFigures(args: {
 export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
   if (!wp.approach) throw new TolrateInputError('The workpaper has no approach: plan the test first.');
   if (!wp.results) throw new TolrateInputError('No results are recorded yet: run `tolrate record FILE` first.');
+  const next = worklist(wp).next;
+  if (next) {
+    const p = progress(wp);
+    throw new TolrateInputError(`Some items have no result yet (${p.total - p.recorded} of ${p.total}, from ${next.item.key}); record them before evaluating.`, 'RESULTS_INCOMPLETE');
+  }
   const counts = countResults(wp);
   const incomplete = counts.filter((c) => c.missing.length > 0);
   if (incomplete.length > 0) {
@@ -154,4 +161,36 @@ export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
     });
   });
   return { attributes, evaluatedAt: now.toISOString() };
+}
+
+/** The figures of a recorded evaluation that differ from a fresh one, each named (empty when they agree). */
+export function evaluationDifferences(recorded: Evaluation, fresh: Evaluation, show: { pct: (x: number) => string; exact: (x: number) => string }): string[] {
+  const diffs: string[] = [];
+  const close = (a: number, b: number) => Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(a), Math.abs(b));
+  for (const f of fresh.attributes) {
+    const r = recorded.attributes.find((x) => x.attributeId === f.attributeId);
+    const id = f.attributeId;
+    if (!r) {
+      diffs.push(`${id}: no recorded evaluation`);
+      continue;
+    }
+    if (r.sampleSize !== f.sampleSize) diffs.push(`${id}: recorded n = ${r.sampleSize}, the results give ${f.sampleSize}`);
+    if (r.deviations !== f.deviations) diffs.push(`${id}: recorded ${r.deviations} deviation(s), the results give ${f.deviations}`);
+    if (r.model !== f.model) diffs.push(`${id}: recorded model ${r.model}, the approach gives ${f.model}`);
+    if (!close(r.tolerableRate, f.tolerableRate)) diffs.push(`${id}: recorded tolerable rate ${show.pct(r.tolerableRate)}, the plan gives ${show.pct(f.tolerableRate)}`);
+    if (!close(r.confidence, f.confidence)) diffs.push(`${id}: recorded confidence ${show.pct(r.confidence)}, the plan gives ${show.pct(f.confidence)}`);
+    if (!close(r.sampleRate, f.sampleRate)) diffs.push(`${id}: recorded sample deviation rate ${show.exact(r.sampleRate)}, recomputed ${show.exact(f.sampleRate)}`);
+    if (!close(r.upperLimit, f.upperLimit)) diffs.push(`${id}: recorded upper deviation limit ${show.exact(r.upperLimit)}, recomputed ${show.exact(f.upperLimit)}`);
+    if (!close(r.achievedRisk, f.achievedRisk)) diffs.push(`${id}: recorded risk of overreliance ${show.exact(r.achievedRisk)}, recomputed ${show.exact(f.achievedRisk)}`);
+    if (r.supportedByRates !== f.supportedByRates) diffs.push(`${id}: recorded that the rates ${r.supportedByRates ? 'support' : 'do not support'} reliance; recomputed: they ${f.supportedByRates ? 'do' : 'do not'}`);
+    if (r.extension !== f.extension) diffs.push(`${id}: recorded extension ${r.extension ?? 'not practical'}, recomputed ${f.extension ?? 'not practical'}`);
+    if (r.illustrative !== f.illustrative) diffs.push(`${id}: recorded as ${r.illustrative ? '' : 'not '}illustrative, recomputed ${f.illustrative ? '' : 'not '}illustrative`);
+    if ((r.deviationsInPopulation ?? null) !== (f.deviationsInPopulation ?? null)) {
+      diffs.push(`${id}: recorded upper limit count ${r.deviationsInPopulation ?? '(none)'}, recomputed ${f.deviationsInPopulation ?? '(none)'}`);
+    }
+  }
+  for (const r of recorded.attributes) {
+    if (!fresh.attributes.some((f) => f.attributeId === r.attributeId)) diffs.push(`${r.attributeId}: evaluated, but the test has no such attribute`);
+  }
+  return diffs;
 }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { evaluate, proposeConclusion, attributeFigures } from '../../src/evaluation/index.js';
+import { evaluate, proposeConclusion, attributeFigures } from '../../src/control-test/index.js';
 import { newWorkpaper } from '../../src/workpaper/index.js';
 import type { ItemResult, Workpaper } from '../../src/workpaper/schema.js';
 
@@ -7,15 +7,20 @@ import type { ItemResult, Workpaper } from '../../src/workpaper/schema.js';
 function workpaper(opts: { n: number; devs: Array<Partial<{ intentional: 'no' | 'suspected' | 'yes'; pattern: 'isolated' | 'systemic' | 'unclear' }>>; kind?: 'statistical' | 'non-statistical'; voids?: number }): Workpaper {
   const wp = newWorkpaper('test');
   const items: ItemResult[] = [];
-  let seq = 1;
-  for (let i = 0; i < (opts.voids ?? 0); i++) {
-    items.push({ key: `V${i}`, seq: seq++, void: { reason: 'voided cheque, properly cancelled', replacedBy: `S${i}` }, attributes: {} });
+  // The selection: the voided items and the first n − voids tested items are the sample; the last
+  // `voids` tested items are the spares that replace the voided ones, in draw order.
+  const v = opts.voids ?? 0;
+  const keys = [...Array.from({ length: v }, (_, i) => `V${i}`), ...Array.from({ length: opts.n }, (_, i) => `K${i}`)];
+  const seqOf = new Map(keys.map((k, i) => [k, i + 1]));
+  const selected = keys.map((key, i) => ({ seq: i + 1, role: (i < opts.n ? 'sample' : 'spare') as 'sample' | 'spare', position: i, row: i + 2, key, values: {} }));
+  for (let i = 0; i < v; i++) {
+    items.push({ key: `V${i}`, seq: seqOf.get(`V${i}`)!, void: { reason: 'voided cheque, properly cancelled', replacedBy: keys[opts.n + i]! }, attributes: {} });
   }
   for (let i = 0; i < opts.n; i++) {
     const d = opts.devs[i];
     items.push({
       key: `K${i}`,
-      seq: seq++,
+      seq: seqOf.get(`K${i}`)!,
       attributes: {
         A1: d
           ? { result: 'deviation', found: 'no approval signature', cause: 'not-performed', intentional: d.intentional ?? 'no', pattern: d.pattern ?? 'isolated' }
@@ -31,6 +36,7 @@ function workpaper(opts: { n: number; devs: Array<Partial<{ intentional: 'no' | 
       kind: opts.kind ?? 'statistical', confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01, model: 'binomial', sizes: [],
       sampleSize: opts.n, rationale: 'test',
     },
+    selection: { method: 'random', algorithm: 'random-v1', seed: '1', sampleSize: opts.n, spares: v, items: selected, selectedAt: new Date().toISOString() },
     results: { source: 'interview', items, recordedAt: new Date().toISOString() },
   };
 }

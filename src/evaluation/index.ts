@@ -1,2 +1,0 @@
-export * from './evaluate.js';
-export * from './conclude.js';
