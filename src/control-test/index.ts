@@ -12,3 +12,4 @@ export * from './worklist.js';
 export * from './steps.js';
 export * from './labels.js';
 export * from './state.js';
+export * from './review.js';

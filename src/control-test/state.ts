@@ -11,6 +11,7 @@ import { evaluate, evaluationDifferences } from './evaluate.js';
 import { conclusionProblems } from './conclude.js';
 import { clearSteps, openSteps, STEP_LABELS, type StepName } from './steps.js';
 import { worklistProblems } from './worklist.js';
+import { notes, noteStatus } from './review.js';
 
 export interface TestState {
   open: StepName[];
@@ -51,6 +52,9 @@ export function testState(wp: Workpaper): TestState {
   for (const w of worklist) notFinal.push(`results and selection: ${w}`);
   for (const d of evaluation) notFinal.push(`evaluation: ${d}`);
   for (const d of conclusion) notFinal.push(`conclusion: ${d}`);
+  const unclear = notes(wp).filter((n) => noteStatus(n) !== 'cleared');
+  if (unclear.length > 0) notFinal.push(`review notes not cleared: ${unclear.map((n) => `${n.id} (${noteStatus(n)})`).join(', ')}`);
+  if (wp.signoffs?.preparer && !wp.signoffs.reviewer) notFinal.push('the reviewer has not signed off');
   return { open, integrity, worklist, evaluation, conclusion, notFinal, ...(fresh ? { fresh } : {}) };
 }
 

@@ -20,14 +20,17 @@ import { CAUSE_LABELS, SEVERITY_LABELS } from '../control-test/index.js';
 import { int, pctPlain, pctUp } from '../util/format.js';
 import { groupDigits } from '../population/index.js';
 import { ScriptedAsker, ScriptError, type ScriptAnswers } from './scripted.js';
-import { newSession, type Session } from './session.js';
-import { firstOpen, runOpenSteps, STEPS } from './flow.js';
+import { newSession, openSession, type Session } from './session.js';
+import { firstOpen, runOpenSteps, runStep, STEPS } from './flow.js';
+import { answerOpenNotes, reviewSitting } from './review.js';
 import { evaluationLines } from './conclude.js';
 import { defaultSheetName } from './plan-selection.js';
 import { CAUTION, wrap } from './show.js';
 
 export const SCENARIOS = ['main', 'small'] as const;
 export type Scenario = (typeof SCENARIOS)[number];
+
+const Answers = z.record(z.string(), z.union([z.string(), z.number(), z.boolean(), z.null(), z.array(z.union([z.string(), z.number(), z.boolean(), z.null()]))]));
 
 const ScenarioFile = z.object({
   $comment: z.string().optional(),
@@ -39,7 +42,14 @@ const ScenarioFile = z.object({
   clock: z.iso.datetime().optional(),
   workpaper: z.string().regex(/\.tolrate\.json$/, 'must end in .tolrate.json'),
   copy: z.array(z.string().min(1)),
-  answers: z.record(z.string(), z.union([z.string(), z.number(), z.boolean(), z.null(), z.array(z.union([z.string(), z.number(), z.boolean(), z.null()]))])),
+  answers: Answers,
+  /**
+   * A scripted review after the preparer's sign-off: the reviewer's first sitting (notes raised),
+   * the preparer's answers (one by changing the record, then concluding and signing again), and
+   * the reviewer's second sitting (notes cleared, sign-off). Questions not in a script take
+   * their default.
+   */
+  review: z.object({ reviewer: Answers, preparer: Answers, reviewerAgain: Answers }).optional(),
 });
 export type ScenarioFile = z.infer<typeof ScenarioFile>;
 
@@ -159,9 +169,27 @@ async function runLocked(ctx: CommandContext, o: DemoOptions, sc: ScenarioFile, 
   const got = await runOpenSteps(s, steps);
   const left = firstOpen(s.wp, steps);
   if (got !== 'done' || left) throw new ScriptError(`The demo script stopped before the end (at ${left ?? 'an unknown step'}).`);
+  let wp = s.wp;
+  if (sc.review && !o.planOnly) {
+    const sitting = async (answers: Record<string, unknown>): Promise<Session> => {
+      const a = new ScriptedAsker(answers as ScriptAnswers, { defaults: true, onAsk: (r) => sink.write(`? ${r.message} ${r.answer === '' ? '(Enter)' : r.answer}${r.refused ? `\n  > ${r.refused}` : ''}\n`) });
+      const opened = await openSession({ asker: a, out: sink, path: wpPath, cwd: out, toolVersion: packageVersion(), now });
+      if (!opened) throw new ScriptError('The demo could not open its own workpaper.');
+      return opened;
+    };
+    const r1 = await sitting(sc.review.reviewer);
+    await reviewSitting(r1);
+    const p = await sitting(sc.review.preparer);
+    await answerOpenNotes(p, (st) => runStep(p, st));
+    await runOpenSteps(p, STEPS);
+    const r2 = await sitting(sc.review.reviewerAgain);
+    await reviewSitting(r2);
+    wp = r2.wp;
+    if (!wp.signoffs?.reviewer) throw new ScriptError('The demo review did not end with the reviewer\'s sign-off.');
+  }
   files.unshift({ what: 'workpaper', path: wpPath });
   if (s.wp.selection?.fieldworkSheet) files.splice(1, 0, { what: 'fieldwork sheet (as written at selection)', path: join(out, s.wp.selection.fieldworkSheet) });
-  return { workpaper: s.wp, workpaperPath: wpPath, files, asker, echoed, now };
+  return { workpaper: wp, workpaperPath: wpPath, files, asker, echoed, now };
 }
 
 /** The short account of the demo run. */
@@ -235,6 +263,25 @@ export function narrative(wp: Workpaper, title: string): string[] {
   }
   const so = wp.signoffs?.preparer;
   if (so) L.push(`  Prepared by ${so.name} on ${so.date}.`);
+  const notes = wp.review?.notes ?? [];
+  if (notes.length > 0 || wp.signoffs?.reviewer) {
+    L.push('', 'Review:');
+    for (const n of notes) {
+      const raised = n.thread[0]!;
+      const answer = n.thread.find((e) => e.kind === 'answered');
+      L.push(...wrap(`${n.id} (${n.section}${n.item ? `, ${n.item}` : ''}), raised by ${raised.by}: ${raised.text ?? ''}`, 92, '  '));
+      if (answer) L.push(...wrap(`Answered by ${answer.by}${answer.changedRecord ? ', with a change to the record' : ''}: ${answer.text ?? ''}`, 92, '    '));
+      L.push(`    ${n.thread[n.thread.length - 1]!.kind === 'cleared' ? 'Cleared.' : 'Not cleared.'}`);
+    }
+    for (const a of wp.amendments ?? []) {
+      // The changes made, then how many follow from them (the evaluation and conclusion made again).
+      const made = a.changes.filter((c) => !/^(evaluation|conclusion)\b/.test(c.path));
+      const follow = a.changes.length - made.length;
+      L.push(...wrap(`Amendment after sign-off by ${a.by} (${a.role}): ${a.why}; ${made.map((c) => `${c.path}: ${JSON.stringify(c.old)} -> ${JSON.stringify(c.new)}`).join('; ')}${follow ? ` (and ${follow} change(s) to the evaluation and conclusion that follow from it)` : ''}; sign-offs cleared: ${a.cleared.join(', ') || 'none'}.`, 92, '  '));
+    }
+    const rv = wp.signoffs?.reviewer;
+    if (rv) L.push(`  Reviewed and signed off by ${rv.name} on ${rv.date}.`);
+  }
   return L;
 }
 

@@ -4,7 +4,7 @@
  * is answered, so an interruption at any question leaves the last answered step on file.
  */
 import type { Workpaper } from '../workpaper/schema.js';
-import { clearSteps, dependents, firstOpen, isAnswered, recordingComplete, sameAnswer, STEP_LABELS, STEP_MEMBERS, STEPS, type StepName } from '../control-test/index.js';
+import { clearSteps, reviewStatus, dependents, firstOpen, isAnswered, recordingComplete, sameAnswer, STEP_LABELS, STEP_MEMBERS, STEPS, type StepName } from '../control-test/index.js';
 import type { Session } from './session.js';
 import { askAttributes, askControl, askEngagement } from './plan-basics.js';
 import { askApproach } from './plan-approach.js';
@@ -97,7 +97,7 @@ export async function chooseRevisit(s: Session, steps: readonly StepName[], id: 
   return pick === 'none' ? undefined : pick;
 }
 
-/** Where the test stands, one line per step. */
+/** Where the test stands, one line per step, and the review. */
 export function statusLines(wp: Workpaper): string[] {
-  return STEPS.map((st) => `  ${isAnswered(wp, st) ? '[done]' : '[    ]'} ${STEP_LABELS[st]}`);
+  return [...STEPS.map((st) => `  ${isAnswered(wp, st) ? '[done]' : '[    ]'} ${STEP_LABELS[st]}`), `  Review: ${reviewStatus(wp).label}`];
 }

@@ -34,7 +34,7 @@ export async function storeResult(s: Session, r: ItemResult, source: 'interview'
   }
   if (s.wp.evaluation || s.wp.conclusion) {
     s.wp = clearSteps(s.wp, ['conclude']);
-    s.print('  The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).');
+    s.print(...wrap('The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).', 92, '  '));
   }
   s.wp = withResult(s.wp, r, { source, ...(sheetPath ? { sheetPath } : {}), at: s.now() });
   if (save) await s.save('record');
@@ -309,7 +309,8 @@ export async function changeResults(s: Session): Promise<'done' | 'stopped'> {
           name: `${r.key}: ${Object.entries(r.attributes).map(([id, x]) => `${id} ${x.result}`).join(', ')}`,
         })),
       ],
-      default: '',
+      // Answering a review note on one item: that item is offered first.
+      default: i === 1 && s.focusItem && tested.some((r) => r.key === s.focusItem) ? s.focusItem : '',
     });
     if (pick === '') return 'done';
     const wl = worklist(s.wp);

@@ -13,10 +13,16 @@ import { readRegularText } from '../io/read.js';
 import { removeTempFiles, resolveTarget, staleTempFiles } from '../io/write.js';
 import { loadWorkpaperText, newWorkpaper, saveWorkpaper, WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import { verifyLog } from '../workpaper/log.js';
-import type { Workpaper } from '../workpaper/schema.js';
+import type { Amendment, Role, Workpaper } from '../workpaper/schema.js';
+
+/** The workpaper as its change log says it is (what was signed), to name an outside edit's changes. */
+function replayed(wp: Workpaper): Workpaper {
+  return { ...(replay(wp.log) as unknown as Workpaper), log: wp.log };
+}
 import { isStop, type Asker } from './asker.js';
 import { requiredText } from './parse.js';
-import { afterOutsideEdit } from '../control-test/index.js';
+import { afterOutsideEdit, recordChanges, signedRoles } from '../control-test/index.js';
+import { replay } from '../workpaper/log.js';
 import { RememberingAsker } from './remembering.js';
 
 export interface SessionOptions {
@@ -71,6 +77,12 @@ export class Session {
   readonly invocation: string;
   /** The step being asked, for keeping its answers if the user stops. */
   currentStep: string | undefined;
+  /** The item a review note being answered is on: offered first when an item is to be changed. */
+  focusItem: string | undefined;
+  /** Who answers, in which role: the preparer (default) or, in a review, the reviewer. */
+  actor: { name: string; role: Role } | undefined;
+  /** A change after a sign-off: the record as signed, why, who, and the sign-offs it cleared. */
+  private amendment: { base: Workpaper; why: string; cleared: Role[]; index: number | undefined } | undefined;
   /** The answerer, remembering the answers given since the last save (kept if the user stops). */
   private readonly remembering: RememberingAsker;
   private pendingReasons: string[] = [];
@@ -107,7 +119,7 @@ export class Session {
 
   /** `tolrate record FILE`, as the user started tolrate. */
   command(sub: string, file: string): string {
-    return `${this.invocation} ${sub}${file ? ` ${/\s/.test(file) ? `"${file}"` : file}` : ''}`.replace(/\s+$/, '');
+    return [this.invocation, sub, file ? (/\s/.test(file) ? `"${file}"` : file) : ''].filter((x) => x !== '').join(' ');
   }
 
   /**
@@ -187,9 +199,33 @@ export class Session {
     this.pendingReasons.push(reason);
   }
 
-  /** Who is answering: the preparer once the engagement is known. */
+  /** Who is answering: the preparer once the engagement is known (or the reviewer in a review). */
   get by(): string {
-    return this.wp.engagement?.preparer ?? 'tolrate';
+    return this.actor?.name ?? this.wp.engagement?.preparer ?? 'tolrate';
+  }
+
+  /** The role of who is answering. */
+  get role(): Role {
+    return this.actor?.role ?? 'preparer';
+  }
+
+  /**
+   * The workpaper as the next save writes it: without the answers of an earlier stopped step
+   * (what was asked until now is saved), and with the amendment of this sitting, holding every
+   * change to the record since the sign-off.
+   */
+  private toSave(): Workpaper {
+    const { unfinishedStep: _u, ...current } = this.wp;
+    let next = current as Workpaper;
+    if (this.amendment) {
+      const a = this.amendment;
+      const amendment: Amendment = { at: this.now().toISOString(), by: this.by, role: this.role, why: a.why, cleared: a.cleared, changes: recordChanges(a.base, next) };
+      const list = [...(next.amendments ?? [])];
+      if (a.index === undefined) a.index = list.length;
+      list[a.index] = amendment;
+      next = { ...next, amendments: list };
+    }
+    return next;
   }
 
   /**
@@ -203,14 +239,13 @@ export class Session {
     for (;;) {
       const reason = this.pendingReasons.length > 0 ? this.pendingReasons.join(' ') : undefined;
       const before = this.wp.log.length;
-      // What was asked until now is saved: answers of an earlier stopped step are no longer needed.
-      const { unfinishedStep: _u, ...current } = this.wp;
       try {
-        this.wp = saveWorkpaper(this.path, current as Workpaper, {
+        this.wp = saveWorkpaper(this.path, this.toSave(), {
           by,
           step,
           at: this.now(),
           ...(reason ? { reason } : {}),
+          ...(by !== 'tolrate' ? { role: this.role } : {}),
           beforeWrite: () => this.checkDisk(this.path, this.diskHash),
           afterWrite: (text) => {
             this.diskHash = sha256(text);
@@ -289,12 +324,12 @@ export class Session {
       lock = acquireLock(to, this.now());
       const reason = this.pendingReasons.length > 0 ? this.pendingReasons.join(' ') : undefined;
       let text = '';
-      const { unfinishedStep: _u, ...current } = this.wp;
-      const wp = saveWorkpaper(to, current as Workpaper, {
+      const wp = saveWorkpaper(to, this.toSave(), {
         by,
         step,
         at: this.now(),
         ...(reason ? { reason } : {}),
+        ...(by !== 'tolrate' ? { role: this.role } : {}),
         beforeWrite: () => this.checkDisk(to, undefined),
         afterWrite: (t) => {
           text = t;
@@ -345,6 +380,7 @@ export class Session {
       parse: requiredText('The reason'),
     });
     this.addReason(`Edited after sign-off: ${reason}`);
+    this.amendment = { base: this.wp, why: reason, cleared: signedRoles(this.wp), index: undefined };
     const { signoffs: _s, ...rest } = this.wp;
     this.wp = rest as Workpaper;
   }
@@ -380,8 +416,12 @@ export async function openSession(o: Omit<SessionOptions, 'wp' | 'loadedText'> &
   s.addReason(`Changes made outside tolrate accepted: ${reason}`);
   // The record as it now is decides: evaluate again, clear the sign-offs, keep a conclusion only
   // while the new figures bear it out.
+  const cleared = signedRoles(s.wp);
   const after = afterOutsideEdit(s.wp, s.now());
-  s.wp = after.wp;
+  if (cleared.length > 0) {
+    const amendments = [...(after.wp.amendments ?? []), { at: s.now().toISOString(), by: s.by, role: s.role, why: `Changes made outside tolrate accepted: ${reason}`, cleared, changes: recordChanges(replayed(wp), after.wp) }];
+    s.wp = { ...after.wp, amendments };
+  } else s.wp = after.wp;
   if (after.notes.length > 0) {
     s.print(...after.notes.map((n) => `  Because of the change: ${n}.`));
     s.addReason(`Because of the change: ${after.notes.join('; ')}.`);

@@ -14,7 +14,10 @@ import { chooseRevisit, firstOpen, isAnswered, PLAN_STEPS, runOpenSteps, runStep
 import { loadPolicy } from './policy.js';
 import { requiredText } from './parse.js';
 import { progress } from './record.js';
+import { answerOpenNotes, reviewSitting } from './review.js';
+import { reviewStatus } from '../control-test/index.js';
 import type { Session } from './session.js';
+import { wrap } from './show.js';
 
 export interface StageOptions extends InterviewOptions {
   file?: string | undefined;
@@ -85,13 +88,22 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     s.print(`${shown(ctx, path)}: ${s.wp.control?.id ?? 'a test'}${s.wp.engagement ? `, ${s.wp.engagement.entity}` : ''}`);
     s.print(...statusLines(s.wp));
   }
+  // The reviewer's open notes come first.
+  await answerOpenNotes(s, (st) => runStep(s, st));
   return s;
 }
 
 function next(ctx: CommandContext, s: Session): void {
   const st = firstOpen(s.wp);
   const f = shown(ctx, s.path);
-  if (st === undefined) s.print('', `The test is complete and signed off. Write the memo with: ${s.command('memo', f)}`);
+  if (st === undefined) {
+    const rv = reviewStatus(s.wp);
+    if (rv.stage === 'reviewed') s.print('', `The test is complete, reviewed and signed off. Write the memo with: ${s.command('memo', f)}`);
+    else {
+      s.print('', ...wrap(`The test is complete and signed off by the preparer; review: ${rv.label}.`));
+      s.print(...wrap(`The reviewer reviews it with: ${s.command('review', f)} (until the review is signed off, the memo is a DRAFT: ${s.command('memo', f)}).`));
+    }
+  }
   else if (st === 'record') {
     const sheet = s.wp.selection?.fieldworkSheet;
     s.print(
@@ -193,6 +205,29 @@ export async function wholeInterview(ctx: CommandContext, asker: Asker, o: Stage
       }
     }
     next(ctx, s);
+    return 0;
+  });
+}
+
+/** `tolrate review FILE`: the reviewer's sitting. */
+export async function reviewInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
+  return guarded(async (hold) => {
+    const path = workpaperPath(ctx.cwd, o.file ?? '');
+    const s = await sessionFor(ctx, asker, path, { ...o, mustExist: true, hold });
+    if (s && 'readOnly' in s) {
+      // Another session has it open: show where the test stands, save nothing.
+      const wp = loadWorkpaper(path);
+      ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
+      ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
+      return 0;
+    }
+    if (!s) {
+      ctx.stdout.write('Nothing was changed.\n');
+      return 1;
+    }
+    s.print(`${shown(ctx, path)}: ${s.wp.control?.id ?? 'a test'}${s.wp.engagement ? `, ${s.wp.engagement.entity}` : ''}`);
+    s.print(...statusLines(s.wp));
+    await reviewSitting(s);
     return 0;
   });
 }

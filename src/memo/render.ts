@@ -33,6 +33,7 @@ import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { chartSvg, renderPng, type ChartRow } from './chart.js';
 import { exact, type MemoModel } from './model.js';
 import { fill, type MemoTemplate } from './template.js';
+import { REVIEW_SECTION_LABELS } from '../control-test/index.js';
 
 const PAPER = {
   A4: { width: 11906, height: 16838, margin: 1134 },
@@ -310,7 +311,7 @@ async function titleBlock(c: Ctx): Promise<void> {
     [L.reference, b.v(values.reference)],
     [L.control, wp.control ? `${wp.control.id} — ${wp.control.description}` : L.notRecorded],
     [L.preparedBy, `${b.v(values.preparer)}\n${wp.signoffs?.preparer ? `${L.date}: ${wp.signoffs.preparer.date}` : signedLine(undefined)}`],
-    [L.reviewedBy, `${b.v(values.reviewer)}\n${wp.signoffs?.reviewer ? `${L.date}: ${wp.signoffs.reviewer.date}` : signedLine(undefined)}`],
+    [L.reviewedBy, `${b.v(wp.signoffs?.reviewer?.name ?? values.reviewer)}\n${wp.signoffs?.reviewer ? `${L.date}: ${wp.signoffs.reviewer.date}` : signedLine(undefined)}`],
     [L.status, { text: m.draft ? L.statusDraft : L.statusFinal, bold: m.draft }],
   ]);
   b.ps(T.intro);
@@ -732,8 +733,8 @@ async function signoffSection(c: Ctx): Promise<void> {
                 }),
             ),
           }),
-          line(L.preparedBy, wp.engagement?.preparer, wp.signoffs?.preparer?.date),
-          line(L.reviewedBy, wp.engagement?.reviewer, wp.signoffs?.reviewer?.date),
+          line(L.preparedBy, wp.signoffs?.preparer?.name ?? wp.engagement?.preparer, wp.signoffs?.preparer?.date),
+          line(L.reviewedBy, wp.signoffs?.reviewer?.name ?? wp.engagement?.reviewer, wp.signoffs?.reviewer?.date),
         ],
       }),
     );
@@ -865,6 +866,70 @@ async function appendixReperformSection(c: Ctx): Promise<void> {
 
 }
 
+/** A value of an amendment as text (a whole object shown as its JSON, shortened). */
+function valueText(v: unknown): string {
+  if (v === undefined) return '—';
+  if (typeof v === 'string') return v;
+  const t = JSON.stringify(v);
+  return t.length > 300 ? `${t.slice(0, 297)}...` : t;
+}
+
+function when(iso: string): string {
+  return iso.replace('T', ' ').replace(/(\.\d+)?Z$/, ' UTC');
+}
+
+async function amendmentsSection(c: Ctx): Promise<void> {
+  const { b, L, T, wp } = c;
+  const list = wp.amendments ?? [];
+  if (list.length === 0) {
+    b.ps(T.amendmentsNone);
+    return;
+  }
+  b.ps(T.amendmentsLead);
+  list.forEach((a, i) => {
+    b.p(`**${i + 1}. ${when(a.at)}, ${a.by} (${a.role}).** ${L.why}: ${a.why}. ${L.clearedSignoffs}: ${a.cleared.length ? a.cleared.join(', ') : L.none}.`, { keepNext: true });
+    if (a.changes.length === 0) b.note(L.none);
+    else {
+      b.table(
+        [
+          { header: L.field, w: 2.2 },
+          { header: L.before, w: 2.1 },
+          { header: L.after, w: 2.1 },
+        ],
+        a.changes.map((x) => [{ text: x.path, mono: true }, valueText(x.old), valueText(x.new)]),
+        { size: 16 },
+      );
+    }
+  });
+}
+
+async function appendixReviewSection(c: Ctx): Promise<void> {
+  const { b, L, T, wp } = c;
+  const notes = wp.review?.notes ?? [];
+  for (const s of wp.review?.sittings ?? []) {
+    if (s.warning) b.p(`**${L.reviewerWarning}** (${s.by}, ${when(s.at)}): ${s.warning}`);
+  }
+  if (notes.length === 0) {
+    b.ps(T.reviewNone);
+    return;
+  }
+  b.ps(T.reviewLead);
+  const kind = { raised: L.noteRaised, answered: L.noteAnswered, reopened: L.noteReopened, cleared: L.noteCleared } as const;
+  b.table(
+    [
+      { header: L.note, w: 0.6 },
+      { header: L.reviewSection, w: 1.4 },
+      { header: L.thread, w: 4.5 },
+    ],
+    notes.map((n) => [
+      { text: n.id, bold: true },
+      `${REVIEW_SECTION_LABELS[n.section]}${n.item ? `\n${n.item}` : ''}${n.mustClear ? `\n(${L.mustClear})` : ''}`,
+      n.thread.map((e) => `${e.kind === 'answered' && e.changedRecord ? L.noteAnsweredChanged : kind[e.kind]} — ${e.by} (${e.role}), ${when(e.at)}${e.text ? `: ${e.text}` : ''}`).join('\n'),
+    ]),
+    { size: 16 },
+  );
+}
+
 /**
  * The numbered sections of the memo, in order: a section's number is its place in this list, so
  * a section added or moved renumbers the rest (and the texts that point to one).
@@ -883,12 +948,14 @@ const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings'];
   { heading: 'severity', render: severitySection },
   { heading: 'responsibility', render: responsibilitySection },
   { heading: 'signoff', render: signoffSection },
+  { heading: 'amendments', render: amendmentsSection },
 ];
 
 /** The appendices, unnumbered, each on a new page. */
 const APPENDICES: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings']; render: (c: Ctx) => Promise<void> }> = [
   { heading: 'appendixItems', render: appendixItemsSection },
   { heading: 'appendixReperform', render: appendixReperformSection },
+  { heading: 'appendixReview', render: appendixReviewSection },
 ];
 
 /** The number of a section, as printed (or its heading when headings are not numbered). */

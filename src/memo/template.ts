@@ -207,6 +207,8 @@ export const MemoFile = z.strictObject({
     ...(Object.fromEntries(HEADINGS.map((k) => [k, para])) as Record<(typeof HEADINGS)[number], z.ZodString>),
     // Added after the first release: a firm's copy without it gets the default.
     appendixItemsList: para.default('A.1 Items and their results'),
+    amendments: para.default('Amendments after sign-off'),
+    appendixReview: para.default('Appendix C — Review notes'),
   }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
@@ -223,10 +225,30 @@ export const MemoFile = z.strictObject({
     severities: labelsOf(SEVERITIES).default(SEVERITY_LABELS),
     followUpKinds: labelsOf(FOLLOW_UP_KINDS).default(FOLLOW_UP_LABELS),
     roles: labelsOf(['sample', 'spare'] as const),
+    // Added with the review: a firm's copy without them gets these.
+    note: para.default('Note'),
+    reviewSection: para.default('On'),
+    thread: para.default('Thread'),
+    why: para.default('Why'),
+    field: para.default('Field'),
+    before: para.default('Before'),
+    after: para.default('After'),
+    clearedSignoffs: para.default('Sign-offs cleared'),
+    reviewerWarning: para.default('Warning recorded at review'),
+    noteRaised: para.default('raised'),
+    noteAnswered: para.default('answered'),
+    noteAnsweredChanged: para.default('answered, with a change to the record'),
+    noteReopened: para.default('re-opened'),
+    noteCleared: para.default('cleared'),
+    mustClear: para.default('must be cleared before sign-off'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
     reperformManual: paras,
+    amendmentsNone: para.default('No change was made to the record after a sign-off.'),
+    amendmentsLead: para.default('Each change made to the record after a sign-off: who made it, in which role, when and why, and every value before and after. A change to the record clears both sign-offs; the test is signed again afterwards.'),
+    reviewNone: para.default('No review notes were raised.'),
+    reviewLead: para.default('The reviewer\'s notes, each with its whole thread: raised, answered, re-opened and cleared, with who and when.'),
   }),
 });
 

@@ -86,6 +86,8 @@ export interface SaveMeta {
   by: string;
   /** The interview step or command, e.g. "plan.engagement", "record", "conclude". */
   step: string;
+  /** In which role `by` makes the change (absent for what the tool computes). */
+  role?: 'preparer' | 'reviewer';
   /** Required by the interview when a signed-off workpaper is edited. */
   reason?: string;
   at?: Date;
@@ -109,7 +111,7 @@ export function saveWorkpaper(path: string, wp: Workpaper, meta: SaveMeta): Work
   const at = (meta.at ?? new Date()).toISOString();
   const before = replay(wp.log);
   const checked = parseWorkpaper(JSON.parse(JSON.stringify({ ...wp, updatedAt: at })) as unknown, 'the workpaper being saved');
-  const entry = nextEntry(wp.log, before, checked, { by: meta.by, step: meta.step, reason: meta.reason, at });
+  const entry = nextEntry(wp.log, before, checked, { by: meta.by, step: meta.step, reason: meta.reason, at, ...(meta.role ? { role: meta.role } : {}) });
   // Nothing but the time of saving would change: write nothing (the first save always writes).
   if (!entry || (wp.log.length > 0 && entry.changes.every((c) => c.path.length === 1 && c.path[0] === 'updatedAt'))) return wp;
   const saved: Workpaper = { ...checked, log: [...wp.log, entry] };

@@ -138,7 +138,7 @@ export function nextEntry(
   log: readonly LogEntry[],
   before: object,
   after: object,
-  meta: { by: string; step: string; reason?: string; at?: string },
+  meta: { by: string; step: string; reason?: string; at?: string; role?: 'preparer' | 'reviewer' },
 ): LogEntry | undefined {
   const changes = diff(content(before), content(after));
   if (changes.length === 0) return undefined;
@@ -147,6 +147,7 @@ export function nextEntry(
     seq: (prev?.seq ?? 0) + 1,
     at: meta.at ?? new Date().toISOString(),
     by: meta.by,
+    ...(meta.role ? { role: meta.role } : {}),
     step: meta.step,
     ...(meta.reason ? { reason: meta.reason } : {}),
     changes,

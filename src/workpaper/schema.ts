@@ -308,6 +308,48 @@ export const Conclusion = z.object({
 
 export const SignOff = z.object({ name: text, date: isoDate });
 
+export const ROLES = ['preparer', 'reviewer'] as const;
+export const REVIEW_SECTIONS = ['engagement', 'attributes', 'population', 'approach', 'selection', 'results', 'evaluation', 'conclusion', 'severity'] as const;
+
+/** One event in a review note's thread. */
+export const NoteEvent = z.object({
+  kind: z.enum(['raised', 'answered', 'reopened', 'cleared']),
+  by: text,
+  role: z.enum(ROLES),
+  at: isoTime,
+  /** The note, the answer, or the further comment. */
+  text: optText,
+  /** The preparer changed the record to answer it. */
+  changedRecord: z.boolean().optional(),
+});
+
+export const ReviewNote = z.object({
+  id: z.string().regex(/^N\d+$/, 'must be N1, N2, ...'),
+  section: z.enum(REVIEW_SECTIONS),
+  /** The item the note is on (its key), when it is on one item. */
+  item: z.string().optional(),
+  /** Must be cleared before the reviewer signs off. */
+  mustClear: z.boolean(),
+  thread: z.array(NoteEvent).min(1),
+});
+
+/** A change to the record after a sign-off: who, in which role, when, why, and every old -> new value. */
+export const Amendment = z.object({
+  at: isoTime,
+  by: text,
+  role: z.enum(ROLES),
+  why: text,
+  /** The sign-offs it cleared. */
+  cleared: z.array(z.enum(ROLES)),
+  changes: z.array(z.object({ path: z.string(), old: z.unknown().optional(), new: z.unknown().optional() })),
+});
+
+export const Review = z.object({
+  notes: z.array(ReviewNote).default([]),
+  /** Each sitting of a reviewer, with any warning recorded (e.g. the reviewer is the preparer). */
+  sittings: z.array(z.object({ by: text, at: isoTime, warning: optText })).default([]),
+});
+
 export const MemoRecord = z.object({
   /** SHA-256 of the DOCX file as written. */
   sha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal'),
@@ -335,6 +377,8 @@ export const LogEntry = z.object({
   seq: positive,
   at: isoTime,
   by: z.string(),
+  /** In which role `by` made the change (the tool itself for computed steps: absent). */
+  role: z.enum(ROLES).optional(),
   step: z.string(),
   reason: optText,
   changes: z.array(LogChange),
@@ -370,6 +414,10 @@ export const Workpaper = z.object({
   unfinishedStep: z
     .object({ step: z.string(), answers: z.record(z.string(), z.union([z.string(), z.boolean()])) })
     .optional(),
+  /** The review: the reviewer's notes with their threads, and the reviewer's sittings. */
+  review: Review.optional(),
+  /** Changes made after a sign-off, each with who, when, why and every old -> new value. */
+  amendments: z.array(Amendment).optional(),
   /** Every memo written from this workpaper: its SHA-256, when, and the state it shows. */
   memos: z.array(MemoRecord).optional(),
   log: z.array(LogEntry).default([]),
@@ -418,6 +466,11 @@ export type FollowUp = z.infer<typeof FollowUp>;
 export type Conclusion = z.infer<typeof Conclusion>;
 export type LogEntry = z.infer<typeof LogEntry>;
 export type MemoRecord = z.infer<typeof MemoRecord>;
+export type ReviewNote = z.infer<typeof ReviewNote>;
+export type NoteEvent = z.infer<typeof NoteEvent>;
+export type Amendment = z.infer<typeof Amendment>;
+export type Role = (typeof ROLES)[number];
+export type ReviewSection = (typeof REVIEW_SECTIONS)[number];
 export type LogChange = z.infer<typeof LogChange>;
 export type Model = (typeof MODELS)[number];
 export type Frequency = (typeof FREQUENCIES)[number];

@@ -87,7 +87,11 @@ describe('tolrate demo', () => {
     expect(out.replace(/\s+/g, ' ')).toContain('The binomial model would need 78 (1 more than the exact size for this population)');
     expect(out).toMatch(/Selection: random, seed 20260112; 77 items and 5 spares\. First items: PI-\d+/);
     expect(out).toMatch(/A1 PI-\d+: Approved in the system on/);
-    expect(out).toMatch(/\(wrong or unauthorised performer; intentional: no; unclear\)/);
+    // The cause as changed in the scripted review (note N2): the approval limit was not enforced.
+    expect(out).toMatch(/\(system or configuration; intentional: no; unclear\)/);
+    expect(out).toMatch(/N2 \(results, PI-253141\), raised by C\. Lindqvist/);
+    expect(out).toMatch(/Answered by N\. Oduya, with a change to the record/);
+    expect(out).toMatch(/Reviewed and signed off by C\. Lindqvist on 2026-01-30\./);
     expect(out.replace(/\s+/g, ' ')).toContain('The results do not support the planned reliance on P2P-07 (A1).');
     expect(out).toMatch(/memo\s+out\/supplier-invoice-approval\.memo\.docx/);
     expect(out).toContain('The tool computes.');

@@ -38,7 +38,7 @@ describe('tolrate (start screen)', () => {
     const wp = loadWorkpaper(join(dir, 'payments.tolrate.json'));
     expect(wp.conclusion!.control.supportsReliance).toBe(true);
     expect(wp.signoffs!.preparer!.name).toBe('T. Preparer');
-    expect(ctx2.text()).toContain('Write the memo with: tolrate memo payments.tolrate.json');
+    expect(ctx2.text()).toContain('The reviewer reviews it with: tolrate review payments.tolrate.json');
   });
 
   it('the calculators ask their inputs with the same checks and print the calculator\'s table', async () => {

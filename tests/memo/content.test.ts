@@ -18,7 +18,7 @@ let f: Fixture;
 let doc: DocxText;
 
 beforeAll(async () => {
-  f = buildFixture({ variant: 'not-supported' });
+  f = buildFixture({ variant: 'not-supported', reviewerSigned: true });
   doc = await readDocx(await renderMemo(f.wp, { workpaperPath: f.path }));
 });
 
@@ -162,8 +162,8 @@ describe('the 95% / 6% / 1% test with 2 deviations in 78 (not supported)', () =>
     expect(text).toContain('2025-01-01 – 2025-12-31');
     expect(text).toContain(SCENARIO.reference);
     expect(text).toContain(`${SCENARIO.preparer}\nDate: 2026-02-12`);
-    // Reviewer has not signed: a blank line to sign.
-    expect(text).toContain(`${SCENARIO.reviewer}\nDate: ____________  (not yet signed)`);
+    // Reviewed and signed: the reviewer's name and date.
+    expect(text).toContain(`${SCENARIO.reviewer}\nDate: 2026-02-20`);
     expect(text).toMatch(/AU-C 530, ISA 530 or AS 2315/);
     expect(text).toContain('the practitioner');
     expect(text).toContain('tolrate reperform C-310.tolrate.json');

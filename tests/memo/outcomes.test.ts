@@ -12,7 +12,7 @@ async function memoOf(o: FixtureOptions) {
 
 describe('a supported statistical test', () => {
   it('says the results support the planned reliance, with no caveat and no DRAFT', async () => {
-    const { f, doc } = await memoOf({ variant: 'supported' });
+    const { f, doc } = await memoOf({ variant: 'supported', reviewerSigned: true });
     expect(f.wp.conclusion!.control.supportsReliance).toBe(true);
     expect(doc.text).toContain('The results support the planned reliance on control AP-03 for the period 2025-01-01 – 2025-12-31.');
     expect(doc.text).toContain('For every attribute the risk of overreliance is at most 5.0%');

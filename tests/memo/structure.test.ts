@@ -22,7 +22,7 @@ describe('the memo document', () => {
   it('uses Heading styles for its sections and the Title style for its title', () => {
     const h1 = doc.xml.match(/<w:pStyle w:val="Heading1"\/>/g) ?? [];
     const h2 = doc.xml.match(/<w:pStyle w:val="Heading2"\/>/g) ?? [];
-    expect(h1.length).toBe(15); // 13 numbered sections + 2 appendices
+    expect(h1.length).toBe(17); // 14 numbered sections (amendments after sign-off the last) + 3 appendices
     expect(h2.length).toBeGreaterThanOrEqual(8);
     expect(doc.xml).toContain('<w:pStyle w:val="Title"/>');
     expect(doc.paragraphs).toContain('1. Objective and control');

@@ -1,4 +1,7 @@
 import { readdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { firstOpen, reviewStatus, STEP_LABELS } from '../../control-test/index.js';
+import { loadWorkpaper } from '../../workpaper/file.js';
 import { parseFlags, str } from '../args.js';
 import type { CommandContext, CommandRun } from '../types.js';
 import type { Asker } from '../../interview/asker.js';
@@ -67,6 +70,18 @@ async function calculator(ctx: CommandContext, a: Asker): Promise<number> {
   return mod.run(args, ctx);
 }
 
+/** "C-310.tolrate.json — AP-03, next: Results" or "... reviewed by ..."; a file that cannot be read says why. */
+function describeFile(path: string, name: string): string {
+  try {
+    const wp = loadWorkpaper(path);
+    const open = firstOpen(wp);
+    const where = open ? `next: ${STEP_LABELS[open]}` : reviewStatus(wp).label;
+    return `${name} — ${wp.control?.id ?? 'no control yet'}, ${where}`;
+  } catch (e) {
+    return `${name} — cannot be read: ${e instanceof Error ? e.message.split('\n')[0]!.slice(0, 80) : String(e)}`;
+  }
+}
+
 export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: StageOptions = {}): Promise<number> {
   const p = parseFlags('', args, { policy: { type: 'string' } }, 1);
   const policy = str(p, 'policy');
@@ -100,7 +115,7 @@ export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: 
     ? await a.select({
         id: 'start.continue.file',
         message: 'Which workpaper?',
-        choices: [...files.map((f) => ({ value: f, name: f })), { value: OTHER, name: 'Another file (type its path)' }],
+        choices: [...files.map((f) => ({ value: f, name: describeFile(join(ctx.cwd, f), f) })), { value: OTHER, name: 'Another file (type its path)' }],
       })
     : OTHER;
   if (pick === OTHER) {
