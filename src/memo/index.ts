@@ -101,7 +101,7 @@ export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions =
   const model = buildModel(clean.workpaper, template, modelOptions(opts));
   if (clean.note) model.cleanedNote = clean.note;
   const doc = await buildDocument(model, template, { chart: opts.chart ?? true });
-  const buf = await packDocument(doc);
+  const buf = await packDocument(doc, opts.now ?? new Date());
   const problems = await zipXmlProblems(buf);
   if (problems.length) {
     // The text was cleaned above, so this is tolrate's fault (or a firm's styles.docx that got past its check).

@@ -1083,7 +1083,36 @@ function assemble(b: Builder, m: MemoModel, t: MemoTemplate): Document {
   });
 }
 
-export async function packDocument(doc: Document): Promise<Buffer> {
-  return Packer.toBuffer(doc);
+/**
+ * Pack the document. The DOCX library stamps the document properties (created, modified) and
+ * every zip entry with the clock at packing; they are set to `at`, the memo's own time (the one
+ * its footer shows), so the properties agree with the memo and the same workpaper and time give
+ * the same bytes.
+ */
+export async function packDocument(doc: Document, at: Date = new Date()): Promise<Buffer> {
+  const packed = await Packer.toBuffer(doc);
+  const { default: JSZip } = await import('jszip');
+  const zip = await JSZip.loadAsync(packed);
+  const stamp = at.toISOString().replace(/\.\d{3}Z$/, 'Z');
+  const core = zip.file('docProps/core.xml');
+  if (core) {
+    const xml = (await core.async('string')).replace(/(<dcterms:(created|modified)[^>]*>)[^<]*(<\/dcterms:\2>)/g, `$1${stamp}$3`);
+    zip.file('docProps/core.xml', xml);
+  }
+  // The library numbers drawings with a counter that runs on across documents: number them afresh.
+  const body = zip.file('word/document.xml');
+  if (body) {
+    let n = 0;
+    let m = 0;
+    const xml = (await body.async('string')).replace(/<wp:docPr id="\d+"/g, () => `<wp:docPr id="${++n}"`).replace(/<pic:cNvPr id="\d+"/g, () => `<pic:cNvPr id="${++m}"`);
+    zip.file('word/document.xml', xml);
+  }
+  const out = new JSZip();
+  for (const name of Object.keys(zip.files).sort()) {
+    const f = zip.files[name]!;
+    if (f.dir) continue;
+    out.file(name, await f.async('uint8array'), { date: at, createFolders: false });
+  }
+  return out.generateAsync({ type: 'nodebuffer', compression: 'DEFLATE', compressionOptions: { level: 6 } });
 }
 
