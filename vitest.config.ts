@@ -5,5 +5,7 @@ export default defineConfig({
     include: ['tests/**/*.test.ts', 'src/**/*.test.ts'],
     testTimeout: 30000,
     hookTimeout: 30000,
+    // fsync is most of the suite's time; the writer's own tests (tests/io/) turn it back on.
+    env: { TOLRATE_TEST_NO_FSYNC: '1' },
   },
 });

@@ -7,12 +7,14 @@ import { open } from 'node:fs/promises';
 import { basename } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
+import { assertRegularFile } from '../io/read.js';
 import { cellText, detectDelimiter, delimiterOption } from '../population/index.js';
 import { headerNames } from '../population/columns.js';
 
 const HEAD_BYTES = 1 << 16;
 
 export async function csvColumns(path: string, delimiter?: string): Promise<string[]> {
+  assertRegularFile(path, 'The population file');
   const fh = await open(path, 'r').catch((e: NodeJS.ErrnoException) => {
     throw new FileInputError(path, e.code === 'ENOENT' ? `No file at ${path}.` : `Cannot read ${path}: ${e.message}`);
   });
@@ -60,6 +62,7 @@ interface BookReader {
 
 /** Header of an XLSX sheet (the first sheet when none is named): the first row with any value. */
 export async function xlsxColumns(path: string, sheet?: string): Promise<{ sheet: string; columns: string[] }> {
+  assertRegularFile(path, 'The population file');
   const ExcelJS = (await import('exceljs')).default;
   const reader = new ExcelJS.stream.xlsx.WorkbookReader(path, {
     worksheets: 'emit',
@@ -98,6 +101,7 @@ export async function xlsxColumns(path: string, sheet?: string): Promise<{ sheet
 
 /** The names of an XLSX workbook's worksheets, in order (the rows are not read). */
 export async function xlsxSheetNames(path: string): Promise<string[]> {
+  assertRegularFile(path, 'The population file');
   const ExcelJS = (await import('exceljs')).default;
   const reader = new ExcelJS.stream.xlsx.WorkbookReader(path, {
     worksheets: 'emit',

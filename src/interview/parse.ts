@@ -152,7 +152,9 @@ export function existingFile(field: string, baseDir: string, exts?: readonly str
     if (v === '') throw new AnswerError(`${field}: type the path of the file.`);
     const abs = isAbsolute(v) ? v : resolve(baseDir, v);
     if (!existsSync(abs)) throw new AnswerError(`${field}: there is no file at ${abs}.`);
-    if (!statSync(abs).isFile()) throw new AnswerError(`${field}: ${abs} is a folder, not a file.`);
+    const st = statSync(abs);
+    if (st.isDirectory()) throw new AnswerError(`${field}: ${abs} is a folder, not a file.`);
+    if (!st.isFile()) throw new AnswerError(`${field}: ${abs} is ${st.isFIFO() ? 'a named pipe' : st.isSocket() ? 'a socket' : 'a device'}, not a regular file. Give the path of a file saved on disk.`);
     if (exts && !exts.some((e) => abs.toLowerCase().endsWith(e))) {
       throw new AnswerError(`${field}: ${abs} is not a ${exts.join(' or ')} file.`);
     }

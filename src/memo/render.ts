@@ -839,6 +839,7 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
     );
   }
   b.p(b.f(T.workpaperState), { style: 'MemoNote' });
+  if (m.cleanedNote) b.note(m.cleanedNote);
 
 }
 

@@ -3,6 +3,7 @@ import { DateTracker, type DateSummary } from './date.js';
 import type { CsvTokenizer } from './csv-tokenizer.js';
 import { KeyHashes, hashBytes, hashString } from './key-index.js';
 import type { DateOrder, DuplicateKeyExample, PopulationValidation, ProblemCount, RowExample } from './types.js';
+import { hasControl, visible } from '../io/text.js';
 
 export const EXAMPLES = 5;
 export const DUPLICATE_EXAMPLES = 10;
@@ -45,6 +46,8 @@ export class RowChecker {
   lastKey = '';
   readonly hashes = new KeyHashes();
   readonly blankKeys = new Problems();
+  /** Keys holding control or escape characters (a terminal would act on them, not show them). */
+  readonly controlKeys = new Problems();
   readonly badRows = new Problems();
   readonly badAmounts = new Problems();
   readonly blankLines = new Problems();
@@ -82,8 +85,15 @@ export class RowChecker {
         const len = e - s;
         if (len > this.scratch.length) this.scratch = new Uint8Array(len * 2);
         const sc = this.scratch;
-        for (let i = 0; i < len; i++) sc[i] = b[s + i]!;
+        let suspect = false;
+        for (let i = 0; i < len; i++) {
+          const c = b[s + i]!;
+          sc[i] = c;
+          // Controls, DEL, and the lead bytes of C1 controls (C2) and of bidirectional marks (E2).
+          if (c < 0x20 || c === 0x7f || c === 0xc2 || c === 0xe2) suspect = true;
+        }
         this.lastLen = len;
+        if (suspect) this.controlKey(b.toString('utf8', s, e), row);
         if (pos === 0) this.firstKey = b.toString('utf8', s, e);
       } else this.slowKey(t.field(key).trim(), row, pos);
     } else this.slowKey('', row, pos);
@@ -112,8 +122,13 @@ export class RowChecker {
       this.setLast('');
       return;
     }
+    this.controlKey(k, row);
     this.hashes.add(hashString(k));
     this.setLast(k);
+  }
+
+  private controlKey(k: string, row: number): void {
+    if (hasControl(k)) this.controlKeys.add(row, 'control characters in the key', visible(k));
   }
 
   private setLast(k: string): void {
@@ -210,6 +225,8 @@ export interface ReportInput {
   rowCount: number;
   duplicates: DuplicateResult;
   blankKeys: ProblemCount;
+  /** Keys with control or escape characters (shown escaped, e.g. ESC as \x1b). */
+  controlKeys?: ProblemCount;
   badRows: ProblemCount;
   badAmounts: ProblemCount;
   dates?: DateSummary;
@@ -238,6 +255,13 @@ export function buildValidation(r: ReportInput): PopulationValidation {
   const more = (p: ProblemCount) => (p.count > p.examples.length ? '; ...' : '');
   if (r.blankKeys.count > 0) {
     messages.push(`${plural(r.blankKeys.count, 'row')} ${r.blankKeys.count === 1 ? 'has' : 'have'} a blank key: ${w}s ${r.blankKeys.examples.map((e) => e.row).join(', ')}${more(r.blankKeys)}.`);
+  }
+  if (r.controlKeys && r.controlKeys.count > 0) {
+    const c = r.controlKeys;
+    messages.push(
+      `${plural(c.count, 'key')} ${c.count === 1 ? 'holds' : 'hold'} control or escape characters, which a screen or printout does not show as they are (shown here written out, e.g. ESC as \\x1b): ` +
+        `${c.examples.map((e) => `${w} ${e.row} "${e.value ?? ''}"`).join('; ')}${more(c)}. Check the export; such a key may hide or disguise text.`,
+    );
   }
   if (r.badRows.count > 0) {
     messages.push(`${plural(r.badRows.count, 'row')} ${r.badRows.count === 1 ? 'does' : 'do'} not match the header: ${exampleList(r.badRows.examples, false, w)}${more(r.badRows)}.`);

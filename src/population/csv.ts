@@ -345,6 +345,7 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
     rowCount: c.rows,
     duplicates,
     blankKeys: c.blankKeys.plain(),
+    controlKeys: c.controlKeys.plain(),
     badRows: c.badRows.plain(),
     badAmounts: c.badAmounts.plain(),
     dates,

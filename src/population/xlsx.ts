@@ -4,6 +4,7 @@ import { FileInputError } from '../errors.js';
 import { buildValidation, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { fileError, openFile } from './file.js';
+import { assertRegularFile } from '../io/read.js';
 import { hashFileHere } from './hash.js';
 import { hashString } from './key-index.js';
 import type { KeyFinder, RowPicker } from './pick.js';
@@ -78,6 +79,7 @@ async function walk(
   report: Reporter,
   phase: ScanProgress['phase'],
 ): Promise<{ rows: number; sheet: string; size: number }> {
+  assertRegularFile(src.path, 'Population file');
   const { fh, size } = await openFile(src.path);
   await fh.close();
   const ExcelJS = (await import('exceljs')).default;
@@ -282,7 +284,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
     validation: buildValidation({
       rowCount: cc.rows,
       duplicates,
-      blankKeys: cc.blankKeys.plain(),
+      blankKeys: cc.blankKeys.plain(), controlKeys: cc.controlKeys.plain(),
       badRows: cc.badRows.plain(),
       badAmounts: cc.badAmounts.plain(),
       dates,

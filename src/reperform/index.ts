@@ -16,7 +16,8 @@
  *  7. optionally the memo: it carries the same figures as the workpaper.
  */
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
-import { accessSync, constants, readFileSync } from 'node:fs';
+import { accessSync, constants } from 'node:fs';
+import { readRegularFile } from '../io/read.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
 import { conclusionProblems, evaluate, evaluationDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
@@ -301,12 +302,7 @@ export function stateAt(wp: Workpaper, seq: number): Workpaper {
  * template, and the two compared section by section and table cell by table cell.
  */
 async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string, templateDir?: string, label = memoPath): Promise<Check> {
-  let data: Buffer;
-  try {
-    data = readFileSync(memoPath);
-  } catch {
-    throw new FileInputError(memoPath, `Cannot read the memo ${memoPath}.`);
-  }
+  const data = readRegularFile(memoPath, 'The memo');
   const diffs: string[] = [];
   const sha = createHash('sha256').update(data).digest('hex');
   const records = wp.memos ?? [];

@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { extname, isAbsolute, relative, resolve } from 'node:path';
 import { parseFlags, str, type FlagSpec, type ParsedArgs } from '../args.js';
 import { FileInputError, UsageError } from '../../errors.js';
@@ -15,6 +15,8 @@ import {
 } from '../../selection/index.js';
 import { parseCount } from '../../util/percent.js';
 import type { CommandContext } from '../types.js';
+import { readRegularText } from '../../io/read.js';
+import { visible } from '../../io/text.js';
 import { itemsText, populationText, selectionText, shellWord, validationText } from './report.js';
 
 const SPEC: FlagSpec = {
@@ -196,13 +198,8 @@ function haphazardKeys(p: ParsedArgs, ctx: CommandContext): string[] {
   if (list !== undefined) keys.push(...splitList(list));
   if (file !== undefined) {
     const path = resolve(ctx.cwd, file);
-    let text: string;
-    try {
-      text = readFileSync(path, 'utf8');
-    } catch {
-      throw new FileInputError(path, `The keys file cannot be read: ${path}`);
-    }
-    keys.push(...text.replace(/^\uFEFF/, '').split(/\r\n|\r|\n/).map((s) => s.trim()).filter((s) => s !== ''));
+    const text = readRegularText(path, 'The keys file');
+    keys.push(...text.split(/\r\n|\r|\n/).map((s) => s.trim()).filter((s) => s !== ''));
   }
   return keys;
 }
@@ -266,7 +263,8 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const progress = stderrStream(ctx);
   const out: string[] = [];
   const flush = () => {
-    if (!json && out.length) ctx.stdout.write(`${out.join('\n')}\n`);
+    // Keys and values come from the file: their control characters are shown, not sent (src/io/text.ts).
+    if (!json && out.length) ctx.stdout.write(`${visible(out.join('\n'), { keepLines: true })}\n`);
     out.length = 0;
   };
 
