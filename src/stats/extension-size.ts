@@ -10,7 +10,7 @@ import { withinRisk } from './within-risk.js';
 /**
  * The extension of a sample: after k deviations in n items, the fewest additional items m ≥ 0
  * such that, if none of them deviates, the risk of overreliance at n + m items and k deviations
- * is at most β = 1 − confidence (DESIGN §3). 0 when the results already support the reliance.
+ * is at most β = 1 − confidence (README, "How the figures are computed"). 0 when the results already support the reliance.
  *
  * Method: the risk at a fixed k falls as the sample grows, so the smallest total is found by
  * bisection on n + m, up to N for the hypergeometric model and up to {@link MAX_SAMPLE_SIZE}

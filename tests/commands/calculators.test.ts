@@ -1,8 +1,8 @@
 /**
  * The calculator commands (size, limit, table) run through the CLI entry with a captured
  * context: human output, --json, bad flags (exit 2), --help (exit 0). Figures are checked
- * against the known values of DESIGN §7 and the published tables (AICPA Audit Sampling guide,
- * from memory), and --json against the library.
+ * against the published tables (AICPA Audit Sampling guide, from memory), @stdlib's distribution
+ * packages where noted, and --json against the library.
  */
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
@@ -27,7 +27,7 @@ async function run(argv: string[]): Promise<{ code: number; out: string; err: st
 const ESC = String.fromCharCode(27);
 
 describe('tolrate size', () => {
-  it('95 / 6 / 1 → 78, with the model, k_e and achieved risk against β (DESIGN §7)', async () => {
+  it('95 / 6 / 1 → 78, with the model, k_e and achieved risk against β (AICPA Audit Sampling guide, 95% sample size table, from memory)', async () => {
     const r = await run(['size', '--confidence', '95', '--tolerable', '6', '--expected', '1']);
     expect(r.code).toBe(0);
     expect(r.err).toBe('');
@@ -93,7 +93,7 @@ describe('tolrate size', () => {
 });
 
 describe('tolrate limit', () => {
-  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (DESIGN §7)', async () => {
+  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (@stdlib references noted below)', async () => {
     const r = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '6']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/Sample deviation rate\s+2\.6%/);
@@ -105,7 +105,7 @@ describe('tolrate limit', () => {
     expect(r.out).toMatch(/The tool computes/);
   });
 
-  it('75 items, 2 deviations: the tabulated 8.2% (AICPA table, from memory; DESIGN §7)', async () => {
+  it('75 items, 2 deviations: the tabulated 8.2% (AICPA Audit Sampling guide, 95% upper limit table, from memory)', async () => {
     const r = await run(['limit', '--sample', '75', '--deviations', '2', '--confidence', '95']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/^Upper deviation limit: 8\.2% at 95% confidence/m);

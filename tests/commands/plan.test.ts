@@ -76,7 +76,7 @@ describe('tolrate plan', () => {
     expect(wp.population!.tieOut).toMatchObject({ ledgerCount: 240, countDifference: 0, ledgerTotal: total, totalDifference: '0.00' });
 
     // Each attribute's size, then the largest adopted. Reference: @stdlib's hypergeometric CDF,
-    // with M_t = ceil(TDR x N) tolerable deviations and k_e = ceil(n x EDR) (DESIGN §3).
+    // with M_t = ceil(TDR x N) tolerable deviations and k_e = ceil(n x EDR) (README, "How the figures are computed").
     const N = 240;
     const ref = (tdr: number) => smallest((k, n) => stdHyperCdf(k, N, Math.ceil(tdr * N - 1e-9), n), 0.95, 0.01, N);
     const a = wp.approach!;
@@ -240,7 +240,7 @@ describe('tolrate plan', () => {
       expect(asker.refusals[0]!.message).toBe(`Random starts: ${n} is not a multiple of 4.`);
       expect(wp.selection!.method).toBe('systematic');
       expect(wp.selection!.starts).toHaveLength(2);
-      // Interval r·N/n (DESIGN: systematic selection with random starts).
+      // Interval r·N/n: with r random starts each start covers every (r·N/n)-th item (common practice, no single source).
       expect(wp.selection!.interval).toBeCloseTo((2 * 240) / n, 10);
     }
     {

@@ -120,7 +120,7 @@ describe('sample sizes: AICPA Audit Sampling guide attribute tables (from memory
     }
   });
 
-  it('95% / 6% / 1% gives 78 with 1 expected deviation (DESIGN §7; common practice)', () => {
+  it('95% / 6% / 1% gives 78 with 1 expected deviation (AICPA Audit Sampling guide, 95% sample size table, from memory)', () => {
     const r = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 });
     expect(r.sampleSize).toBe(78);
     expect(r.expectedDeviations).toBe(1);

@@ -20,7 +20,7 @@ import {
 } from '../../src/stats/index.js';
 
 describe('sampleSize', () => {
-  it('95% / 6% / 1% → 78 with k_e = 1, binomial by default (DESIGN §7; AICPA table, from memory)', () => {
+  it('95% / 6% / 1% → 78 with k_e = 1, binomial by default (AICPA Audit Sampling guide, 95% sample size table, from memory)', () => {
     const r = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 });
     expect(r).toMatchObject({ sampleSize: 78, expectedDeviations: 1, model: 'binomial', confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 });
     expect(r.achievedRisk).toBeCloseTo(binomialCdf(1, 78, 0.06), 15);
@@ -30,7 +30,7 @@ describe('sampleSize', () => {
     expect(binomialCdf(expectedDeviations(77, 0.01), 77, 0.06)).toBeGreaterThan(0.05);
   });
 
-  it('a known population switches to the exact hypergeometric size and reports the textbook FPC beside it (DESIGN §3)', () => {
+  it('a known population switches to the exact hypergeometric size and reports the textbook FPC beside it (README, "How the figures are computed")', () => {
     const r = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01, populationSize: 800 });
     expect(r.model).toBe('hypergeometric');
     expect(r.populationSize).toBe(800);
