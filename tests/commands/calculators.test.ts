@@ -58,6 +58,15 @@ describe('tolrate size', () => {
     expect(JSON.parse(r.out).sampleSize).toBe(45); // AICPA 90% table, 5% / 0%: 45(0), from memory
   });
 
+  it('a decimal comma or a % sign below 1% is taken as typed: 6,5 = 6.5%, 0.5% = 0.5%', async () => {
+    const comma = JSON.parse((await run(['size', '--confidence', '95', '--tolerable', '6,5', '--expected', '0,5%', '--json'])).out);
+    const point = JSON.parse((await run(['size', '--confidence', '95', '--tolerable', '6.5', '--expected', '0.5%', '--json'])).out);
+    expect(comma).toEqual(point);
+    expect(point).toMatchObject({ tolerableRate: 0.065, expectedRate: 0.005 });
+    // A list with a rate of 1 or more reads plainly as percentages (the README's table example).
+    expect((await run(['table', '--confidence', '95', '--expected', '0,0.5,1'])).code).toBe(0);
+  });
+
   it('--model poisson is honoured', async () => {
     const r = await run(['size', '--confidence', '95', '--tolerable', '5', '--expected', '0', '--model', 'poisson', '--json']);
     expect(JSON.parse(r.out)).toMatchObject({ model: 'poisson', sampleSize: 60 }); // ⌈3.00 / 5%⌉, common practice
@@ -73,6 +82,12 @@ describe('tolrate size', () => {
     [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--population', 'many'], /--population: "many" is not a whole number/],
     [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--tolerance', '5'], /unknown option --tolerance/],
     [['size', '--confidence', '95', '--tolerable', '2', '--expected', '1.9'], /No practical sample size/],
+    // A rate below 1 without a % sign may be a fraction (0.05 meant as 5%): refused, never sized.
+    [['size', '--confidence', '95', '--tolerable', '0.05', '--expected', '0'], /^--tolerable: 0\.05 is read as 0\.05%; write 5 for 5%, or 0\.05% if you mean 0\.05%\.$/m],
+    [['size', '--confidence', '0.95', '--tolerable', '6', '--expected', '1'], /--confidence: 0\.95 is read as 0\.95%; write 95 for 95%/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '0,5'], /--expected: 0,5 is read as 0,5%; write 50 for 50%, or 0,5% if you mean 0,5%/],
+    [['size', '--confidence', '95', '--tolerable', '1,000', '--expected', '0'], /--tolerable: "1,000" looks like a number with a thousands separator/],
+    [['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '0.06'], /--tolerable: 0\.06 is read as 0\.06%; write 6 for 6%/],
   ])('bad input %j → exit 2 with a message, no stack trace', async (argv, message) => {
     const r = await run(argv);
     expect(r.code).toBe(2);
@@ -119,10 +134,10 @@ describe('tolrate limit', () => {
   });
 
   it('an extension that is not practical says so', async () => {
-    const r = await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5']);
+    const r = await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5%']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/Extension needed\s+not practical/);
-    const j = JSON.parse((await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5', '--json'])).out);
+    const j = JSON.parse((await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5%', '--json'])).out);
     expect(j.extensionSize).toBeNull();
     expect(j.extensionNote).toMatch(/No practical extension/);
   });
@@ -205,6 +220,7 @@ describe('tolrate table', () => {
     [['table', '--confidence', '95', '--tolerable', '5,,6'], /--tolerable needs percentages separated by commas/],
     [['table', '--confidence', '95', '--expected', '0,x'], /--expected: "x" is not a percentage/],
     [['table', '--confidence', '95', '--model', 'hyper'], /Did you mean hypergeometric\?/],
+    [['table', '--confidence', '95', '--tolerable', '0.02,0.05'], /--tolerable: 0\.02, 0\.05 are read as 0\.02%, 0\.05%; write 2,5 for 2%, 5%/],
   ])('bad input %j → exit 2', async (argv, message) => {
     const r = await run(argv);
     expect(r.code).toBe(2);

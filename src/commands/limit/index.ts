@@ -41,6 +41,9 @@ Options:
   --json             print the result object instead of the text
   -h, --help         show this help
 
+PCT is a percentage: 6, 6% and 6,5 (decimal comma) mean 6%, 6% and 6.5%. A number between 0 and
+1 needs its % sign (0.5%): typed bare, 0.05 is refused, since it may have meant 5%.
+
 The upper deviation limit is one-sided: binomial Clopper-Pearson, the hypergeometric count
 limit M*/N for a known population, or the Poisson factor; it is shown rounded UP to 0.1%.
 The results support the planned reliance when the risk of overreliance at the tolerable rate
@@ -71,9 +74,9 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   }
   const sampleSize = parseCount(required('limit', p, 'sample'), '--sample', { min: 1 });
   const deviations = parseCount(required('limit', p, 'deviations'), '--deviations');
-  const confidence = parsePercent(required('limit', p, 'confidence'), '--confidence');
+  const confidence = parsePercent(required('limit', p, 'confidence'), '--confidence', { refuseBareFraction: true });
   const tol = p.values.tolerable;
-  const tolerableRate = typeof tol === 'string' ? parsePercent(tol, '--tolerable') : undefined;
+  const tolerableRate = typeof tol === 'string' ? parsePercent(tol, '--tolerable', { refuseBareFraction: true }) : undefined;
   const populationSize = populationFlag(p);
   const model = modelFlag('limit', p, populationSize);
   if (deviations > sampleSize) {
