@@ -8,6 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
 import type { CommandContext } from '../../src/commands/types.js';
 import { planningTable, sampleSize, upperLimit } from '../../src/stats/index.js';
+import { mpBetaQuantile } from '../fixtures/reference-table.js';
 
 async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
   let out = '';
@@ -108,11 +109,13 @@ describe('tolrate size', () => {
 });
 
 describe('tolrate limit', () => {
-  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (@stdlib references noted below)', async () => {
+  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (limit: mpmath table; risk: @stdlib, noted below)', async () => {
     const r = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '6']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/Sample deviation rate\s+2\.6%/);
     expect(r.out).toMatch(/Upper deviation limit\s+7\.9% \(exact 7\.8521%/);
+    // BetaInv(0.95; 3, 76) = 0.0785210890738215 (mpmath, committed table): 7.8521%.
+    expect((mpBetaQuantile(0.95, 3, 76) * 100).toFixed(4)).toBe('7.8521');
     // BinomCDF(2; 78, 0.06) = 0.146006 (@stdlib/stats-base-dists-binomial-cdf), shown rounded up to 0.1%.
     expect(r.out).toMatch(/Risk of overreliance\s+14\.7% \(exact 14\.6006%\)/);
     expect(r.out).toMatch(/The results do not support the planned reliance/);
