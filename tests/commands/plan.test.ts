@@ -139,6 +139,21 @@ describe('tolrate plan', () => {
     expect(asker.refusals.map((r) => r.message)).toEqual(['The reason must not be empty.']);
   });
 
+  it('a tolerable rate of 0.06 without % is confirmed first; "no" asks again and 6 is taken', async () => {
+    const dir = tempDir();
+    const { total } = writePopulation(dir);
+    const answers: ScriptAnswers = {
+      ...planAnswers(total),
+      'plan.approach.tolerableRate': ['0.06', '6'],
+      'plan.approach.tolerableRate.belowOnePercent': false,
+    };
+    const asker = new ScriptedAsker(answers);
+    expect(await plan(['t1'], captureContext(dir), asker, { now: fixedClock() })).toBe(0);
+    const ids = asker.ids.filter((i) => i.startsWith('plan.approach.tolerableRate'));
+    expect(ids).toEqual(['plan.approach.tolerableRate', 'plan.approach.tolerableRate.belowOnePercent', 'plan.approach.tolerableRate']);
+    expect(loadWorkpaper(join(dir, 't1.tolrate.json')).approach).toMatchObject({ tolerableRate: 0.06 });
+  });
+
   it('a tie-out difference is shown and needs an explanation', async () => {
     const dir = tempDir();
     const { total } = writePopulation(dir);
