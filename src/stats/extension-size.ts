@@ -10,7 +10,8 @@ import { withinRisk } from './within-risk.js';
 /**
  * The single-stage extension figure: after k deviations in n items, the fewest additional items
  * m ≥ 0 such that, if none of them deviates, the risk of overreliance at n + m items and k
- * deviations is at most β = 1 − confidence. 0 when the results already support the reliance.
+ * deviations is at most β = 1 − confidence (README, "How the figures are computed"). 0 when the
+ * results already support the reliance.
  *
  * This figure treats the extended sample as one sample planned in advance. It was not: the
  * extension depends on the first look, and the exact risk of the procedure actually followed is

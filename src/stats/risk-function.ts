@@ -6,7 +6,7 @@ import type { Model } from './types.js';
 
 /**
  * The risk of overreliance as a function of the sample size n and the deviations k, for a fixed
- * tolerable rate and model (DESIGN §3): binomial P(X ≤ k | n, TDR); hypergeometric
+ * tolerable rate and model (README, "How the figures are computed"): binomial P(X ≤ k | n, TDR); hypergeometric
  * P(X ≤ k | N, M_t = ⌈TDR·N⌉, n); Poisson P(Y ≤ k | λ = n·TDR). Internal: the public functions
  * check their inputs first and then call it many times.
  */

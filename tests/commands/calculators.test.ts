@@ -1,13 +1,14 @@
 /**
  * The calculator commands (size, limit, table) run through the CLI entry with a captured
  * context: human output, --json, bad flags (exit 2), --help (exit 0). Figures are checked
- * against the known values of DESIGN §7 and the published tables (AICPA Audit Sampling guide,
- * from memory), and --json against the library.
+ * against the published tables (AICPA Audit Sampling guide, from memory), @stdlib's distribution
+ * packages where noted, and --json against the library.
  */
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
 import type { CommandContext } from '../../src/commands/types.js';
 import { planningTable, sampleSize, upperLimit } from '../../src/stats/index.js';
+import { mpBetaQuantile } from '../fixtures/reference-table.js';
 
 async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
   let out = '';
@@ -27,7 +28,7 @@ async function run(argv: string[]): Promise<{ code: number; out: string; err: st
 const ESC = String.fromCharCode(27);
 
 describe('tolrate size', () => {
-  it('95 / 6 / 1 → 78, with the model, k_e and achieved risk against β (DESIGN §7)', async () => {
+  it('95 / 6 / 1 → 78, with the model, k_e and achieved risk against β (AICPA Audit Sampling guide, 95% sample size table, from memory)', async () => {
     const r = await run(['size', '--confidence', '95', '--tolerable', '6', '--expected', '1']);
     expect(r.code).toBe(0);
     expect(r.err).toBe('');
@@ -58,6 +59,15 @@ describe('tolrate size', () => {
     expect(JSON.parse(r.out).sampleSize).toBe(45); // AICPA 90% table, 5% / 0%: 45(0), from memory
   });
 
+  it('a decimal comma or a % sign below 1% is taken as typed: 6,5 = 6.5%, 0.5% = 0.5%', async () => {
+    const comma = JSON.parse((await run(['size', '--confidence', '95', '--tolerable', '6,5', '--expected', '0,5%', '--json'])).out);
+    const point = JSON.parse((await run(['size', '--confidence', '95', '--tolerable', '6.5', '--expected', '0.5%', '--json'])).out);
+    expect(comma).toEqual(point);
+    expect(point).toMatchObject({ tolerableRate: 0.065, expectedRate: 0.005 });
+    // A list with a rate of 1 or more reads plainly as percentages (the README's table example).
+    expect((await run(['table', '--confidence', '95', '--expected', '0,0.5,1'])).code).toBe(0);
+  });
+
   it('--model poisson is honoured', async () => {
     const r = await run(['size', '--confidence', '95', '--tolerable', '5', '--expected', '0', '--model', 'poisson', '--json']);
     expect(JSON.parse(r.out)).toMatchObject({ model: 'poisson', sampleSize: 60 }); // ⌈3.00 / 5%⌉, common practice
@@ -73,6 +83,12 @@ describe('tolrate size', () => {
     [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--population', 'many'], /--population: "many" is not a whole number/],
     [['size', '--confidence', '95', '--tolerable', '6', '--expected', '1', '--tolerance', '5'], /unknown option --tolerance/],
     [['size', '--confidence', '95', '--tolerable', '2', '--expected', '1.9'], /No practical sample size/],
+    // A rate below 1 without a % sign may be a fraction (0.05 meant as 5%): refused, never sized.
+    [['size', '--confidence', '95', '--tolerable', '0.05', '--expected', '0'], /^--tolerable: 0\.05 is read as 0\.05%; write 5 for 5%, or 0\.05% if you mean 0\.05%\.$/m],
+    [['size', '--confidence', '0.95', '--tolerable', '6', '--expected', '1'], /--confidence: 0\.95 is read as 0\.95%; write 95 for 95%/],
+    [['size', '--confidence', '95', '--tolerable', '6', '--expected', '0,5'], /--expected: 0,5 is read as 0,5%; write 50 for 50%, or 0,5% if you mean 0,5%/],
+    [['size', '--confidence', '95', '--tolerable', '1,000', '--expected', '0'], /--tolerable: "1,000" looks like a number with a thousands separator/],
+    [['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '0.06'], /--tolerable: 0\.06 is read as 0\.06%; write 6 for 6%/],
   ])('bad input %j → exit 2 with a message, no stack trace', async (argv, message) => {
     const r = await run(argv);
     expect(r.code).toBe(2);
@@ -93,11 +109,13 @@ describe('tolrate size', () => {
 });
 
 describe('tolrate limit', () => {
-  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (DESIGN §7)', async () => {
+  it('2 in 78 at 95%: sample rate 2.6%, limit 7.9% rounded up; with 6% tolerable: not supported, extension shown (limit: mpmath table; risk: @stdlib, noted below)', async () => {
     const r = await run(['limit', '--sample', '78', '--deviations', '2', '--confidence', '95', '--tolerable', '6']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/Sample deviation rate\s+2\.6%/);
     expect(r.out).toMatch(/Upper deviation limit\s+7\.9% \(exact 7\.8521%/);
+    // BetaInv(0.95; 3, 76) = 0.0785210890738215 (mpmath, committed table): 7.8521%.
+    expect((mpBetaQuantile(0.95, 3, 76) * 100).toFixed(4)).toBe('7.8521');
     // BinomCDF(2; 78, 0.06) = 0.146006 (@stdlib/stats-base-dists-binomial-cdf), shown rounded up to 0.1%.
     expect(r.out).toMatch(/Risk of overreliance\s+14\.7% \(exact 14\.6006%\)/);
     expect(r.out).toMatch(/The results do not support the planned reliance/);
@@ -110,7 +128,7 @@ describe('tolrate limit', () => {
     expect(r.out).toMatch(/The tool computes/);
   });
 
-  it('75 items, 2 deviations: the tabulated 8.2% (AICPA table, from memory; DESIGN §7)', async () => {
+  it('75 items, 2 deviations: the tabulated 8.2% (AICPA Audit Sampling guide, 95% upper limit table, from memory)', async () => {
     const r = await run(['limit', '--sample', '75', '--deviations', '2', '--confidence', '95']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/^Upper deviation limit: 8\.2% at 95% confidence/m);
@@ -124,11 +142,11 @@ describe('tolrate limit', () => {
   });
 
   it('an extension that is not practical says so', async () => {
-    const r = await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5']);
+    const r = await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5%']);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/Extension figure\s+none offered/);
     expect(r.out).not.toMatch(/Risk of extending/);
-    const j = JSON.parse((await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5', '--json'])).out);
+    const j = JSON.parse((await run(['limit', '--sample', '100', '--deviations', '60', '--confidence', '95', '--tolerable', '0.5%', '--json'])).out);
     expect(j.extensionSize).toBeNull();
     expect(j.extensionNote).toMatch(/No practical extension/);
   });
@@ -211,6 +229,7 @@ describe('tolrate table', () => {
     [['table', '--confidence', '95', '--tolerable', '5,,6'], /--tolerable needs percentages separated by commas/],
     [['table', '--confidence', '95', '--expected', '0,x'], /--expected: "x" is not a percentage/],
     [['table', '--confidence', '95', '--model', 'hyper'], /Did you mean hypergeometric\?/],
+    [['table', '--confidence', '95', '--tolerable', '0.02,0.05'], /--tolerable: 0\.02, 0\.05 are read as 0\.02%, 0\.05%; write 2,5 for 2%, 5%/],
   ])('bad input %j → exit 2', async (argv, message) => {
     const r = await run(argv);
     expect(r.code).toBe(2);

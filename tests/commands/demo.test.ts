@@ -14,7 +14,7 @@ import { captureContext, tempDir } from '../fixtures/interview.js';
 
 const BETA = 0.05;
 
-/** Smallest n with CDF(ceil(n·edr); n) ≤ β (DESIGN §3 sample size, k_e = ⌈n·EDR⌉). */
+/** Smallest n with CDF(ceil(n·edr); n) ≤ β (README, "How the figures are computed": k_e = ⌈n·EDR⌉). */
 function smallest(cdf: (k: number, n: number) => number, edr: number, max: number): number {
   for (let n = 1; n <= max; n++) if (cdf(Math.ceil(n * edr - 1e-9), n) <= BETA) return n;
   return -1;

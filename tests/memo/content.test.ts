@@ -23,7 +23,7 @@ beforeAll(async () => {
 });
 
 describe('the 95% / 6% / 1% test with 2 deviations in 78 (not supported)', () => {
-  it('plans n = 78 — AICPA Audit Sampling guide attribute table, 95% confidence, TDR 6%, EDR 1% (from memory; DESIGN §7)', () => {
+  it('plans n = 78 — AICPA Audit Sampling guide attribute table, 95% confidence, TDR 6%, EDR 1% (from memory)', () => {
     const t = findTable(doc.xml, ['Attribute', 'Tolerable rate', 'Expected deviations (k_e)', 'Sample size', 'Risk at planning']);
     expect(rowByFirstCell(t, 'A1')['Sample size']).toBe('78');
     expect(doc.text).toContain('Sample size adopted: 78 items');
@@ -34,7 +34,7 @@ describe('the 95% / 6% / 1% test with 2 deviations in 78 (not supported)', () =>
     const a1 = rowByFirstCell(t, 'A1');
     expect(a1.n).toBe('78');
     expect(a1.Deviations).toBe('2');
-    // 2/78 = 2.564%: arithmetic; 2.6% is the value DESIGN §7 gives (common practice, one decimal).
+    // 2/78 = 2.564% (arithmetic), shown to one decimal place (README, "How the figures are computed").
     expect(a1['Sample rate']).toBe('2.6%');
     // Upper limit: BetaInv(0.95; 3, 76) from @stdlib/stats-base-dists-beta-quantile = 7.852%, rounded up.
     expect(a1['Upper limit']).toBe(pctUp(betaQuantile(0.95, 3, 76)));
@@ -201,7 +201,7 @@ describe('the hypergeometric test of a known population', () => {
     for (const ev of h.wp.evaluation!.attributes) {
       expect(rowByFirstCell(t, ev.attributeId)['M* (deviations in population)']).toBe(int(ev.deviationsInPopulation!));
       expect(rowByFirstCell(t, ev.attributeId)['Upper limit']).toBe(pctExact(ev.upperLimit));
-      // The limit is M*/N (DESIGN §3).
+      // The limit is M*/N (README, "How the figures are computed").
       expect(ev.upperLimit).toBeCloseTo(ev.deviationsInPopulation! / 1240, 12);
     }
   });

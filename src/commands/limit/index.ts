@@ -50,6 +50,9 @@ Options:
   --json             print the result object instead of the text
   -h, --help         show this help
 
+PCT is a percentage: 6, 6% and 6,5 (decimal comma) mean 6%, 6% and 6.5%. A number between 0 and
+1 needs its % sign (0.5%): typed bare, 0.05 is refused, since it may have meant 5%.
+
 The upper deviation limit is one-sided: binomial Clopper-Pearson, the hypergeometric count
 limit M*/N for a known population, or the Poisson factor; it is shown rounded UP to 0.1%.
 The results support the planned reliance when the risk of overreliance at the tolerable rate
@@ -100,11 +103,11 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   }
   const sampleSize = parseCount(required('limit', p, 'sample'), '--sample', { min: 1 });
   const deviations = parseCount(required('limit', p, 'deviations'), '--deviations');
-  const confidence = parsePercent(required('limit', p, 'confidence'), '--confidence');
+  const confidence = parsePercent(required('limit', p, 'confidence'), '--confidence', { refuseBareFraction: true });
   const tol = p.values.tolerable;
-  const tolerableRate = typeof tol === 'string' ? parsePercent(tol, '--tolerable') : undefined;
+  const tolerableRate = typeof tol === 'string' ? parsePercent(tol, '--tolerable', { refuseBareFraction: true }) : undefined;
   const exp = p.values.expected;
-  const expectedRate = typeof exp === 'string' ? parsePercent(exp, '--expected', { allowZero: true }) : undefined;
+  const expectedRate = typeof exp === 'string' ? parsePercent(exp, '--expected', { allowZero: true, refuseBareFraction: true }) : undefined;
   if (expectedRate !== undefined && tolerableRate === undefined) {
     throw new UsageError('tolrate limit: --expected needs --tolerable (the risk of underreliance is that of the plan at both rates).', [
       'See: tolrate limit --help',

@@ -52,6 +52,9 @@ Options:
   --json             print the result object instead of the text
   -h, --help         show this help
 
+PCT is a percentage: 6, 6% and 6,5 (decimal comma) mean 6%, 6% and 6.5%. A number between 0 and
+1 needs its % sign (0.5%): typed bare, 0.05 is refused, since it may have meant 5%.
+
 The size is the smallest n whose risk of overreliance at k_e = ceil(n x expected rate)
 deviations does not exceed 100% - confidence. Binomial and Poisson sizes are searched up to
 10,000 items; hypergeometric sizes up to the population. The risk of underreliance is the
@@ -75,9 +78,9 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     ctx.stdout.write(help());
     return 0;
   }
-  const confidence = parsePercent(required('size', p, 'confidence'), '--confidence');
-  const tolerableRate = parsePercent(required('size', p, 'tolerable'), '--tolerable');
-  const expectedRate = parsePercent(required('size', p, 'expected'), '--expected', { allowZero: true });
+  const confidence = parsePercent(required('size', p, 'confidence'), '--confidence', { refuseBareFraction: true });
+  const tolerableRate = parsePercent(required('size', p, 'tolerable'), '--tolerable', { refuseBareFraction: true });
+  const expectedRate = parsePercent(required('size', p, 'expected'), '--expected', { allowZero: true, refuseBareFraction: true });
   if (expectedRate >= tolerableRate) {
     throw new UsageError(
       `tolrate size: --expected (${pctPlain(expectedRate)}) must be below --tolerable (${pctPlain(tolerableRate)}); ` +
