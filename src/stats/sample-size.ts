@@ -19,7 +19,7 @@ import {
 
 /**
  * The statistical sample size for a test of controls: the smallest n whose risk of overreliance
- * at k_e = ⌈n·EDR⌉ deviations is at most β = 1 − confidence (DESIGN §3; the convention of the
+ * at k_e = ⌈n·EDR⌉ deviations is at most β = 1 − confidence (README, "How the figures are computed"; the convention of the
  * AICPA Audit Sampling guide's attribute sampling tables).
  *
  * Method: exact search over n ({@link smallestSampleSize}) with the model's CDF — binomial
