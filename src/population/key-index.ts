@@ -31,9 +31,11 @@ export function hashBytes(b: Uint8Array, s: number, e: number): number {
 }
 
 /** The same hash over a string's UTF-8 bytes. */
+let scratch = Buffer.allocUnsafe(1024);
 export function hashString(s: string): number {
-  const b = Buffer.from(s, 'utf8');
-  return hashBytes(b, 0, b.length);
+  if (s.length * 3 > scratch.length) scratch = Buffer.allocUnsafe(s.length * 3);
+  const n = scratch.write(s, 0, 'utf8');
+  return hashBytes(scratch, 0, n);
 }
 
 export class KeyHashes {

@@ -1,3 +1,4 @@
+import type { Stats } from 'node:fs';
 import type { FileHandle } from 'node:fs/promises';
 import { basename, posix } from 'node:path';
 import { SaxesParser } from 'saxes';
@@ -78,6 +79,18 @@ function isDateFormat(code: string | undefined): boolean {
 /** The built-in number formats (ECMA-376 Part 1, 18.8.30) that are dates or times. */
 const BUILTIN_DATE_FORMATS = new Set([14, 15, 16, 17, 18, 19, 20, 21, 22, 45, 46, 47]);
 
+/**
+ * The shared strings of the last workbook read, kept for the next pass over the same file (the
+ * fingerprint pass is followed by the pass that fetches the selected rows). Only one is kept,
+ * and only while the file's size, modification time and inode are unchanged.
+ */
+let lastShared: { key: string; sst: SharedStrings } | undefined;
+
+/** Forget the shared strings kept from the last read. */
+export function forgetSharedStrings(): void {
+  lastShared = undefined;
+}
+
 export class Workbook {
   sheets: SheetInfo[] = [];
   formats: CellFormats = { dateXf: new Uint8Array(0), xfCount: 0, date1904: false };
@@ -86,6 +99,7 @@ export class Workbook {
     readonly path: string,
     private readonly fh: FileHandle,
     readonly size: number,
+    private readonly stats: Stats,
     private readonly entries: Map<string, ZipEntry>,
     readonly limits: WorkbookLimits,
   ) {}
@@ -96,7 +110,7 @@ export class Workbook {
 
   /** Open and read the sheet list and the cell formats. Throws FileInputError on anything wrong. */
   static async open(path: string, limits: WorkbookLimits = DEFAULT_LIMITS): Promise<Workbook> {
-    const { fh, size } = await openFile(path);
+    const { fh, size, stats } = await openFile(path);
     let wb: Workbook | undefined;
     try {
       let entries: Map<string, ZipEntry>;
@@ -106,7 +120,7 @@ export class Workbook {
         if (e instanceof ZipError && e.kind === 'not-zip') throw await notZip(fh, size, path);
         throw e;
       }
-      wb = new Workbook(path, fh, size, entries, limits);
+      wb = new Workbook(path, fh, size, stats, entries, limits);
       await wb.readStructure();
       return wb;
     } catch (e) {
@@ -225,9 +239,19 @@ export class Workbook {
     return first;
   }
 
-  private async sharedStrings(): Promise<SharedStrings | undefined> {
+  /** The shared strings (kept from the last read of the same, unchanged file). */
+  async sharedStrings(): Promise<SharedStrings | undefined> {
     const e = this.sharedPart;
     if (!e) return undefined;
+    const key = `${this.path}\0${this.stats.size}\0${this.stats.mtimeMs}\0${this.stats.ino}\0${this.limits.maxSharedStringBytes}`;
+    if (lastShared?.key === key) return lastShared.sst;
+    lastShared = undefined;
+    const sst = await this.readSharedStrings(e);
+    lastShared = { key, sst };
+    return sst;
+  }
+
+  private async readSharedStrings(e: ZipEntry): Promise<SharedStrings> {
     const cap = `its shared strings come to more than ${mib(this.limits.maxSharedStringBytes)} (the cap on shared-string bytes)`;
     const sst = new SharedStrings({ maxBytes: this.limits.maxSharedStringBytes, capMessage: cap });
     for await (const c of entryChunks(this.fh, this.size, e, {
@@ -240,8 +264,12 @@ export class Workbook {
     return sst;
   }
 
-  /** Stream the rows of a sheet; `width` is read again after every row (columns kept). */
-  async rows(sheet: SheetInfo, sink: SheetRowSink, width?: () => number): Promise<void> {
+  /**
+   * Stream the rows of a sheet. `plan` is called before the first row and after every row, to
+   * say which columns the next row's texts are needed for (the others are only checked for
+   * being empty, which is much cheaper).
+   */
+  async rows(sheet: SheetInfo, sink: SheetRowSink, plan?: (s: { width: number; keep: Uint8Array | null }) => void): Promise<void> {
     try {
       const entry = this.entries.get(sheet.part);
       if (!entry) {
@@ -256,7 +284,7 @@ export class Workbook {
         {
           row: (n, texts, last) => {
             const r = sink.row(n, texts, last);
-            if (width) scanner.width = width();
+            if (plan) plan(scanner);
             return r;
           },
         },
@@ -266,7 +294,7 @@ export class Workbook {
           elementCapMessage: `sheet "${sheet.name}" has one cell longer than ${mib(MAX_ELEMENT_BYTES)} of XML (the cap on one cell)`,
         },
       );
-      if (width) scanner.width = width();
+      if (plan) plan(scanner);
       const chunks = entryChunks(this.fh, this.size, entry, {
         maxBytes: this.limits.maxPartBytes,
         capMessage: `sheet "${sheet.name}" unpacks to more than ${mib(this.limits.maxPartBytes)} of XML (the cap on a part's uncompressed size)`,

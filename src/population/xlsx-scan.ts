@@ -42,6 +42,16 @@ const AMP = 0x26;
 const CR = 0x0d;
 const LF = 0x0a;
 
+/**
+ * Index of the next byte c in d from i, or -1. A plain loop: tags and values are a few bytes
+ * long, and a call into Buffer.indexOf costs more than scanning them here.
+ */
+function findByte(d: Buffer, c: number, i: number): number {
+  const n = d.length;
+  for (; i < n; i++) if (d[i] === c) return i;
+  return -1;
+}
+
 function isSpace(c: number): boolean {
   return c === 0x20 || c === 0x09 || c === LF || c === CR;
 }
@@ -71,6 +81,13 @@ class Bytes {
     this.n += this.b.write(String.fromCodePoint(cp), this.n, 'utf8');
   }
 }
+
+const T_NUM = 0;
+const T_SST = 1;
+const T_STR = 2;
+const T_BOOL = 3;
+const T_ERR = 4;
+const T_DATE = 5;
 
 const ENTITIES: Record<string, number> = { amp: 0x26, lt: 0x3c, gt: 0x3e, quot: 0x22, apos: 0x27 };
 
@@ -113,17 +130,22 @@ function appendText(d: Buffer, s: number, e: number, out: Bytes): void {
   }
 }
 
-/** Local name of the tag whose name starts at s (after `<` or `</`): its [start, end) without a prefix. */
-function tagName(d: Buffer, s: number, limit: number): [number, number] {
+/** Set by tagName: the local name (without a prefix) of the last tag read is d[nameStart, nameEnd). */
+let nameStart = 0;
+let nameEnd = 0;
+
+/** Read the name of the tag whose name starts at s (after `<` or `</`) into nameStart/nameEnd. */
+function tagName(d: Buffer, s: number, limit: number): void {
   let e = s;
   let local = s;
   while (e < limit) {
     const c = d[e]!;
-    if (isSpace(c) || c === SLASH || c === GT) break;
+    if (c === 0x20 || c === SLASH || c === GT || c === 0x09 || c === LF || c === CR) break;
     if (c === 0x3a) local = e + 1;
     e++;
   }
-  return [local, e];
+  nameStart = local;
+  nameEnd = e;
 }
 
 function nameIs(d: Buffer, s: number, e: number, name: string): boolean {
@@ -151,19 +173,28 @@ function skipSpecial(d: Buffer, lt: number, limit: number): number {
     const k = d.indexOf('?>', lt + 2);
     return k < 0 || k + 2 > limit ? -1 : k + 2;
   }
-  const k = d.indexOf(GT, lt);
+  const k = findByte(d, GT, lt);
   return k < 0 || k >= limit ? -1 : k + 1;
 }
 
-/** Attributes of the tag d[lt, gt) that the scanner needs, by (unprefixed) name. */
+/** Attributes of a row or cell tag that the scanner needs, read as numbers straight from the bytes. */
 interface Attrs {
-  r: string | undefined;
-  s: string | undefined;
-  t: string | undefined;
+  /** Column and row of `r` ("AB12"); 0 when absent. */
+  col: number;
+  row: number;
+  /** `s`, -1 when absent or not a number. */
+  s: number;
+  /** `t` as a type code, and whether it is exactly "str". */
+  t: number;
+  tStr: boolean;
 }
 
 function readAttrs(d: Buffer, from: number, gt: number, a: Attrs): void {
-  a.r = a.s = a.t = undefined;
+  a.col = 0;
+  a.row = 0;
+  a.s = -1;
+  a.t = T_NUM;
+  a.tStr = false;
   let i = from;
   while (i < gt) {
     while (i < gt && (isSpace(d[i]!) || d[i] === SLASH)) i++;
@@ -175,14 +206,49 @@ function readAttrs(d: Buffer, from: number, gt: number, a: Attrs): void {
     if (i >= gt) return;
     const q = d[i]!;
     const vs = i + 1;
-    const ve = d.indexOf(q, vs);
-    if (ve < 0 || ve > gt) return;
+    let ve = vs;
+    while (ve < gt && d[ve] !== q) ve++;
+    if (ve >= gt) return;
     i = ve + 1;
     if (ne - ns !== 1) continue;
     const n = d[ns];
-    if (n === 0x72) a.r = d.toString('latin1', vs, ve);
-    else if (n === 0x73) a.s = d.toString('latin1', vs, ve);
-    else if (n === 0x74) a.t = d.toString('latin1', vs, ve);
+    if (n === 0x72) {
+      let j = vs;
+      let col = 0;
+      for (; j < ve; j++) {
+        const c = d[j]! | 0x20;
+        if (c < 0x61 || c > 0x7a) break;
+        if (col <= SHEET_MAX_COLUMNS) col = col * 26 + (c - 0x60);
+      }
+      let row = 0;
+      for (; j < ve; j++) {
+        const c = d[j]! - 0x30;
+        if (c < 0 || c > 9) break;
+        if (row < 1e12) row = row * 10 + c;
+      }
+      a.col = col;
+      a.row = row;
+    } else if (n === 0x73) {
+      let v = 0;
+      let ok = ve > vs;
+      for (let j = vs; j < ve; j++) {
+        const c = d[j]! - 0x30;
+        if (c < 0 || c > 9) {
+          ok = j > vs;
+          break;
+        }
+        if (v < 1e9) v = v * 10 + c;
+      }
+      a.s = ok ? v : -1;
+    } else if (n === 0x74) {
+      const len = ve - vs;
+      const c0 = d[vs];
+      if (len === 1) a.t = c0 === 0x73 ? T_SST : c0 === 0x62 ? T_BOOL : c0 === 0x65 ? T_ERR : c0 === 0x64 ? T_DATE : T_NUM;
+      else if (len === 3 && c0 === 0x73 && d[vs + 1] === 0x74 && d[vs + 2] === 0x72) {
+        a.t = T_STR;
+        a.tStr = true;
+      } else if (len === 9 && d.toString('latin1', vs, ve) === 'inlineStr') a.t = T_STR;
+    }
   }
 }
 
@@ -193,7 +259,7 @@ function readAttrs(d: Buffer, from: number, gt: number, a: Attrs): void {
 function readContent(d: Buffer, from: number, limit: number, out: Bytes): number {
   let i = from;
   for (;;) {
-    const lt = d.indexOf(LT, i);
+    const lt = findByte(d, LT, i);
     if (lt < 0 || lt >= limit) {
       appendText(d, i, limit, out);
       return limit;
@@ -226,12 +292,14 @@ function readContent(d: Buffer, from: number, limit: number, out: Bytes): number
 function findClose(d: Buffer, from: number, limit: number, local: string): number {
   let i = from;
   for (;;) {
-    const lt = d.indexOf(LT, i);
+    const lt = findByte(d, LT, i);
     if (lt < 0 || lt >= limit) return -1;
     if (d[lt + 1] === SLASH) {
-      const [s, e] = tagName(d, lt + 2, limit);
+      tagName(d, lt + 2, limit);
+      const s = nameStart;
+      const e = nameEnd;
       if (nameIs(d, s, e, local)) {
-        const gt = d.indexOf(GT, e);
+        const gt = findByte(d, GT, e);
         return gt < 0 || gt >= limit ? -1 : gt + 1;
       }
     }
@@ -243,17 +311,19 @@ function findClose(d: Buffer, from: number, limit: number, local: string): numbe
 function readStringItem(d: Buffer, from: number, limit: number, out: Bytes): void {
   let i = from;
   for (;;) {
-    const lt = d.indexOf(LT, i);
+    const lt = findByte(d, LT, i);
     if (lt < 0 || lt >= limit) return;
     const c1 = d[lt + 1];
     if (c1 === SLASH || c1 === 0x21 || c1 === 0x3f) {
-      const k = c1 === SLASH ? d.indexOf(GT, lt) : skipSpecial(d, lt, limit) - 1;
+      const k = c1 === SLASH ? findByte(d, GT, lt) : skipSpecial(d, lt, limit) - 1;
       if (k < 0) return;
       i = k + 1;
       continue;
     }
-    const [s, e] = tagName(d, lt + 1, limit);
-    const gt = d.indexOf(GT, e);
+    tagName(d, lt + 1, limit);
+      const s = nameStart;
+      const e = nameEnd;
+    const gt = findByte(d, GT, e);
     if (gt < 0 || gt >= limit) return;
     if (nameIs(d, s, e, 'rPh')) {
       const k = d[gt - 1] === SLASH ? gt + 1 : findClose(d, gt + 1, limit, 'rPh');
@@ -319,7 +389,7 @@ export class SharedStrings {
     let p = 0;
     const end = d.length;
     for (;;) {
-      const lt = d.indexOf(LT, p);
+      const lt = findByte(d, LT, p);
       if (lt < 0) return end;
       if (lt + 3 > end) return lt;
       const c1 = d[lt + 1];
@@ -330,10 +400,29 @@ export class SharedStrings {
         continue;
       }
       const close = c1 === SLASH;
-      const [s, e] = tagName(d, lt + 1 + (close ? 1 : 0), end);
-      const gt = d.indexOf(GT, e);
+      tagName(d, lt + 1 + (close ? 1 : 0), end);
+      const s = nameStart;
+      const e = nameEnd;
+      const gt = findByte(d, GT, e);
       if (gt < 0) return lt;
       if (!close && nameIs(d, s, e, 'si')) {
+        // The usual shape, <si><t>plain text</t></si>, without the general walk.
+        const q = gt + 1;
+        if (e === lt + 3 && d[q] === LT && d[q + 1] === 0x74 && d[q + 2] === GT) {
+          const k = findByte(d, LT, q + 3);
+          if (k < 0) return lt;
+          if (k + 10 > end) return lt;
+          if (
+            d[k + 1] === SLASH && d[k + 2] === 0x74 && d[k + 3] === GT &&
+            d[k + 4] === LT && d[k + 5] === SLASH && d[k + 6] === 0x73 && d[k + 7] === 0x69 && d[k + 8] === GT
+          ) {
+            if (hasSpecial(d, q + 3, k)) appendText(d, q + 3, k, this.text);
+            else this.text.pushRange(d, q + 3, k);
+            this.add();
+            p = k + 9;
+            continue;
+          }
+        }
         if (d[gt - 1] === SLASH) {
           this.add();
           p = gt + 1;
@@ -353,6 +442,12 @@ export class SharedStrings {
 
   end(): void {
     this.carry = null;
+  }
+
+  /** The length in bytes of string i; 0 when there is no such string. */
+  length(i: number): number {
+    if (!(i >= 0 && i < this.count)) return 0;
+    return this.offsets[i + 1]! - this.offsets[i]!;
   }
 
   /** The text of string i; undefined when there is no such string. */
@@ -385,44 +480,6 @@ export interface SheetLimits {
   elementCapMessage: string;
 }
 
-const T_NUM = 0;
-const T_SST = 1;
-const T_STR = 2;
-const T_BOOL = 3;
-const T_ERR = 4;
-const T_DATE = 5;
-
-function typeCode(t: string | undefined): number {
-  switch (t) {
-    case 's':
-      return T_SST;
-    case 'str':
-    case 'inlineStr':
-      return T_STR;
-    case 'b':
-      return T_BOOL;
-    case 'e':
-      return T_ERR;
-    case 'd':
-      return T_DATE;
-    default:
-      return T_NUM;
-  }
-}
-
-/** Column number (1-based) of a cell reference such as "AB12"; 0 when there are no letters. */
-function columnOf(ref: string): number {
-  let n = 0;
-  for (let i = 0; i < ref.length; i++) {
-    const c = ref.charCodeAt(i);
-    if (c >= 0x41 && c <= 0x5a) n = n * 26 + (c - 0x40);
-    else if (c >= 0x61 && c <= 0x7a) n = n * 26 + (c - 0x60);
-    else break;
-    if (n > SHEET_MAX_COLUMNS) return n;
-  }
-  return n;
-}
-
 function pad(n: number, w = 2): string {
   return String(n).padStart(w, '0');
 }
@@ -443,6 +500,47 @@ export function serialToDate(v: number, date1904: boolean): Date {
   return new Date(Math.round((v - 25569 + (date1904 ? 1462 : 0)) * 24 * 3600 * 1000));
 }
 
+/** Whether d[s, e) is a number as JavaScript would print it, with at most 15 significant digits. */
+function canonicalNumber(d: Buffer, s: number, e: number): boolean {
+  let i = s;
+  if (d[i] === 0x2d) i++;
+  if (i >= e) return false;
+  const first = d[i]!;
+  if (first < 0x31 || first > 0x39) return false; // no leading zero (so no 0.x either), digits only
+  let digits = 0;
+  for (; i < e; i++) {
+    const c = d[i]!;
+    if (c === 0x2e) break;
+    if (c < 0x30 || c > 0x39) return false;
+    digits++;
+  }
+  if (i < e) {
+    i++;
+    if (i >= e) return false;
+    for (; i < e; i++) {
+      const c = d[i]!;
+      if (c < 0x30 || c > 0x39) return false;
+      digits++;
+    }
+    if (d[e - 1] === 0x30) return false;
+  }
+  return digits <= 15;
+}
+
+/** Small cache of texts by value bytes (dates and other repeated numbers). */
+class TextCache {
+  private map = new Map<string, string>();
+  get(key: string, make: () => string): string {
+    let v = this.map.get(key);
+    if (v === undefined) {
+      if (this.map.size >= 4096) this.map.clear();
+      v = make();
+      this.map.set(key, v);
+    }
+    return v;
+  }
+}
+
 /**
  * Streams a worksheet's XML and hands out one row at a time. Memory is one row and one cell
  * element (plus the chunk), whatever the number of rows.
@@ -453,14 +551,17 @@ export class SheetScanner {
   done = false;
   private rowNumber = 0;
   private rowOpen = false;
-  private rowDate = -1;
+  private rowDate = 0;
   private col = 0;
   private lastCol = 0;
   private texts: string[] = [];
-  private readonly attrs: Attrs = { r: undefined, s: undefined, t: undefined };
+  private readonly attrs: Attrs = { col: 0, row: 0, s: -1, t: T_NUM, tStr: false };
   private readonly text = new Bytes();
+  private readonly dates = new TextCache();
   /** Columns whose text is kept (the rest are only checked for being empty). */
   width = Infinity;
+  /** When set, only columns c with keep[c] = 1 (1-based) have their text made; the others are ''. */
+  keep: Uint8Array | null = null;
 
   constructor(
     private readonly sst: SharedStrings | undefined,
@@ -473,11 +574,29 @@ export class SheetScanner {
   push(chunk: Buffer): boolean {
     if (this.done) return false;
     let d = chunk;
-    if (this.carry) {
-      d = Buffer.concat([this.carry, chunk]);
+    let from = 0;
+    const carry = this.carry;
+    if (carry) {
+      // Finish the element cut by the last chunk on a short join, then go on in the chunk itself.
       this.carry = null;
+      let take = Math.min(chunk.length, 4096);
+      for (;;) {
+        const joined = Buffer.concat([carry, chunk.subarray(0, take)]);
+        const p = this.parse(joined, 0);
+        if (this.done) return false;
+        if (p > carry.length || take === chunk.length) {
+          if (p >= carry.length) from = p - carry.length;
+          else {
+            d = joined;
+            from = p;
+          }
+          break;
+        }
+        take = Math.min(chunk.length, take * 4);
+      }
+      if (d === chunk && from >= chunk.length) return true;
     }
-    const p = this.parse(d);
+    const p = d === chunk ? this.parse(chunk, from) : from;
     if (!this.done && p < d.length) {
       if (d.length - p > MAX_ELEMENT_BYTES) throw new ScanError(this.limits.elementCapMessage, 'cap');
       this.carry = Buffer.from(d.subarray(p));
@@ -491,15 +610,12 @@ export class SheetScanner {
     this.carry = null;
   }
 
-  private startRow(a: Attrs): void {
-    const r = a.r !== undefined ? parseInt(a.r, 10) : NaN;
-    this.rowNumber = Number.isFinite(r) && r > 0 ? r : this.rowNumber + 1;
+  private startRow(a: Attrs | undefined): void {
+    const r = a ? a.row : 0;
+    this.rowNumber = r > 0 ? r : this.rowNumber + 1;
     if (this.rowNumber > this.limits.maxRows) throw new ScanError(this.limits.rowCapMessage, 'cap');
-    this.rowDate = -1;
-    if (a.s !== undefined && a.s !== '') {
-      const id = parseInt(a.s, 10);
-      if (id >= 0 && id < this.formats.xfCount) this.rowDate = this.formats.dateXf[id]!;
-    }
+    this.rowDate = 0;
+    if (a && a.s >= 0 && a.s < this.formats.xfCount) this.rowDate = this.formats.dateXf[a.s]!;
     this.rowOpen = true;
     this.col = 0;
     this.lastCol = 0;
@@ -511,12 +627,12 @@ export class SheetScanner {
     if (this.sink.row(this.rowNumber, this.texts, this.lastCol) === false) this.done = true;
   }
 
-  private parse(d: Buffer): number {
-    let p = 0;
+  /** Parse d from p; returns the first index not consumed. */
+  private parse(d: Buffer, p: number): number {
     const end = d.length;
     const a = this.attrs;
     for (;;) {
-      const lt = d.indexOf(LT, p);
+      const lt = findByte(d, LT, p);
       if (lt < 0) return end;
       if (lt + 3 > end) return lt;
       const c1 = d[lt + 1];
@@ -527,8 +643,10 @@ export class SheetScanner {
         continue;
       }
       const close = c1 === SLASH;
-      const [s, e] = tagName(d, lt + 1 + (close ? 1 : 0), end);
-      const gt = d.indexOf(GT, e);
+      tagName(d, lt + 1 + (close ? 1 : 0), end);
+      const s = nameStart;
+      const e = nameEnd;
+      const gt = findByte(d, GT, e);
       if (gt < 0) return lt;
       const selfClosing = d[gt - 1] === SLASH;
       if (!this.inData) {
@@ -546,15 +664,13 @@ export class SheetScanner {
       if (len === 1 && d[s] === 0x63 /* c */ && !close) {
         readAttrs(d, e, gt, a);
         if (selfClosing) {
-          this.cell(a, d, -1, -1, false);
+          this.cell(d, -1, end);
           p = gt + 1;
           continue;
         }
-        const k = findClose(d, gt + 1, end, 'c');
+        const k = this.cell(d, gt + 1, end);
         if (k < 0) return lt;
-        this.cell(a, d, gt + 1, k, true);
         p = k;
-        if (this.done) return p;
         continue;
       }
       if (len === 3 && nameIs(d, s, e, 'row')) {
@@ -585,100 +701,178 @@ export class SheetScanner {
     }
   }
 
-  /** One cell: attributes in `a`, content d[from, to) (to = after its closing tag). */
-  private cell(a: Attrs, d: Buffer, from: number, to: number, hasContent: boolean): void {
-    if (!this.rowOpen) this.startRow({ r: undefined, s: undefined, t: undefined });
-    let col = a.r !== undefined ? columnOf(a.r) : 0;
-    if (col === 0) col = this.col + 1;
-    if (col > SHEET_MAX_COLUMNS) throw new ScanError(`row ${this.rowNumber} has a cell beyond column XFD, the last a worksheet can hold (${SHEET_MAX_COLUMNS.toLocaleString('en-US')} columns)`, 'damaged');
-    this.col = col;
-    if (!hasContent) return;
-    const type = typeCode(a.t);
-    const styleId = a.s !== undefined ? parseInt(a.s, 10) : NaN;
+  /**
+   * One cell, its attributes in this.attrs and its content from `from` (-1: self-closing).
+   * Returns the index after `</c>`, or -1 when the cell is not complete in d (nothing changed).
+   */
+  private cell(d: Buffer, from: number, end: number): number {
+    const a = this.attrs;
     // Content: <f> (formula), <v> (value), <is> (inline string); the last <v>/<is> is the value.
-    const out = this.text;
-    let hasF = false;
-    let hasV = false;
-    let i = from;
-    for (;;) {
-      const lt = d.indexOf(LT, i);
-      if (lt < 0 || lt >= to) break;
-      const c1 = d[lt + 1];
-      if (c1 === SLASH || c1 === 0x21 || c1 === 0x3f) {
-        const k = c1 === SLASH ? d.indexOf(GT, lt) + 1 : skipSpecial(d, lt, to);
-        if (k <= 0) break;
-        i = k;
-        continue;
-      }
-      const [s, e] = tagName(d, lt + 1, to);
-      const gt = d.indexOf(GT, e);
-      if (gt < 0 || gt >= to) break;
-      const self = d[gt - 1] === SLASH;
-      const len = e - s;
-      if (len === 1 && d[s] === 0x76 /* v */) {
-        hasV = true;
-        out.n = 0;
-        i = self ? gt + 1 : readContent(d, gt + 1, to, out);
-        continue;
-      }
-      if (len === 1 && d[s] === 0x66 /* f */) {
-        hasF = true;
-        i = self ? gt + 1 : findClose(d, gt + 1, to, 'f');
-        if (i < 0) break;
-        continue;
-      }
-      if (len === 2 && d[s] === 0x69 && d[s + 1] === 0x73 /* is */) {
-        hasV = true;
-        out.n = 0;
-        if (self) {
+    let vs = -1;
+    let ve = -1;
+    let decoded = false;
+    let after = -1;
+    if (from >= 0) {
+      let i = from;
+      for (;;) {
+        const lt = findByte(d, LT, i);
+        if (lt < 0 || lt + 2 >= end) return -1;
+        const c1 = d[lt + 1];
+        if (c1 === 0x21 || c1 === 0x3f) {
+          const k = skipSpecial(d, lt, end);
+          if (k < 0) return -1;
+          i = k;
+          continue;
+        }
+        const close = c1 === SLASH;
+        tagName(d, lt + 1 + (close ? 1 : 0), end);
+      const s = nameStart;
+      const e = nameEnd;
+        const gt = findByte(d, GT, e);
+        if (gt < 0) return -1;
+        const len = e - s;
+        if (close) {
+          if (len === 1 && d[s] === 0x63) {
+            after = gt + 1;
+            break;
+          }
           i = gt + 1;
           continue;
         }
-        const k = findClose(d, gt + 1, to, 'is');
-        const stop = k < 0 ? to : k;
-        readStringItem(d, gt + 1, stop, out);
-        i = stop;
-        continue;
+        const self = d[gt - 1] === SLASH;
+        if (len === 1 && d[s] === 0x76 /* v */) {
+          if (self) {
+            vs = ve = 0;
+            decoded = false;
+            i = gt + 1;
+            continue;
+          }
+          const k = findByte(d, LT, gt + 1);
+          if (k < 0) return -1;
+          if (d[k + 1] === SLASH && !hasSpecial(d, gt + 1, k)) {
+            vs = gt + 1;
+            ve = k;
+            decoded = false;
+          } else {
+            this.text.n = 0;
+            const stop = readContent(d, gt + 1, end, this.text);
+            if (stop >= end) return -1;
+            vs = 0;
+            ve = this.text.n;
+            decoded = true;
+            i = stop;
+            continue;
+          }
+          i = k;
+          continue;
+        }
+        if (len === 1 && d[s] === 0x66 /* f */) {
+          i = gt + 1;
+          continue;
+        }
+        if (len === 2 && d[s] === 0x69 && d[s + 1] === 0x73 /* is */) {
+          this.text.n = 0;
+          vs = ve = 0;
+          decoded = true;
+          if (self) {
+            i = gt + 1;
+            continue;
+          }
+          const k = findClose(d, gt + 1, end, 'is');
+          if (k < 0) return -1;
+          readStringItem(d, gt + 1, k, this.text);
+          ve = this.text.n;
+          i = k;
+          continue;
+        }
+        i = gt + 1;
       }
-      i = gt + 1;
     }
-    if (!hasV) return;
-    const text = this.valueText(type, styleId, hasF, out);
-    if (text === '') return;
+    if (!this.rowOpen) this.startRow(undefined);
+    let col = a.col;
+    if (col === 0) col = this.col + 1;
+    if (col > SHEET_MAX_COLUMNS) throw new ScanError(`row ${this.rowNumber} has a cell beyond column XFD, the last a worksheet can hold (${SHEET_MAX_COLUMNS.toLocaleString('en-US')} columns)`, 'damaged');
+    this.col = col;
+    if (vs < 0 || ve === vs) return from < 0 ? 0 : after;
+    const b = decoded ? this.text.b : d;
+    const keep = this.keep;
+    if (col > this.width || (keep !== null && keep[col] !== 1)) {
+      if (!this.isEmpty(b, vs, ve)) this.lastCol = col;
+      return from < 0 ? 0 : after;
+    }
+    const text = this.valueText(b, vs, ve);
+    if (text === '') return from < 0 ? 0 : after;
     this.lastCol = col;
-    if (col <= this.width) {
+    {
       const t = this.texts;
       while (t.length < col) t.push('');
       t[col - 1] = text;
     }
+    return from < 0 ? 0 : after;
+  }
+
+  /** Whether the text of the value b[s, e) would be empty, without making it where that can be told. */
+  private isEmpty(b: Buffer, s: number, e: number): boolean {
+    const t = this.attrs.t;
+    if (t === T_SST) {
+      let idx = 0;
+      for (let i = s; i < e; i++) {
+        const c = b[i]! - 0x30;
+        if (c < 0 || c > 9) return i === s ? true : (this.sst?.length(idx) ?? 0) === 0;
+        idx = idx * 10 + c;
+      }
+      return (this.sst?.length(idx) ?? 0) === 0;
+    }
+    if (t !== T_NUM) return false;
+    // A number's text is never empty; a date's is when the serial is not a number.
+    const f = this.formats;
+    const isDate = this.attrs.s > 0 && this.attrs.s < f.xfCount ? f.dateXf[this.attrs.s] : this.rowDate;
+    return isDate ? this.valueText(b, s, e) === '' : false;
   }
 
   /**
-   * The text of a cell's value. A formula's cached value is read like a constant of the same
-   * type (see cell-text.ts for where this differs from exceljs); an empty value is blank.
+   * The text of a cell's value b[s, e) (not empty). A formula's cached value is read like a
+   * constant of the same type (see cell-text.ts for where this differs from exceljs).
    */
-  private valueText(type: number, styleId: number, _hasF: boolean, v: Bytes): string {
-    if (v.n === 0) return '';
-    switch (type) {
+  private valueText(b: Buffer, s: number, e: number): string {
+    const a = this.attrs;
+    switch (a.t) {
       case T_SST: {
-        const idx = parseInt(v.b.toString('latin1', 0, v.n), 10);
+        let idx = 0;
+        for (let i = s; i < e; i++) {
+          const c = b[i]! - 0x30;
+          if (c < 0 || c > 9) {
+            idx = i === s ? -1 : idx;
+            break;
+          }
+          idx = idx * 10 + c;
+        }
         return this.sst?.get(idx) ?? '';
       }
       case T_STR:
       case T_ERR:
-        return v.b.toString('utf8', 0, v.n);
+        return b.toString('utf8', s, e);
       case T_BOOL:
-        return parseInt(v.b.toString('latin1', 0, v.n), 10) !== 0 ? 'TRUE' : 'FALSE';
+        return parseInt(b.toString('latin1', s, e), 10) !== 0 ? 'TRUE' : 'FALSE';
       case T_DATE:
-        return isoCellText(v.b.toString('utf8', 0, v.n));
+        return isoCellText(b.toString('utf8', s, e));
       default: {
-        const num = parseFloat(v.b.toString('latin1', 0, v.n));
         const f = this.formats;
-        let isDate: number;
-        if (styleId > 0 && styleId < f.xfCount) isDate = f.dateXf[styleId]!;
-        else isDate = this.rowDate === 1 ? 1 : 0;
-        return isDate ? cellText(serialToDate(num, f.date1904)) : cellText(num);
+        const isDate = a.s > 0 && a.s < f.xfCount ? f.dateXf[a.s] : this.rowDate;
+        const raw = b.toString('latin1', s, e);
+        if (isDate) return this.dates.get(raw, () => cellText(serialToDate(parseFloat(raw), f.date1904)));
+        if (canonicalNumber(b, s, e)) return raw;
+        return cellText(parseFloat(raw));
       }
     }
   }
+}
+
+/** Whether d[s, e) holds an entity, a CR or CDATA (so it must be decoded). */
+function hasSpecial(d: Buffer, s: number, e: number): boolean {
+  for (let i = s; i < e; i++) {
+    const c = d[i];
+    if (c === AMP || c === CR) return true;
+  }
+  return false;
 }

@@ -1,7 +1,8 @@
 import { basename } from 'node:path';
 import { buildValidation, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
-import { hashFileHere } from './hash.js';
+import { hashFileHere, hashFileInWorker, WORKER_MIN_BYTES, type FileHash } from './hash.js';
+import { openFile } from './file.js';
 import { hashString } from './key-index.js';
 import type { KeyFinder, RowPicker } from './pick.js';
 import type { Reporter } from './progress.js';
@@ -23,6 +24,18 @@ interface WalkHandlers {
   /** A data row; `extra` when there are values beyond the last named column. */
   row(values: string[], row: number, position: number, extra: boolean): boolean | void;
   blank?(row: number, count: number): void;
+  /**
+   * The columns (1-based mask) whose texts the data row at `position` needs; null for all.
+   * The other columns read as '' (they are still checked for being empty).
+   */
+  keep?(position: number): Uint8Array | null;
+}
+
+/** A column mask with the given 0-based columns kept. */
+function mask(width: number, cols: Array<number | undefined>): Uint8Array {
+  const m = new Uint8Array(width + 1);
+  for (const c of cols) if (c !== undefined) m[c + 1] = 1;
+  return m;
 }
 
 async function walk(
@@ -58,7 +71,10 @@ async function walk(
           if (h.row(valuesUpTo(texts, width), n, pos++, lastCol > width) === false) return false;
         },
       },
-      () => width,
+      (sc) => {
+        sc.width = width;
+        sc.keep = headerSeen && h.keep ? h.keep(pos) : null;
+      },
     );
     report.update({ phase, bytesDone: wb.size, bytesTotal: wb.size, rows: pos });
     return { rows: pos, sheet: sheet.name, size: wb.size };
@@ -74,7 +90,13 @@ function valuesUpTo(texts: string[], width: number): string[] {
 }
 
 async function sha256File(path: string): Promise<string> {
-  return (await hashFileHere(path)).sha256;
+  return (await hashFile(path)).sha256;
+}
+
+async function hashFile(path: string): Promise<FileHash> {
+  const { fh, size } = await openFile(path);
+  await fh.close();
+  return size >= WORKER_MIN_BYTES ? hashFileInWorker(path) : hashFileHere(path);
 }
 
 
@@ -87,15 +109,19 @@ function valuesOf(names: string[], values: string[]): Record<string, string> {
 }
 
 export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<PopulationScan> {
-  const sha256 = await sha256File(src.path);
+  // The SHA-256 runs in a worker thread beside the first pass (on this thread for a small file).
+  const hashing = hashFile(src.path);
+  hashing.catch(() => undefined);
   let r: ResolvedColumns | undefined;
   let c: RowChecker | undefined;
+  let keepMask: Uint8Array | undefined;
   const blankRows = new Problems();
   const w = await walk(
     src,
     {
       header: (values) => {
         r = resolveColumns(src, values);
+        keepMask = mask(values.length, [r.key, r.amount, r.date]);
         c = new RowChecker({
           width: r.names.length,
           key: r.key,
@@ -106,6 +132,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
         });
       },
       row: (values, row, _p, extra) => c!.textRow(values, row, extra),
+      keep: () => keepMask!,
       blank: (row, count) => {
         for (let i = 0; i < count; i++) blankRows.add(row + i, 'blank row');
       },
@@ -113,6 +140,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
     report,
     'reading',
   );
+  const sha256 = (await hashing).sha256;
   const file = basename(src.path);
   const base = { sha256, format: 'xlsx' as const, sheet: w.sheet, bytes: w.size, file };
   if (!r || !c) {
@@ -146,6 +174,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
   let duplicates: DuplicateResult = { count: 0, rows: 0, examples: [] };
   if (candidates.size > 0) {
     const dc = new DuplicateCollector(candidates);
+    const keyOnly = mask(rr.names.length, [rr.key]);
     await walk(
       { ...src, sheet: w.sheet },
       {
@@ -153,6 +182,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
           const k = (values[rr.key] ?? '').trim();
           if (k !== '') dc.offer(hashString(k), () => k, row);
         },
+        keep: () => keyOnly,
       },
       report,
       'checking duplicates',
@@ -202,6 +232,7 @@ export async function readXlsxRowsAt(
 ): Promise<number> {
   if (verify) verify(await sha256File(src.path));
   let r: ResolvedColumns | undefined;
+  const none = new Uint8Array(0);
   const w = await walk(
     src,
     {
@@ -214,6 +245,7 @@ export async function readXlsxRowsAt(
         }
         return picker.finished ? false : undefined;
       },
+      keep: (position) => (picker.wants(position) ? null : none),
     },
     report,
     'fetching rows',
