@@ -377,6 +377,29 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
   };
 }
 
+/**
+ * The header of a CSV file as the population reader takes it: the first record that is not a
+ * blank line, read by the same tokenizer (so a quoted line break in a header name is read the
+ * same way everywhere). `undefined` when the file has no such record.
+ */
+export async function readCsvHeader(path: string, delimiterGiven?: string): Promise<{ fields: string[]; delimiter: string } | undefined> {
+  const { delimiter } = await sniff({ kind: 'csv', path, keyColumn: '-', ...(delimiterGiven !== undefined ? { delimiter: delimiterGiven } : {}) });
+  let fields: string[] | undefined;
+  await walk(
+    path,
+    delimiter,
+    {
+      header: (t) => {
+        fields = headerOf(t);
+      },
+      row: () => false,
+    },
+    { update() {}, done() {} },
+    'reading',
+  );
+  return fields ? { fields, delimiter } : undefined;
+}
+
 function rowValues(t: CsvTokenizer, names: string[]): Record<string, string> {
   const values: Record<string, string> = {};
   names.forEach((n, i) => {

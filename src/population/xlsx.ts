@@ -271,3 +271,22 @@ export async function findXlsxKeys(src: XlsxSource, finder: KeyFinder, report: R
   );
   return finder.result(w.rows);
 }
+
+/** The header of a sheet (the named one, else the first visible one): the first row with any value. */
+export async function readXlsxHeader(path: string, sheet?: string): Promise<{ sheet: string; values: string[] | undefined }> {
+  const wb = await Workbook.open(path);
+  try {
+    const info = wb.pick(sheet);
+    let values: string[] | undefined;
+    await wb.rows(info, {
+      row: (_n, texts, lastCol) => {
+        if (lastCol === 0) return;
+        values = valuesUpTo(texts, lastCol);
+        return false;
+      },
+    });
+    return { sheet: info.name, values };
+  } finally {
+    await wb.close();
+  }
+}
