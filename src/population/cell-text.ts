@@ -3,6 +3,19 @@
  * spreadsheet shows; 1234.5599999999999 is 1234.56), dates as yyyy-mm-dd (with the time when
  * there is one), formulas as their last computed result, rich text as its plain text. The values
  * are the shapes exceljs gives (it writes the fieldwork sheet, and the tests compare with it).
+ *
+ * The workbook reader (xlsx-scan.ts) gives the texts exceljs's streaming reader gave, cell for
+ * cell (tests/population/xlsx-property.test.ts), except where that reader lost or damaged the
+ * value; there it follows the file format (tests/population/xlsx-reader.test.ts):
+ * - a formula's cached value is read like a constant of its type: 0 is "0" and FALSE "FALSE"
+ *   (exceljs: blank), TRUE is "TRUE" (exceljs: "1"), an error is its code (exceljs: blank), and a
+ *   result with a date format is a date (exceljs: the serial number);
+ * - an inline string is all its runs (exceljs: the last run); a phonetic reading (rPh) is not
+ *   part of the text (exceljs: it replaced the text);
+ * - entities are decoded once (exceljs decoded inline strings and sheet names twice);
+ * - a character cut by a 16 KiB chunk boundary of the unpacked XML stays whole (exceljs: U+FFFD);
+ * - ISO 8601 date cells (t="d") are dates (exceljs: the year as a number); date1904="true" is
+ *   honoured like date1904="1"; an empty <v/> is blank (exceljs: "NaN").
  */
 
 function pad(n: number, w = 2): string {
