@@ -1,9 +1,8 @@
 import { basename } from 'node:path';
-import { buildValidation, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
+import { buildValidation, confirmDuplicates, offerText, Problems, RowChecker } from './checker.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { hashFileHere, hashFileInWorker, WORKER_MIN_BYTES, type FileHash } from './hash.js';
 import { openFile } from './file.js';
-import { hashString } from './key-index.js';
 import type { KeyFinder, RowPicker } from './pick.js';
 import type { Reporter } from './progress.js';
 import type { KeyLookup, PopulationScan, ScanProgress, XlsxSource } from './types.js';
@@ -170,25 +169,18 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
   }
   const rr = r;
   const cc = c;
-  const candidates = cc.hashes.candidates();
-  let duplicates: DuplicateResult = { count: 0, rows: 0, examples: [] };
-  if (candidates.size > 0) {
-    const dc = new DuplicateCollector(candidates);
-    const keyOnly = mask(rr.names.length, [rr.key]);
+  const keyOnly = mask(rr.names.length, [rr.key]);
+  const duplicates = await confirmDuplicates(cc.hashes, async (dc) => {
     await walk(
       { ...src, sheet: w.sheet },
       {
-        row: (values, row) => {
-          const k = (values[rr.key] ?? '').trim();
-          if (k !== '') dc.offer(hashString(k), () => k, row);
-        },
+        row: (values, row) => offerText((values[rr.key] ?? '').trim(), dc, row),
         keep: () => keyOnly,
       },
       report,
       'checking duplicates',
     );
-    duplicates = dc.result();
-  }
+  });
   const dates = cc.dates?.summary();
   const amountColumn = rr.amount !== undefined ? rr.names[rr.amount] : undefined;
   const dateColumn = rr.date !== undefined ? rr.names[rr.date] : undefined;

@@ -4,7 +4,10 @@
  * each value turned into text by cellText. Kept here, for the tests only, so the new reader can
  * be compared with it cell for cell.
  */
+import { readFileSync } from 'node:fs';
+import { Readable } from 'node:stream';
 import ExcelJS from 'exceljs';
+import JSZip from 'jszip';
 import { cellText } from '../../src/population/cell-text.js';
 import { Workbook } from '../../src/population/workbook.js';
 
@@ -29,9 +32,27 @@ function trimmed(texts: string[]): string[] {
   return texts.slice(0, n);
 }
 
+const FIRST = ['_rels/.rels', 'xl/_rels/workbook.xml.rels', 'xl/workbook.xml', 'xl/styles.xml', 'xl/sharedStrings.xml'];
+
+/**
+ * The same parts, in the order exceljs's streaming reader needs to read a sheet as it streams
+ * (workbook, relationships, styles and shared strings first). In any other order it copies each
+ * sheet to a temporary file and reads it afterwards, a path that fails now and then under load
+ * (an ENOENT from its temporary files, or "Cannot read properties of undefined"); the parts and
+ * their bytes are the same, so the reference texts are too.
+ */
+async function inReadingOrder(path: string): Promise<Buffer> {
+  const src = await JSZip.loadAsync(readFileSync(path));
+  const out = new JSZip();
+  const names = Object.keys(src.files).filter((n) => !src.files[n]!.dir);
+  const ordered = [...FIRST.filter((n) => names.includes(n)), ...names.filter((n) => !FIRST.includes(n))];
+  for (const n of ordered) out.file(n, await src.files[n]!.async('nodebuffer'));
+  return out.generateAsync({ type: 'nodebuffer', compression: 'DEFLATE' });
+}
+
 /** Rows with any text, by exceljs. */
 export async function exceljsRows(path: string, sheet: string): Promise<ReadRow[]> {
-  const reader = new ExcelJS.stream.xlsx.WorkbookReader(path, {
+  const reader = new ExcelJS.stream.xlsx.WorkbookReader(Readable.from([await inReadingOrder(path)]), {
     worksheets: 'emit',
     sharedStrings: 'cache',
     styles: 'cache',
