@@ -60,9 +60,11 @@ function isSpace(c: number): boolean {
 class Bytes {
   b = Buffer.allocUnsafe(1024);
   n = 0;
+  /** Growth stops doubling at this size (a cap is checked by the owner). */
+  constructor(private readonly most = Infinity) {}
   reserve(k: number): void {
     if (this.n + k > this.b.length) {
-      const next = Buffer.allocUnsafe(Math.max(this.b.length * 2, this.n + k));
+      const next = Buffer.allocUnsafe(Math.max(Math.min(this.b.length * 2, this.most), this.n + k));
       this.b.copy(next, 0, 0, this.n);
       this.b = next;
     }
@@ -347,12 +349,13 @@ export interface SharedStringLimits {
 
 /** The shared-strings table, held as UTF-8 bytes with an offset per string (not as JS strings). */
 export class SharedStrings {
-  private text = new Bytes();
+  private readonly text: Bytes;
   private offsets = new Uint32Array(1024);
   count = 0;
   private carry: Buffer | null = null;
   private prefixDone = false;
   constructor(private readonly limits: SharedStringLimits) {
+    this.text = new Bytes(limits.maxBytes + MAX_ELEMENT_BYTES);
     this.offsets[0] = 0;
   }
 
