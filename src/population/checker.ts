@@ -175,8 +175,9 @@ export async function confirmDuplicates(
   const parts = confirmParts(candidates, hashes);
   if (parts === 0) return { count: 0, rows: 0, examples: [] };
   const results: DuplicateResult[] = [];
+  const dc = new DuplicateCollector(candidates, 0, parts, DUPLICATE_EXAMPLES, EXAMPLES);
   for (let part = 0; part < parts; part++) {
-    const dc = new DuplicateCollector(candidates, part, parts, DUPLICATE_EXAMPLES, EXAMPLES);
+    if (part > 0) dc.reset(part);
     await read(dc);
     results.push(dc.result());
   }

@@ -62,7 +62,13 @@ export function hashString(s: string): void {
 }
 
 const BUCKETS = 256;
-const CHUNK = 4096;
+/**
+ * A bucket's first chunk holds SMALL hashes, the next ones CHUNK: small populations waste little,
+ * and the big chunks of a big one are large enough for the allocator to give them back to the
+ * system when they are freed (small ones stay in the process's heap and count in its memory).
+ */
+const SMALL = 4096;
+const CHUNK = 65536;
 /** 2^16, to put 32 + 16 bits in one exact double. */
 const P16 = 65536;
 
@@ -95,7 +101,8 @@ export class Candidates {
 export class KeyHashes {
   private los: Uint32Array[][] = Array.from({ length: BUCKETS }, () => []);
   private his: Uint16Array[][] = Array.from({ length: BUCKETS }, () => []);
-  private fill = new Int32Array(BUCKETS).fill(CHUNK);
+  private fill = new Int32Array(BUCKETS);
+  private cap = new Int32Array(BUCKETS);
   private n = 0;
   /** Total bytes of the keys hashed (for the confirming pass's budget). */
   keyBytes = 0;
@@ -104,9 +111,11 @@ export class KeyHashes {
   addCurrent(len: number): void {
     const b = H.hi >>> 24;
     let f = this.fill[b]!;
-    if (f === CHUNK) {
-      this.los[b]!.push(new Uint32Array(CHUNK));
-      this.his[b]!.push(new Uint16Array(CHUNK));
+    if (f === this.cap[b]) {
+      const size = this.los[b]!.length === 0 ? SMALL : CHUNK;
+      this.los[b]!.push(new Uint32Array(size));
+      this.his[b]!.push(new Uint16Array(size));
+      this.cap[b] = size;
       f = 0;
     }
     const los = this.los[b]!;
@@ -135,7 +144,8 @@ export class KeyHashes {
     for (let b = 0; b < BUCKETS; b++) {
       const los = this.los[b]!;
       const his = this.his[b]!;
-      const count = los.length === 0 ? 0 : (los.length - 1) * CHUNK + this.fill[b]!;
+      let count = los.length ? this.fill[b]! : 0;
+      for (let c = 0; c < los.length - 1; c++) count += los[c]!.length;
       let size = 16;
       while (size < count * 2) size *= 2;
       if (table.length < size) {
@@ -149,7 +159,7 @@ export class KeyHashes {
       for (let c = 0; c < los.length; c++) {
         const l = los[c]!;
         const h = his[c]!;
-        const m = c === los.length - 1 ? this.fill[b]! : CHUNK;
+        const m = c === los.length - 1 ? this.fill[b]! : l.length;
         for (let i = 0; i < m; i++) {
           const lo = l[i]!;
           const v = lo * P16 + h[i]!;
@@ -201,7 +211,7 @@ export interface DuplicateResult {
 }
 
 /** Memory the confirming pass may use for the candidate keys, per reading of the file. */
-export const CONFIRM_BUDGET_BYTES = 48 * 1024 * 1024;
+export const CONFIRM_BUDGET_BYTES = 32 * 1024 * 1024;
 /** Bytes a candidate key costs in the confirming pass besides its own bytes. */
 const PER_KEY = 36;
 
@@ -230,7 +240,7 @@ export class DuplicateCollector {
 
   constructor(
     readonly candidates: Candidates,
-    readonly part = 0,
+    public part = 0,
     readonly parts = 1,
     private readonly examples = 10,
     private readonly rowsPerExample = 5,
@@ -243,6 +253,15 @@ export class DuplicateCollector {
     let s = 16;
     while (s < expect * 2) s *= 2;
     this.slots = new Int32Array(s);
+  }
+
+  /** Start on another part, keeping the memory. */
+  reset(part: number): void {
+    this.part = part;
+    this.used = 0;
+    this.groups = 0;
+    this.slots.fill(0);
+    this.ex = [];
   }
 
   /** A key of bytes b[s, e) (hashed into H by the caller) on `row`. */

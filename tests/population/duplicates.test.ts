@@ -56,10 +56,12 @@ describe('duplicate keys', () => {
       hashes.addCurrent(Buffer.byteLength(k));
     }
     const cands = hashes.candidates();
-    const run = (parts: number) =>
-      mergeDuplicates(
+    // As the confirming pass does it: one collector, reset for each part.
+    const run = (parts: number) => {
+      const dc = new DuplicateCollector(cands, 0, parts);
+      return mergeDuplicates(
         Array.from({ length: parts }, (_, part) => {
-          const dc = new DuplicateCollector(cands, part, parts);
+          if (part > 0) dc.reset(part);
           keys.forEach((k, i) => {
             const [b, len] = utf8Of(k);
             hashString(k);
@@ -68,6 +70,7 @@ describe('duplicate keys', () => {
           return dc.result();
         }),
       );
+    };
     const one = run(1);
     expect(one).toEqual(expected(keys, 1));
     expect(run(7)).toEqual(one);
