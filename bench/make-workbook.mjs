@@ -28,7 +28,7 @@ function xorshift(seed) {
   };
 }
 
-class ZipOut {
+export class ZipOut {
   constructor(path) {
     this.ws = createWriteStream(path);
     this.offset = 0;
@@ -39,7 +39,7 @@ class ZipOut {
     if (!this.ws.write(b)) await new Promise((r) => this.ws.once('drain', r));
   }
   /** A member from an async iterable of strings, deflated as it comes (sizes in a data descriptor). */
-  async member(name, pieces) {
+  async member(name, pieces, level = 6) {
     const nb = Buffer.from(name);
     const at = this.offset;
     const lh = Buffer.alloc(30);
@@ -50,7 +50,7 @@ class ZipOut {
     lh.writeUInt16LE(nb.length, 26);
     await this.write(lh);
     await this.write(nb);
-    const def = createDeflateRaw({ level: 6 });
+    const def = createDeflateRaw({ level });
     let csize = 0;
     let usize = 0;
     let crc = 0;
@@ -147,6 +147,27 @@ export async function makeWorkbook(rows, out) {
     }
     yield '</sheetData><pageMargins left="0.7" right="0.7" top="0.75" bottom="0.75" header="0.3" footer="0.3"/></worksheet>';
   })()));
+  await z.end();
+  return out;
+}
+
+/**
+ * A hostile workbook: one small sheet, and a shared-strings part that unpacks to `bytes` bytes
+ * (strings of 1 KB each) from a few MB of zip, as a zip bomb would.
+ */
+export async function makeHostileWorkbook(out, bytes) {
+  const z = new ZipOut(out);
+  const one = (s) => batched([s]);
+  await z.member('_rels/.rels', one(`<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="${PNS}"><Relationship Id="rId1" Type="${RNS}/officeDocument" Target="xl/workbook.xml"/></Relationships>`));
+  await z.member('xl/workbook.xml', one(`<?xml version="1.0" encoding="UTF-8"?><workbook xmlns="${NS}" xmlns:r="${RNS}"><sheets><sheet name="Invoices" sheetId="1" r:id="rId1"/></sheets></workbook>`));
+  await z.member('xl/_rels/workbook.xml.rels', one(`<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="${PNS}"><Relationship Id="rId1" Type="${RNS}/worksheet" Target="worksheets/sheet1.xml"/><Relationship Id="rId3" Type="${RNS}/sharedStrings" Target="sharedStrings.xml"/></Relationships>`));
+  const item = `<si><t>${'A'.repeat(1000)}</t></si>`;
+  await z.member('xl/sharedStrings.xml', batched((function* () {
+    yield `<?xml version="1.0" encoding="UTF-8"?><sst xmlns="${NS}">`;
+    for (let n = 0; n < bytes; n += item.length) yield item;
+    yield '</sst>';
+  })()), 1);
+  await z.member('xl/worksheets/sheet1.xml', one(`<?xml version="1.0" encoding="UTF-8"?><worksheet xmlns="${NS}"><sheetData><row r="1"><c r="A1" t="s"><v>0</v></c></row><row r="2"><c r="A2" t="s"><v>1</v></c></row></sheetData></worksheet>`));
   await z.end();
   return out;
 }

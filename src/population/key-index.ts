@@ -63,9 +63,10 @@ export function hashString(s: string): void {
 
 const BUCKETS = 256;
 /**
- * A bucket's first chunk holds SMALL hashes, the next ones CHUNK: small populations waste little,
- * and the big chunks of a big one are large enough for the allocator to give them back to the
- * system when they are freed (small ones stay in the process's heap and count in its memory).
+ * A bucket's chunks grow from SMALL hashes, doubling from the second on, up to CHUNK: a small
+ * population wastes little, and the chunks of a big one are large enough for the allocator to
+ * give them back to the system when they are freed (small blocks stay in the process's heap and
+ * keep counting in its memory).
  */
 const SMALL = 4096;
 const CHUNK = 65536;
@@ -112,7 +113,8 @@ export class KeyHashes {
     const b = H.hi >>> 24;
     let f = this.fill[b]!;
     if (f === this.cap[b]) {
-      const size = this.los[b]!.length === 0 ? SMALL : CHUNK;
+      const k = this.los[b]!.length;
+      const size = k < 2 ? SMALL : Math.min(CHUNK, SMALL << (k - 1));
       this.los[b]!.push(new Uint32Array(size));
       this.his[b]!.push(new Uint16Array(size));
       this.cap[b] = size;

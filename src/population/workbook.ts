@@ -108,6 +108,11 @@ export class Workbook {
     return basename(this.path);
   }
 
+  /** Tells this file apart from a changed one (path, size, modification time, inode). */
+  get fileKey(): string {
+    return `${this.path}\0${this.stats.size}\0${this.stats.mtimeMs}\0${this.stats.ino}`;
+  }
+
   /** Open and read the sheet list and the cell formats. Throws FileInputError on anything wrong. */
   static async open(path: string, limits: WorkbookLimits = DEFAULT_LIMITS): Promise<Workbook> {
     const { fh, size, stats } = await openFile(path);
@@ -269,7 +274,7 @@ export class Workbook {
    * say which columns the next row's texts are needed for (the others are only checked for
    * being empty, which is much cheaper).
    */
-  async rows(sheet: SheetInfo, sink: SheetRowSink, plan?: (s: { width: number; keep: Uint8Array | null }) => void): Promise<void> {
+  async rows(sheet: SheetInfo, sink: SheetRowSink, plan?: (s: SheetScanner) => void): Promise<void> {
     try {
       const entry = this.entries.get(sheet.part);
       if (!entry) {

@@ -533,6 +533,16 @@ function canonicalNumber(d: Buffer, s: number, e: number): boolean {
 /** Small cache of texts by value bytes (dates and other repeated numbers). */
 class TextCache {
   private map = new Map<string, string>();
+  private days = new Map<number, string>();
+  day(key: number, make: () => string): string {
+    let v = this.days.get(key);
+    if (v === undefined) {
+      if (this.days.size >= 65536) this.days.clear();
+      v = make();
+      this.days.set(key, v);
+    }
+    return v;
+  }
   get(key: string, make: () => string): string {
     let v = this.map.get(key);
     if (v === undefined) {
@@ -561,6 +571,14 @@ export class SheetScanner {
   private readonly attrs: Attrs = { col: 0, row: 0, s: -1, t: T_NUM, tStr: false };
   private readonly text = new Bytes();
   private readonly dates = new TextCache();
+  /** Bytes of the part pushed before the current chunk, and the offset of d[0] while parsing. */
+  private consumed = 0;
+  private dAbs = 0;
+  /** Offset in the part of the current row's start tag, and the row number before it. */
+  rowAbs = 0;
+  rowPrev = 0;
+  private skipTo = -1;
+  private skipRow = 0;
   /** Columns whose text is kept (the rest are only checked for being empty). */
   width = Infinity;
   /** When set, only columns c with keep[c] = 1 (1-based) have their text made; the others are ''. */
@@ -573,9 +591,29 @@ export class SheetScanner {
     private readonly limits: SheetLimits,
   ) {}
 
+  /**
+   * Go on at offset `abs` of the part (the start tag of a row seen in an earlier reading), the
+   * row before it being `rowBefore`; everything up to there is passed over unparsed. Only
+   * forward, and only from a row callback or between chunks.
+   */
+  skip(abs: number, rowBefore: number): void {
+    this.skipTo = abs;
+    this.skipRow = rowBefore;
+  }
+
   /** Feed the next chunk of the sheet's XML. Returns false once reading can stop. */
   push(chunk: Buffer): boolean {
+    const r = this.pushChunk(chunk);
+    this.consumed += chunk.length;
+    return r;
+  }
+
+  private pushChunk(chunk: Buffer): boolean {
     if (this.done) return false;
+    if (this.skipTo >= 0 && this.consumed + chunk.length <= this.skipTo) {
+      this.carry = null;
+      return true;
+    }
     let d = chunk;
     let from = 0;
     const carry = this.carry;
@@ -585,6 +623,7 @@ export class SheetScanner {
       let take = Math.min(chunk.length, 4096);
       for (;;) {
         const joined = Buffer.concat([carry, chunk.subarray(0, take)]);
+        this.dAbs = this.consumed - carry.length;
         const p = this.parse(joined, 0);
         if (this.done) return false;
         if (p > carry.length || take === chunk.length) {
@@ -599,6 +638,7 @@ export class SheetScanner {
       }
       if (d === chunk && from >= chunk.length) return true;
     }
+    this.dAbs = this.consumed;
     const p = d === chunk ? this.parse(chunk, from) : from;
     if (!this.done && p < d.length) {
       if (d.length - p > MAX_ELEMENT_BYTES) throw new ScanError(this.limits.elementCapMessage, 'cap');
@@ -635,6 +675,17 @@ export class SheetScanner {
     const end = d.length;
     const a = this.attrs;
     for (;;) {
+      if (this.skipTo >= 0) {
+        const rel = this.skipTo - this.dAbs;
+        if (rel >= end) return end;
+        if (rel >= p) {
+          p = rel;
+          this.rowNumber = this.skipRow;
+          this.rowOpen = false;
+          this.inData = true;
+        }
+        this.skipTo = -1;
+      }
       const lt = findByte(d, LT, p);
       if (lt < 0) return end;
       if (lt + 3 > end) return lt;
@@ -684,8 +735,14 @@ export class SheetScanner {
           if (this.rowOpen) {
             this.emitRow();
             if (this.done) return lt;
+            if (this.skipTo >= 0) {
+              p = lt;
+              continue;
+            }
           }
           readAttrs(d, e, gt, a);
+          this.rowAbs = this.dAbs + lt;
+          this.rowPrev = this.rowNumber;
           this.startRow(a);
           if (selfClosing) {
             this.emitRow();
@@ -862,8 +919,20 @@ export class SheetScanner {
       default: {
         const f = this.formats;
         const isDate = a.s > 0 && a.s < f.xfCount ? f.dateXf[a.s] : this.rowDate;
+        if (isDate) {
+          // Whole serial days (the usual date) are looked up by their number, without a string.
+          let day = 0;
+          let i = s;
+          for (; i < e && i - s < 9; i++) {
+            const c = b[i]! - 0x30;
+            if (c < 0 || c > 9) break;
+            day = day * 10 + c;
+          }
+          if (i === e && e > s) return this.dates.day(day, () => cellText(serialToDate(day, f.date1904)));
+          const raw = b.toString('latin1', s, e);
+          return this.dates.get(raw, () => cellText(serialToDate(parseFloat(raw), f.date1904)));
+        }
         const raw = b.toString('latin1', s, e);
-        if (isDate) return this.dates.get(raw, () => cellText(serialToDate(parseFloat(raw), f.date1904)));
         if (canonicalNumber(b, s, e)) return raw;
         return cellText(parseFloat(raw));
       }

@@ -7,6 +7,7 @@ import type { KeyFinder, RowPicker } from './pick.js';
 import type { Reporter } from './progress.js';
 import type { KeyLookup, PopulationScan, ScanProgress, XlsxSource } from './types.js';
 import { Workbook } from './workbook.js';
+import type { SheetScanner } from './xlsx-scan.js';
 
 export { cellText } from './cell-text.js';
 
@@ -20,7 +21,10 @@ export { cellText } from './cell-text.js';
 
 interface WalkHandlers {
   header?(values: string[], row: number): void;
-  /** A data row; `extra` when there are values beyond the last named column. */
+  /**
+   * A data row; `extra` when there are values beyond the last named column. `values` is only
+   * valid during the call and may be shorter than the header (missing cells are blank).
+   */
   row(values: string[], row: number, position: number, extra: boolean): boolean | void;
   blank?(row: number, count: number): void;
   /**
@@ -37,19 +41,52 @@ function mask(width: number, cols: Array<number | undefined>): Uint8Array {
   return m;
 }
 
+/**
+ * Row index kept from the last scan of a sheet: where every CHECKPOINT-th data row starts in the
+ * sheet's XML, and the row number before it. Pass 2 still unpacks the sheet from its start (a
+ * deflate stream cannot be entered in the middle) but parses only near the selected rows, which
+ * is most of the work. Used only while the file's size, modification time and inode are the ones
+ * scanned; one sheet is kept.
+ */
+const CHECKPOINT = 1024;
+interface SheetIndex {
+  key: string;
+  rows: number;
+  abs: number[];
+  prev: number[];
+}
+let lastIndex: SheetIndex | undefined;
+
+/** Forget the row index kept from the last scan (tests use it to compare both ways). */
+export function forgetSheetIndex(): void {
+  lastIndex = undefined;
+}
+
+interface WalkOptions {
+  /** Record a row index for the next pass. */
+  index?: boolean;
+  /** Use the row index: the next position wanted after each row (-1: none). */
+  seek?: () => number;
+}
+
 async function walk(
   src: XlsxSource,
   h: WalkHandlers,
   report: Reporter,
   phase: ScanProgress['phase'],
+  opts: WalkOptions = {},
 ): Promise<{ rows: number; sheet: string; size: number }> {
   const wb = await Workbook.open(src.path);
   let pos = 0;
   try {
     const sheet = wb.pick(src.sheet);
+    const key = `${wb.fileKey}\0${sheet.part}`;
+    const index: SheetIndex | undefined = opts.index ? { key, rows: 0, abs: [], prev: [] } : undefined;
+    const use = opts.seek && lastIndex?.key === key ? lastIndex : undefined;
     let width = Infinity;
     let headerSeen = false;
     let last = 0;
+    let scanner: SheetScanner | undefined;
     await wb.rows(
       sheet,
       {
@@ -64,19 +101,40 @@ async function walk(
             headerSeen = true;
             width = lastCol;
             h.header?.(valuesUpTo(texts, width), n);
-            return;
+          } else {
+            if ((pos & 1023) === 0) {
+              report.update({ phase, bytesDone: 0, bytesTotal: 0, rows: pos });
+              if (index && pos % CHECKPOINT === 0) {
+                index.abs.push(scanner!.rowAbs);
+                index.prev.push(scanner!.rowPrev);
+              }
+            }
+            // The scanner's own array (valid during the call; it may be shorter than the header).
+            if (h.row(texts, n, pos++, lastCol > width) === false) return false;
           }
-          if ((pos & 1023) === 0) report.update({ phase, bytesDone: 0, bytesTotal: 0, rows: pos });
-          if (h.row(valuesUpTo(texts, width), n, pos++, lastCol > width) === false) return false;
+          if (use) {
+            const next = opts.seek!();
+            const c = next >= 0 ? Math.floor(next / CHECKPOINT) : -1;
+            if (c >= 0 && c < use.abs.length && c * CHECKPOINT > pos) {
+              scanner!.skip(use.abs[c]!, use.prev[c]!);
+              pos = c * CHECKPOINT;
+              last = use.prev[c]!;
+            }
+          }
         },
       },
       (sc) => {
+        scanner = sc;
         sc.width = width;
         sc.keep = headerSeen && h.keep ? h.keep(pos) : null;
       },
     );
     report.update({ phase, bytesDone: wb.size, bytesTotal: wb.size, rows: pos });
-    return { rows: pos, sheet: sheet.name, size: wb.size };
+    if (index) {
+      index.rows = pos;
+      lastIndex = index;
+    }
+    return { rows: use && pos < use.rows ? use.rows : pos, sheet: sheet.name, size: wb.size };
   } finally {
     await wb.close();
   }
@@ -138,6 +196,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
     },
     report,
     'reading',
+    { index: true },
   );
   const sha256 = (await hashing).sha256;
   const file = basename(src.path);
@@ -241,6 +300,7 @@ export async function readXlsxRowsAt(
     },
     report,
     'fetching rows',
+    { seek: () => picker.next },
   );
   return w.rows;
 }

@@ -174,7 +174,7 @@ export async function* entryChunks(fh: FileHandle, fileSize: number, entry: ZipE
         yield c as Buffer;
       }
     } else {
-      const inflate = createInflateRaw({ chunkSize: 1 << 20 });
+      const inflate = createInflateRaw({ chunkSize: 1 << 18 });
       src.on('error', (e) => inflate.destroy(e));
       src.pipe(inflate);
       try {

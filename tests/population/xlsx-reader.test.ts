@@ -15,7 +15,8 @@ import type { CommandContext } from '../../src/commands/types.js';
 import { FileInputError } from '../../src/errors.js';
 import { csvColumns, xlsxColumns, xlsxSheets } from '../../src/interview/columns.js';
 import { readCsvHeader } from '../../src/population/csv.js';
-import { scanPopulation } from '../../src/population/index.js';
+import { readRowsAt, scanPopulation } from '../../src/population/index.js';
+import { forgetSheetIndex } from '../../src/population/xlsx.js';
 import { DEFAULT_LIMITS, Workbook } from '../../src/population/workbook.js';
 import { book, bookParts, esc, zip } from '../fixtures/xlsx-parts.js';
 import { tempDir } from './helpers.js';
@@ -232,10 +233,43 @@ describe('CSV headers: the interview and the population reader use one tokenizer
 });
 
 it('makes no temporary copy of a sheet, even when the sheet comes before the shared strings', async () => {
-  // exceljs copied such a sheet to a tmp-* file in the temp folder (the tmp package's naming).
-  const p = file('order.xlsx', book({ sheets: [{ name: 'Data', rows: HEADER + row(2, '<c r="R" t="s"><v>0</v></c>') }], shared: ['<t>x</t>'], order: ['xl/worksheets/sheet1.xml'] }));
+  // exceljs copied such a sheet to a tmp-* file in the temp folder (the tmp package's naming);
+  // a copy of this sheet would hold its marker key.
+  const marker = 'NO-TEMP-COPY-7f3a9c';
+  const p = file('order.xlsx', book({ sheets: [{ name: 'Data', rows: HEADER + row(2, '<c r="R" t="s"><v>0</v></c>', marker) }], shared: ['<t>x</t>'], order: ['xl/worksheets/sheet1.xml'] }));
   const before = new Set(readdirSync(tmpdir()));
   const s = await scanPopulation({ kind: 'xlsx', path: p, keyColumn: 'Key' });
-  expect(s.fingerprint.rowCount).toBe(1);
-  expect(readdirSync(tmpdir()).filter((f) => !before.has(f) && /^tmp-/.test(f))).toEqual([]);
+  expect(s.fingerprint).toMatchObject({ rowCount: 1, firstKey: marker });
+  const copies = readdirSync(tmpdir()).filter((f) => {
+    if (before.has(f)) return false;
+    try {
+      return readFileSync(join(tmpdir(), f)).includes(marker);
+    } catch {
+      return false; // a folder, or gone already
+    }
+  });
+  expect(copies).toEqual([]);
+});
+
+describe('fetching rows after a scan (the row index)', () => {
+  it('gives the same rows as a reading from the top, across blank rows and rows without a number', async () => {
+    let rows = HEADER;
+    for (let r = 2; r <= 5200; r++) {
+      if (r % 997 === 0) rows += `<row r="${r}"/>`; // blank rows
+      else if (r % 1500 === 0) rows += `<row><c t="inlineStr"><is><t>K${r}</t></is></c><c><v>${r}</v></c></row>`; // no r: the one after
+      else rows += row(r, `<c r="R"><v>${r}</v></c>`);
+    }
+    const p = file('indexed.xlsx', book({ sheets: [{ name: 'Data', rows }] }));
+    const src = { kind: 'xlsx' as const, path: p, keyColumn: 'Key' };
+    const positions = [5193, 0, 1023, 1024, 1025, 2047, 3000, 4096, 17, 4095, 5000];
+    forgetSheetIndex();
+    const fresh = await readRowsAt(src, positions);
+    const scan = await scanPopulation(src);
+    expect(scan.fingerprint.rowCount).toBe(5194); // 5,199 rows less the 5 blank ones
+    const indexed = await readRowsAt(src, positions);
+    expect(indexed).toEqual(fresh);
+    expect(indexed.map((r) => [r.position, r.row, r.key])).toContainEqual([1024, 1027, 'K1027']); // rows 2..1027 less the blank row 997
+    expect(indexed.find((r) => r.position === 5193)?.key).toBe('K5200');
+    await expect(readRowsAt(src, [5194])).rejects.toThrow(/beyond the population, which has 5,194 rows/);
+  });
 });
