@@ -141,7 +141,7 @@ if (!only || only === 'xlsx') {
 }
 
 if (!only || only === 'hostile') {
-  // Shared strings that unpack to 1 GiB from a few MB: refused at the 128 MiB cap.
+  // Shared strings that unpack to 1 GiB from a few MB: refused at the 64 MiB cap.
   const file = join(dir, 'bomb.xlsx');
   await makeHostileWorkbook(file, 1 << 30);
   const [h] = compare([{ name: 'tolrate select, shared strings of 1 GiB (refused at the cap)', args: select(file, 'h.csv', '--key', 'Invoice no'), ok: [2] }], Math.min(runs, 3));

@@ -63,10 +63,9 @@ export function hashString(s: string): void {
 
 const BUCKETS = 256;
 /**
- * A bucket's chunks grow from SMALL hashes, doubling from the second on, up to CHUNK: a small
- * population wastes little, and the chunks of a big one are large enough for the allocator to
- * give them back to the system when they are freed (small blocks stay in the process's heap and
- * keep counting in its memory).
+ * A bucket's first chunk holds SMALL hashes, the next ones CHUNK. A big chunk is mapped by the
+ * allocator on its own: its pages count in the process's memory only once written, and they go
+ * back to the system when it is freed (small blocks stay in the heap and keep counting).
  */
 const SMALL = 4096;
 const CHUNK = 65536;
@@ -113,8 +112,7 @@ export class KeyHashes {
     const b = H.hi >>> 24;
     let f = this.fill[b]!;
     if (f === this.cap[b]) {
-      const k = this.los[b]!.length;
-      const size = k < 2 ? SMALL : Math.min(CHUNK, SMALL << (k - 1));
+      const size = this.los[b]!.length === 0 ? SMALL : CHUNK;
       this.los[b]!.push(new Uint32Array(size));
       this.his[b]!.push(new Uint16Array(size));
       this.cap[b] = size;

@@ -26,7 +26,7 @@ export interface WorkbookLimits {
 
 export const DEFAULT_LIMITS: WorkbookLimits = {
   maxPartBytes: 2 * 1024 * 1024 * 1024,
-  maxSharedStringBytes: 128 * 1024 * 1024,
+  maxSharedStringBytes: 64 * 1024 * 1024,
   maxRows: SHEET_MAX_ROWS,
 };
 

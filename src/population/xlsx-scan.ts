@@ -347,21 +347,32 @@ export interface SharedStringLimits {
   capMessage: string;
 }
 
-/** The shared-strings table, held as UTF-8 bytes with an offset per string (not as JS strings). */
+/** Pages of the shared strings' text: a string never spans two (one is at most MAX_ELEMENT_BYTES). */
+const PAGE = 16 * 1024 * 1024;
+
+/**
+ * The shared-strings table, held as UTF-8 bytes with an offset per string (not as JS strings).
+ * The text is kept in pages of 16 MiB, so it grows without copying what it holds (a doubling
+ * buffer would briefly need the old and the new copy, half as much again as the cap).
+ */
 export class SharedStrings {
-  private readonly text: Bytes;
-  private offsets = new Uint32Array(1024);
+  private readonly text = new Bytes();
+  private pages: Buffer[] = [];
+  /** Where the text of the current page starts counting (page index × PAGE). */
+  private pageBase = 0;
+  /** Start and end of each string: page index × PAGE + offset in the page. */
+  private starts = new Uint32Array(1024);
+  private ends = new Uint32Array(1024);
+  /** Where the text of the string being read began in the current page. */
+  private cur = 0;
   count = 0;
   private carry: Buffer | null = null;
   private prefixDone = false;
-  constructor(private readonly limits: SharedStringLimits) {
-    this.text = new Bytes(limits.maxBytes + MAX_ELEMENT_BYTES);
-    this.offsets[0] = 0;
-  }
+  constructor(private readonly limits: SharedStringLimits) {}
 
   /** Bytes held (text and offsets). */
   get bytes(): number {
-    return this.text.n + this.count * 8;
+    return this.pageBase + this.text.n + this.count * 8;
   }
 
   push(chunk: Buffer): void {
@@ -377,15 +388,33 @@ export class SharedStrings {
     }
   }
 
+  /** The string whose text has just been appended ends here. */
   private add(): void {
-    if (this.count + 2 > this.offsets.length) {
-      const next = new Uint32Array(this.offsets.length * 2);
-      next.set(this.offsets);
-      this.offsets = next;
+    if (this.count + 1 > this.starts.length) {
+      const grow = (a: Uint32Array) => {
+        const next = new Uint32Array(a.length * 2);
+        next.set(a);
+        return next;
+      };
+      this.starts = grow(this.starts);
+      this.ends = grow(this.ends);
     }
-    this.count++;
-    this.offsets[this.count] = this.text.n;
     if (this.bytes > this.limits.maxBytes) throw new ScanError(this.limits.capMessage, 'cap');
+    if (this.text.n > PAGE) {
+      // Page full: it keeps the strings before this one, which moves to a new page.
+      const len = this.text.n - this.cur;
+      const page = Buffer.allocUnsafe(this.cur);
+      this.text.b.copy(page, 0, 0, this.cur);
+      this.pages.push(page);
+      this.pageBase += PAGE;
+      this.text.b.copy(this.text.b, 0, this.cur, this.cur + len);
+      this.text.n = len;
+      this.cur = 0;
+    }
+    this.starts[this.count] = this.pageBase + this.cur;
+    this.ends[this.count] = this.pageBase + this.text.n;
+    this.count++;
+    this.cur = this.text.n;
   }
 
   private parse(d: Buffer): number {
@@ -450,13 +479,17 @@ export class SharedStrings {
   /** The length in bytes of string i; 0 when there is no such string. */
   length(i: number): number {
     if (!(i >= 0 && i < this.count)) return 0;
-    return this.offsets[i + 1]! - this.offsets[i]!;
+    return this.ends[i]! - this.starts[i]!;
   }
 
   /** The text of string i; undefined when there is no such string. */
   get(i: number): string | undefined {
     if (!(i >= 0 && i < this.count)) return undefined;
-    return this.text.b.toString('utf8', this.offsets[i]!, this.offsets[i + 1]!);
+    const s = this.starts[i]!;
+    const p = Math.floor(s / PAGE);
+    const page = p < this.pages.length ? this.pages[p]! : this.text.b;
+    const at = s - p * PAGE;
+    return page.toString('utf8', at, at + this.ends[i]! - s);
   }
 }
 

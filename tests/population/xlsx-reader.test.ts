@@ -273,3 +273,17 @@ describe('fetching rows after a scan (the row index)', () => {
     await expect(readRowsAt(src, [5194])).rejects.toThrow(/beyond the population, which has 5,194 rows/);
   });
 });
+
+describe('shared strings beyond one 16 MiB page', () => {
+  it('every string is read whole on either side of a page boundary', async () => {
+    // 1,300 strings of 16,000 bytes (about 20 MB): the text spans two pages.
+    const text = (i: number) => `${String(i).padStart(5, '0')}${'é'.repeat(7995)}${i % 10}`;
+    const shared = ['<t>Key</t>', '<t>Value</t>', ...Array.from({ length: 1300 }, (_, i) => `<t>${text(i)}</t>`)];
+    let rows = '<row r="1"><c r="A1" t="s"><v>0</v></c><c r="B1" t="s"><v>1</v></c></row>';
+    for (let i = 0; i < 1300; i++) rows += `<row r="${i + 2}"><c r="A${i + 2}"><v>${i}</v></c><c r="B${i + 2}" t="s"><v>${i + 2}</v></c></row>`;
+    const p = file('pages.xlsx', book({ sheets: [{ name: 'Data', rows }], shared }));
+    const got = await ourRows(p);
+    expect(got).toHaveLength(1301);
+    got.slice(1).forEach((r, i) => expect(r.texts[1], `string ${i}`).toBe(text(i)));
+  });
+});
