@@ -130,7 +130,7 @@ if (!only || only === 'xlsx') {
   const file = join(dir, 'invoices.xlsx');
   await makeWorkbook(rows, file);
   const [u, x] = compare([
-    { name: 'unzip -p FILE xl/worksheets/sheet1.xml | wc -c', args: ['bash', '-c', 'unzip -p "$0" xl/worksheets/sheet1.xml | wc -c >/dev/null', file] },
+    { name: 'unzip -p FILE xl/worksheets/sheet1.xml \\| wc -c', args: ['bash', '-c', 'unzip -p "$0" xl/worksheets/sheet1.xml | wc -c >/dev/null', file] },
     { name: 'tolrate select, key + amount total + dates', args: select(file, 'x.csv', '--key', 'Invoice no', '--amount', 'Amount', '--date', 'Date') },
   ]);
   const xml = Number(spawnSync('bash', ['-c', 'unzip -p "$0" xl/worksheets/sheet1.xml | wc -c', file], { encoding: 'utf8' }).stdout.trim());
