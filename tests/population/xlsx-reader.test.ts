@@ -101,6 +101,16 @@ describe('cells read as the file format says (where exceljs did not)', () => {
   });
 });
 
+/** A workbook whose sheet's deflate data has bytes changed (the zip's directory is intact). */
+function damaged(): Buffer {
+  let rows = HEADER;
+  for (let r = 2; r < 3000; r++) rows += row(r, `<c r="R"><v>${r * 7}</v></c>`);
+  const b = book({ sheets: [{ name: 'Data', rows }] });
+  const at = b.indexOf('xl/worksheets/sheet1.xml') + 'xl/worksheets/sheet1.xml'.length + 40;
+  for (let i = 0; i < 64; i++) b[at + i]! ^= 0x5a;
+  return b;
+}
+
 describe('damaged and hostile workbooks: a message naming the problem, exit code 2', () => {
   const ok = book({ sheets: [{ name: 'Data', rows: HEADER + row(2, '<c r="R"><v>1</v></c>') }] });
 
@@ -113,6 +123,7 @@ describe('damaged and hostile workbooks: a message naming the problem, exit code
     ['a missing sheet part', zip(bookParts({ sheets: [{ name: 'Data', rows: '' }] }).filter((q) => !q.name.startsWith('xl/worksheets/'))), /the part of sheet "Data" \(xl\/worksheets\/sheet1\.xml\) is missing/],
     ['a workbook part that is not XML', zip(bookParts({ sheets: [{ name: 'Data', rows: '' }] }).map((q) => (q.name === 'xl/workbook.xml' ? { ...q, data: '<workbook><sheets><sheet name="a"' } : q))), /not well-formed XML/],
     ['a row past the last a worksheet can hold', book({ sheets: [{ name: 'Data', rows: HEADER + row(1_048_577, '<c r="R"><v>1</v></c>') }] }), /rows beyond row 1,048,576 \(the cap on rows; a worksheet holds at most 1,048,576\)/],
+    ['a sheet whose compressed bytes are damaged', damaged(), /the zip is damaged: xl\/worksheets\/sheet1\.xml cannot be unpacked/],
     ['a cell past column XFD', book({ sheets: [{ name: 'Data', rows: HEADER + '<row r="2"><c r="XFE2"><v>1</v></c></row>' }] }), /beyond column XFD/],
   ];
   for (const [what, bytes, message] of cases) {
