@@ -4,7 +4,7 @@ import type { CsvTokenizer } from './csv-tokenizer.js';
 import { confirmParts, DuplicateCollector, hashBytes, KeyHashes, mergeDuplicates, utf8Of, type DuplicateResult } from './key-index.js';
 
 export type { DuplicateResult } from './key-index.js';
-import type { DateOrder, DuplicateKeyExample, PopulationValidation, ProblemCount, RowExample } from './types.js';
+import type { DateOrder, PopulationValidation, ProblemCount, RowExample } from './types.js';
 
 export const EXAMPLES = 5;
 export const DUPLICATE_EXAMPLES = 10;

@@ -60,11 +60,9 @@ function isSpace(c: number): boolean {
 class Bytes {
   b = Buffer.allocUnsafe(1024);
   n = 0;
-  /** Growth stops doubling at this size (a cap is checked by the owner). */
-  constructor(private readonly most = Infinity) {}
   reserve(k: number): void {
     if (this.n + k > this.b.length) {
-      const next = Buffer.allocUnsafe(Math.max(Math.min(this.b.length * 2, this.most), this.n + k));
+      const next = Buffer.allocUnsafe(Math.max(this.b.length * 2, this.n + k));
       this.b.copy(next, 0, 0, this.n);
       this.b = next;
     }
@@ -367,7 +365,6 @@ export class SharedStrings {
   private cur = 0;
   count = 0;
   private carry: Buffer | null = null;
-  private prefixDone = false;
   constructor(private readonly limits: SharedStringLimits) {}
 
   /** Bytes held (text and offsets). */
@@ -468,7 +465,6 @@ export class SharedStrings {
         continue;
       }
       p = gt + 1;
-      this.prefixDone = true;
     }
   }
 
