@@ -165,15 +165,17 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   s.heading('Sample size');
   s.print(
     ...table(
-      ['Attribute', 'Tolerable', 'Size', 'k_e', 'Risk at k_e', 'Allowed'],
-      sizes.map((x) => [x.attribute.id, pctPlain(x.tolerableRate), int(x.result.sampleSize), String(x.result.expectedDeviations), pctUp(x.result.achievedRisk), pctPlain(beta)]),
+      ['Attribute', 'Tolerable', 'Size', 'k_e', 'Risk at k_e', 'Allowed', 'Underreliance'],
+      sizes.map((x) => [x.attribute.id, pctPlain(x.tolerableRate), int(x.result.sampleSize), String(x.result.expectedDeviations), pctUp(x.result.achievedRisk), pctPlain(beta), pctUp(x.result.underrelianceRisk)]),
     ),
   );
   const why =
     `${int(n)} is the smallest sample for which finding k_e = ⌈${int(n)} × ${pctPlain(expectedRate)}⌉ = ${top.result.expectedDeviations} ` +
     `deviation(s) still leaves the risk of overreliance at ${pctUp(top.result.achievedRisk)} (rounded up), within the ${pctPlain(beta)} allowed at ` +
     `${pctPlain(confidence)} confidence against a tolerable rate of ${pctPlain(top.tolerableRate)} (${modelWords(model, N)}).` +
-    (sizes.length > 1 ? ` It is the largest of the attributes' sizes (${top.attribute.id}), so it serves every attribute.` : '');
+    (sizes.length > 1 ? ` It is the largest of the attributes' sizes (${top.attribute.id}), so it serves every attribute.` : '') +
+    ` The sample supports reliance with up to ${top.result.acceptanceNumber} deviation(s); the risk of underreliance (that a control working at the expected ${pctPlain(expectedRate)} shows more and is not relied on) is ${pctUp(top.result.underrelianceRisk)}.` +
+    (top.result.sizeRemark ? ` ${top.result.sizeRemark}` : '');
   s.print('', ...wrap(why, 92, '  '));
   const fpc = top.result.finitePopulationCorrection;
   if (fpc) {
@@ -203,6 +205,8 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     sampleSize: x.result.sampleSize,
     expectedDeviations: x.result.expectedDeviations,
     achievedRisk: x.result.achievedRisk,
+    acceptanceNumber: x.result.acceptanceNumber,
+    underrelianceRisk: x.result.underrelianceRisk,
   }));
   return {
     kind: 'statistical',

@@ -428,8 +428,16 @@ async function approachSection(c: Ctx): Promise<void> {
             { header: L.expectedDeviations, w: 1.4, align: 'right' },
             { header: L.sampleSize, w: 1.1, align: 'right' },
             { header: L.plannedRisk, w: 1.2, align: 'right' },
+            ...(a.sizes.some((s) => s.underrelianceRisk !== undefined) ? [{ header: L.underrelianceRisk, w: 1.3, align: 'right' as const }] : []),
           ],
-          a.sizes.map((s) => [{ text: s.attributeId, bold: true }, pct(s.tolerableRate), int(s.expectedDeviations), int(s.sampleSize), pctUp(s.achievedRisk)]),
+          a.sizes.map((s) => [
+            { text: s.attributeId, bold: true },
+            pct(s.tolerableRate),
+            int(s.expectedDeviations),
+            int(s.sampleSize),
+            pctUp(s.achievedRisk),
+            ...(a.sizes.some((x) => x.underrelianceRisk !== undefined) ? [s.underrelianceRisk !== undefined ? pctUp(s.underrelianceRisk) : L.notRecorded] : []),
+          ]),
         );
         b.ps(T.sizePlanned);
       }

@@ -243,6 +243,7 @@ export const MemoFile = z.strictObject({
     noteReopened: para.default('re-opened'),
     noteCleared: para.default('cleared'),
     mustClear: para.default('must be cleared before sign-off'),
+    underrelianceRisk: para.default('Risk of underreliance'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),

@@ -235,6 +235,10 @@ function checkSampleSize(wp: Workpaper): Check {
       if (p.recorded.sampleSize !== r.sampleSize) diffs.push(`${p.label}: recorded sample size ${p.recorded.sampleSize}, recomputed ${r.sampleSize}`);
       if (p.recorded.expectedDeviations !== r.expectedDeviations) diffs.push(`${p.label}: recorded expected deviations ${p.recorded.expectedDeviations}, recomputed ${r.expectedDeviations}`);
       if (!close(p.recorded.achievedRisk, r.achievedRisk)) diffs.push(`${p.label}: recorded planned risk ${p.recorded.achievedRisk}, recomputed ${r.achievedRisk}`);
+      if (p.recorded.acceptanceNumber !== undefined && p.recorded.acceptanceNumber !== r.acceptanceNumber) diffs.push(`${p.label}: recorded acceptance number ${p.recorded.acceptanceNumber}, recomputed ${r.acceptanceNumber}`);
+      if (p.recorded.underrelianceRisk !== undefined && !close(p.recorded.underrelianceRisk, r.underrelianceRisk)) {
+        diffs.push(`${p.label}: recorded risk of underreliance ${p.recorded.underrelianceRisk}, recomputed ${r.underrelianceRisk}`);
+      }
     }
     if (a.finitePopulationCorrection && r.finitePopulationCorrection && p === planned[0]) {
       const f = a.finitePopulationCorrection;

@@ -156,6 +156,10 @@ export const SizeForAttribute = z.object({
   sampleSize: positive,
   expectedDeviations: count,
   achievedRisk: z.number().min(0).max(1),
+  /** The most deviations with which the sample still supports reliance. */
+  acceptanceNumber: count.optional(),
+  /** The risk of underreliance: the chance that a control working at the expected rate shows more deviations than that. */
+  underrelianceRisk: z.number().min(0).max(1).optional(),
 });
 
 export const Approach = z.object({
