@@ -32,6 +32,8 @@ export interface RenderMemoOptions {
   now?: Date;
   /** Draw the picture of the rates (default true). */
   chart?: boolean;
+  /** Add the appendix with each attribute's operating characteristic (default false). */
+  operatingCharacteristic?: boolean;
   /** Further reasons the memo is not final, listed under its DRAFT banner. */
   extraNotFinal?: string[];
 }
@@ -46,6 +48,8 @@ export interface WriteMemoOptions {
   template?: MemoTemplate;
   now?: Date;
   extraNotFinal?: string[];
+  /** Add the appendix with each attribute's operating characteristic. */
+  operatingCharacteristic?: boolean;
 }
 
 /** The default memo path for a workpaper file: `x/NAME.tolrate.json` -> `x/NAME.memo.docx`. */
@@ -100,7 +104,7 @@ export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions =
   const template = clean.template;
   const model = buildModel(clean.workpaper, template, modelOptions(opts));
   if (clean.note) model.cleanedNote = clean.note;
-  const doc = await buildDocument(model, template, { chart: opts.chart ?? true });
+  const doc = await buildDocument(model, template, { chart: opts.chart ?? true, operatingCharacteristic: opts.operatingCharacteristic === true });
   const buf = await packDocument(doc, opts.now ?? new Date());
   const problems = await zipXmlProblems(buf);
   if (problems.length) {
@@ -129,6 +133,7 @@ export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string;
     ...(opts.template ? { template: opts.template } : {}),
     ...(opts.now ? { now: opts.now } : {}),
     ...(opts.extraNotFinal ? { extraNotFinal: opts.extraNotFinal } : {}),
+    ...(opts.operatingCharacteristic ? { operatingCharacteristic: true } : {}),
   });
   const written = writeFileSafely(path, buf, { what: 'the memo' });
   return { path: written.path, bytes: buf.length, sha256: createHash('sha256').update(buf).digest('hex') };
@@ -138,7 +143,7 @@ export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string;
  * The record of a memo written from `workpaper` (as it was when written: the state its figures
  * show), to be kept in the workpaper so that a reviewer can tell which memo belongs to which state.
  */
-export function memoRecord(workpaper: Workpaper, workpaperPath: string, written: { path: string; sha256: string }, o: { at: Date; final: boolean; templateDir?: string }): MemoRecord {
+export function memoRecord(workpaper: Workpaper, workpaperPath: string, written: { path: string; sha256: string }, o: { at: Date; final: boolean; templateDir?: string; operatingCharacteristic?: boolean }): MemoRecord {
   const last = workpaper.log[workpaper.log.length - 1];
   const base = dirname(resolve(workpaperPath));
   const rel = relative(base, written.path);
@@ -151,6 +156,7 @@ export function memoRecord(workpaper: Workpaper, workpaperPath: string, written:
     logSeq: workpaper.log.length,
     logHash: last?.hash ?? '',
     final: o.final,
+    ...(o.operatingCharacteristic ? { operatingCharacteristic: true } : {}),
     ...(tpl !== undefined ? { template: tpl.split('\\').join('/') || '.' } : {}),
   };
 }
@@ -164,7 +170,7 @@ export function recordMemo(
   workpaper: Workpaper,
   workpaperPath: string,
   written: { path: string; sha256: string },
-  o: { at: Date; final: boolean; templateDir?: string; beforeWrite?: () => void },
+  o: { at: Date; final: boolean; templateDir?: string; operatingCharacteristic?: boolean; beforeWrite?: () => void },
 ): { record: MemoRecord; saved: Workpaper } {
   const record = memoRecord(workpaper, workpaperPath, written, o);
   const saved = saveWorkpaper(workpaperPath, { ...workpaper, memos: [...(workpaper.memos ?? []), record] }, {

@@ -30,7 +30,8 @@ import {
   type IParagraphOptions,
 } from 'docx';
 import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
-import { chartSvg, renderPng, type ChartRow } from './chart.js';
+import { chartSvg, ocSvg, renderPng, type ChartRow, type OcCurve } from './chart.js';
+import { acceptanceNumber, operatingCharacteristic } from '../stats/index.js';
 import { exact, type MemoModel } from './model.js';
 import { fill, type MemoTemplate } from './template.js';
 import { REVIEW_SECTION_LABELS } from '../control-test/index.js';
@@ -265,6 +266,8 @@ export function resultColumnWidth(words: readonly string[]): number {
 export interface RenderOptions {
   /** Whether to draw the chart (default true). */
   chart?: boolean;
+  /** Add the appendix with the operating characteristic of each attribute's plan (default false). */
+  operatingCharacteristic?: boolean;
 }
 
 /** What every section of the memo is written with. */
@@ -939,6 +942,50 @@ async function appendixReviewSection(c: Ctx): Promise<void> {
   );
 }
 
+/** The operating characteristic of each attribute's plan: a table of rates and a picture. */
+async function appendixOcSection(c: Ctx): Promise<void> {
+  const { b, L, T, a, wp } = c;
+  if (!a || a.kind !== 'statistical' || a.sizes.length === 0) {
+    b.note(T.ocNotStatistical);
+    return;
+  }
+  b.ps(T.ocLead);
+  const N = a.model === 'hypergeometric' ? wp.population?.fingerprint.rowCount : undefined;
+  const curves: OcCurve[] = [];
+  const rates = Array.from({ length: 17 }, (_, i) => Math.round(((i * Math.max(...a.sizes.map((s) => s.tolerableRate)) * 2) / 16) * 1e6) / 1e6);
+  for (const s of a.sizes) {
+    // The plan as adopted: the sample size used, and the most deviations with which it supports
+    // reliance at this attribute's tolerable rate.
+    const n = a.sampleSize;
+    const acc = acceptanceNumber({ sampleSize: n, tolerableRate: s.tolerableRate, confidence: a.confidence, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) });
+    if (acc === null) continue;
+    const pts = operatingCharacteristic({ plan: { sampleSize: n, acceptanceNumber: acc }, rates, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) });
+    curves.push({ id: `${s.attributeId} (n = ${int(n)}, c = ${acc})`, points: pts, tolerableRate: s.tolerableRate, expectedRate: a.expectedRate });
+  }
+  b.table(
+    [{ header: L.trueRate, w: 1 }, ...curves.map((cv) => ({ header: cv.id, w: 1.4, align: 'right' as const }))],
+    rates.map((r, i) => [pct(r), ...curves.map((cv) => pct(cv.points[i]!.acceptanceProbability))]),
+    { size: 16 },
+  );
+  const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
+  if (curves.length === 0) {
+    b.note(T.ocNotStatistical);
+    return;
+  }
+  const svg = ocSvg(curves, { x: L.trueRate, y: L.chanceOfReliance, tolerable: `${L.legendTolerable} (${a.sizes[0]!.attributeId})`, expected: L.expectedRate }, chartW);
+  const png = await renderPng(svg.svg, 2);
+  if (png) {
+    b.children.push(
+      new Paragraph({
+        alignment: AlignmentType.CENTER,
+        keepNext: true,
+        children: [new ImageRun({ type: 'png', data: png, transformation: { width: svg.width, height: svg.height }, altText: { name: 'operating-characteristic', title: L.chanceOfReliance, description: curves.map((cv) => cv.id).join('; ') } })],
+      }),
+    );
+  }
+  b.p(b.f(T.ocCaption), { style: 'Caption' });
+}
+
 /**
  * The numbered sections of the memo, in order: a section's number is its place in this list, so
  * a section added or moved renumbers the rest (and the texts that point to one).
@@ -995,6 +1042,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   for (const app of APPENDICES) {
     b.h1(W.headings[app.heading], { pageBreakBefore: true, numbered: false });
     await app.render(c);
+  }
+  if (o.operatingCharacteristic) {
+    b.h1(W.headings.appendixOc, { pageBreakBefore: true, numbered: false });
+    await appendixOcSection(c);
   }
   return assemble(b, m, t);
 }

@@ -211,6 +211,7 @@ export const MemoFile = z.strictObject({
     appendixItemsList: para.default('A.1 Items and their results'),
     amendments: para.default('Amendments after sign-off'),
     appendixReview: para.default('Appendix C — Review notes'),
+    appendixOc: para.default('Appendix D — Operating characteristic'),
   }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
@@ -244,6 +245,8 @@ export const MemoFile = z.strictObject({
     noteCleared: para.default('cleared'),
     mustClear: para.default('must be cleared before sign-off'),
     underrelianceRisk: para.default('Risk of underreliance'),
+    trueRate: para.default('True deviation rate'),
+    chanceOfReliance: para.default('Chance of relying on the control'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
@@ -251,6 +254,9 @@ export const MemoFile = z.strictObject({
     amendmentsNone: para.default('No change was made to the record after a sign-off.'),
     amendmentsLead: para.default('Each change made to the record after a sign-off: who made it, in which role, when and why, and every value before and after. A change to the record clears both sign-offs; the test is signed again afterwards.'),
     reviewNone: para.default('No review notes were raised.'),
+    ocLead: para.default('For each attribute, the chance that the sample as adopted (n items, relying on the control with at most c deviations) leads to reliance, for each true deviation rate of the population (with a known population, the rate times N deviations, rounded up). At the tolerable rate this chance is the risk of overreliance; near the expected rate, one minus it is the risk of underreliance (which counts the expected deviations rounded down, so the two can differ slightly).'),
+    ocCaption: para.default('The chance of relying on the control against the true deviation rate (dashed: the tolerable rate; dotted: the expected rate).'),
+    ocNotStatistical: para.default('The sample is not statistical: it has no operating characteristic to show.'),
     reviewLead: para.default('The reviewer\'s notes, each with its whole thread: raised, answered, re-opened and cleared, with who and when.'),
   }),
 });

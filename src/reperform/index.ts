@@ -332,7 +332,7 @@ async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string,
   const state = against && against.logSeq <= wp.log.length ? stateAt(wp, against.logSeq) : wp;
   const { loadTemplate, renderMemo } = await import('../memo/index.js');
   const template = await loadTemplate(tpl);
-  const expected = await readMemoBlocks(await renderMemo(state, { workpaperPath, template }), 'the memo rendered from the workpaper');
+  const expected = await readMemoBlocks(await renderMemo(state, { workpaperPath, template, operatingCharacteristic: against?.operatingCharacteristic === true }), 'the memo rendered from the workpaper');
   const found = compareMemoBlocks(blocks, expected);
   for (const d of found.slice(0, 60)) diffs.push(`${d.section}, ${d.where}: the memo has "${d.memo}", the workpaper gives "${d.expected}"`);
   if (found.length > 60) diffs.push(`... and ${found.length - 60} more differences`);

@@ -374,6 +374,8 @@ export const MemoRecord = z.object({
   logSeq: count,
   logHash: z.string(),
   final: z.boolean(),
+  /** Written with the appendix of the operating characteristic. */
+  operatingCharacteristic: z.boolean().optional(),
   /** The memo template folder, when not the shipped one. */
   template: z.string().optional(),
 });

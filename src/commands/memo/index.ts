@@ -6,12 +6,14 @@ import type { CommandContext } from '../types.js';
 export function help(): string {
   return `tolrate memo — write the DOCX workpaper memo from a workpaper file
 
-Usage: tolrate memo FILE [--out MEMO.docx] [--template DIR] [--draft]
+Usage: tolrate memo FILE [--out MEMO.docx] [--template DIR] [--oc] [--draft]
 
   FILE               the workpaper file (NAME.tolrate.json)
   --out MEMO.docx    where to write the memo (default: NAME.memo.docx beside FILE)
   --template DIR     a copy of tolrate's templates/memo folder with your firm's wording
                      (and, optionally, a styles.docx whose Word styles the memo takes)
+  --oc               add Appendix D: each attribute's operating characteristic (the chance of
+                     relying on the control at each true deviation rate), as a table and a picture
   --draft            for a file changed outside tolrate: write a DRAFT that lists the changes
                      (without it, no memo is written for such a file)
   -h, --help         show this help
@@ -53,14 +55,14 @@ function kb(bytes: number): string {
 }
 
 export async function run(args: string[], ctx: CommandContext): Promise<number> {
-  const p = parseFlags('memo', args, { out: { type: 'string', short: 'o' }, template: { type: 'string' }, draft: { type: 'boolean' } }, 1);
+  const p = parseFlags('memo', args, { out: { type: 'string', short: 'o' }, template: { type: 'string' }, draft: { type: 'boolean' }, oc: { type: 'boolean' } }, 1);
   if (p.values.help) {
     ctx.stdout.write(help());
     return 0;
   }
   const t = ctx.invocation ?? 'tolrate';
   const file = p.positionals[0];
-  if (!file) throw new UsageError('tolrate memo: name the workpaper file.', ['Usage: tolrate memo FILE [--out MEMO.docx] [--template DIR] [--draft]', 'See: tolrate memo --help']);
+  if (!file) throw new UsageError('tolrate memo: name the workpaper file.', ['Usage: tolrate memo FILE [--out MEMO.docx] [--template DIR] [--oc] [--draft]', 'See: tolrate memo --help']);
   const workpaperPath = resolve(ctx.cwd, file);
   const out = str(p, 'out');
   const templateDir = str(p, 'template');
@@ -92,7 +94,8 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   }
   const model = await memoModel(workpaper, { workpaperPath, template, ...(extraNotFinal ? { extraNotFinal } : {}) });
   const now = new Date();
-  const written = await writeMemo({ workpaper, workpaperPath, template, now, ...(out !== undefined ? { out: resolve(ctx.cwd, out) } : {}), ...(extraNotFinal ? { extraNotFinal } : {}) });
+  const oc = p.values.oc === true;
+  const written = await writeMemo({ workpaper, workpaperPath, template, now, ...(out !== undefined ? { out: resolve(ctx.cwd, out) } : {}), ...(extraNotFinal ? { extraNotFinal } : {}), ...(oc ? { operatingCharacteristic: true } : {}) });
   ctx.stdout.write(`Memo written: ${written.path} (${kb(written.bytes)}), SHA-256 ${written.sha256}\n`);
   if (extraNotFinal) {
     ctx.stdout.write('It is a DRAFT that lists the changes made outside tolrate. It is not recorded in the workpaper, which is left as it is.\n');
@@ -115,6 +118,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
         at: now,
         final: !model.draft,
         ...(dir ? { templateDir: dir } : {}),
+        ...(oc ? { operatingCharacteristic: true } : {}),
         beforeWrite: () => {
           if (readRegularText(workpaperPath, 'The workpaper') !== loadedText) {
             throw new WorkpaperChangedError(workpaperPath, `${file} changed while the memo was being written; the memo is not recorded in it.`, [`Run \`${t} memo ${file}\` again.`]);
