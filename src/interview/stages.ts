@@ -115,6 +115,16 @@ function next(ctx: CommandContext, s: Session): void {
   else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: ${s.command('plan', f)}`);
 }
 
+/** Offer to change answered steps, one after another, until the user says no (each change runs the steps it reopens). */
+async function revisits(s: Session, steps: readonly StepName[], idPrefix: string): Promise<void> {
+  for (let i = 1; ; i++) {
+    const st = await chooseRevisit(s, steps, `${idPrefix}.${i}`);
+    if (!st) return;
+    await runStep(s, st);
+    await runOpenSteps(s, steps);
+  }
+}
+
 /** `tolrate plan [FILE]`. */
 export async function planInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
@@ -125,12 +135,7 @@ export async function planInterview(ctx: CommandContext, asker: Asker, o: StageO
     await runOpenSteps(s, PLAN_STEPS);
     if (wasComplete) {
       s.print('', 'Every planning step is answered.');
-      for (let i = 1; ; i++) {
-        const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
-        if (!st) break;
-        await runStep(s, st);
-        await runOpenSteps(s, PLAN_STEPS);
-      }
+      await revisits(s, PLAN_STEPS, 'plan.revisit');
     }
     next(ctx, s);
     return 0;
@@ -196,14 +201,7 @@ export async function wholeInterview(ctx: CommandContext, asker: Asker, o: Stage
     if (!s) return 1;
     const wasDone = firstOpen(s.wp) === undefined;
     await runOpenSteps(s, STEPS);
-    if (wasDone) {
-      for (let i = 1; ; i++) {
-        const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
-        if (!st) break;
-        await runStep(s, st);
-        await runOpenSteps(s, STEPS);
-      }
-    }
+    if (wasDone) await revisits(s, STEPS, 'start.revisit');
     next(ctx, s);
     return 0;
   });

@@ -270,6 +270,15 @@ export interface RenderOptions {
   operatingCharacteristic?: boolean;
 }
 
+/** A centred picture (a PNG drawn from SVG) with its text alternative. */
+function imageParagraph(png: Buffer, size: { width: number; height: number }, alt: { name: string; title: string; description: string }): Paragraph {
+  return new Paragraph({
+    alignment: AlignmentType.CENTER,
+    keepNext: true,
+    children: [new ImageRun({ type: 'png', data: png, transformation: { width: size.width, height: size.height }, altText: alt })],
+  });
+}
+
 /** What every section of the memo is written with. */
 interface Ctx {
   b: Builder;
@@ -565,21 +574,10 @@ async function resultsSection(c: Ctx): Promise<void> {
         const png = await renderPng(svg.svg, 2);
         if (png) {
           b.children.push(
-            new Paragraph({
-              alignment: AlignmentType.CENTER,
-              keepNext: true,
-              children: [
-                new ImageRun({
-                  type: 'png',
-                  data: png,
-                  transformation: { width: svg.width, height: svg.height },
-                  altText: {
-                    name: 'rates-chart',
-                    title: H.chart,
-                    description: rows.map((r) => `${r.id}: ${L.legendSampleRate} ${r.sampleRateText}, ${L.legendUpperLimit} ${r.upperLimitText}, ${L.legendTolerable} ${r.tolerableRateText}`).join('; '),
-                  },
-                }),
-              ],
+            imageParagraph(png, svg, {
+              name: 'rates-chart',
+              title: H.chart,
+              description: rows.map((r) => `${r.id}: ${L.legendSampleRate} ${r.sampleRateText}, ${L.legendUpperLimit} ${r.upperLimitText}, ${L.legendTolerable} ${r.tolerableRateText}`).join('; '),
             }),
           );
           b.p(b.f(T.chartCaption), { style: 'Caption' });
@@ -974,15 +972,7 @@ async function appendixOcSection(c: Ctx): Promise<void> {
   }
   const svg = ocSvg(curves, { x: L.trueRate, y: L.chanceOfReliance, tolerable: `${L.legendTolerable} (${a.sizes[0]!.attributeId})`, expected: L.expectedRate }, chartW);
   const png = await renderPng(svg.svg, 2);
-  if (png) {
-    b.children.push(
-      new Paragraph({
-        alignment: AlignmentType.CENTER,
-        keepNext: true,
-        children: [new ImageRun({ type: 'png', data: png, transformation: { width: svg.width, height: svg.height }, altText: { name: 'operating-characteristic', title: L.chanceOfReliance, description: curves.map((cv) => cv.id).join('; ') } })],
-      }),
-    );
-  }
+  if (png) b.children.push(imageParagraph(png, svg, { name: 'operating-characteristic', title: L.chanceOfReliance, description: curves.map((cv) => cv.id).join('; ') }));
   b.p(b.f(T.ocCaption), { style: 'Caption' });
 }
 
