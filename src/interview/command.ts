@@ -3,7 +3,7 @@
  * answerer for a terminal, resolving a workpaper path, opening or creating the session.
  */
 import { existsSync } from 'node:fs';
-import { extname, resolve } from 'node:path';
+import { dirname, extname, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { UsageError } from '../errors.js';
 import { packageVersion } from '../util/version.js';
@@ -11,6 +11,7 @@ import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { Asker } from './asker.js';
 import { newSession, openSession, type Session } from './session.js';
 import { TerminalAsker } from './terminal.js';
+import { folderPath, loadFolder } from '../engagement/folder.js';
 
 /** Options an interview run takes besides the answerer (tests fix the clock). */
 export interface InterviewOptions {
@@ -48,8 +49,12 @@ export async function sessionFor(
   path: string,
   o: InterviewOptions & { policyPath?: string; mustExist?: boolean; hold?: (s: Session) => Session },
 ): Promise<Session | undefined> {
+  // The folder's engagement file: its answers are the defaults, its policy the default policy.
+  const folder = loadFolder(dirname(path));
+  const policyPath = o.policyPath ?? (folder?.defaults.policy ? folderPath(dirname(path), folder.defaults.policy) : undefined);
   const base = {
     asker,
+    ...(folder ? { folder } : {}),
     out: ctx.stdout,
     path,
     color: ctx.color,
@@ -57,7 +62,7 @@ export async function sessionFor(
     toolVersion: packageVersion(),
     invocation: ctx.invocation ?? 'tolrate',
     ...(o.now ? { now: o.now } : {}),
-    ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
+    ...(policyPath ? { policyPath: resolve(ctx.cwd, policyPath) } : {}),
   };
   const hold = o.hold ?? ((s: Session) => s);
   if (existsSync(path)) return openSession({ ...base, hold });
