@@ -9,7 +9,10 @@ import type { CarriedForward, Workpaper } from '../workpaper/schema.js';
 import { stateHash } from '../workpaper/log.js';
 import { isAnswered, SEVERITY_LABELS, FOLLOW_UP_LABELS, type StepName } from '../control-test/index.js';
 import { pctPlain, pctUp, int } from '../util/format.js';
-import { TolrateInputError } from '../errors.js';
+import { TolrateInputError, UsageError } from '../errors.js';
+import { existsSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { loadWorkpaper, newWorkpaper, saveWorkpaper } from '../workpaper/file.js';
 
 type Answers = Record<string, string | boolean>;
 
@@ -107,4 +110,18 @@ export function followUpLines(cf: CarriedForward): string[] {
     `  Last year's follow-up actions (${f.length}; tolrate does not record whether they were done — check each this year):`,
     ...f.map((x) => `    - ${FOLLOW_UP_LABELS[x.kind]}: ${x.description}${x.owner ? ` Owner: ${x.owner}.` : ''}${x.due ? ` Due ${x.due}.` : ''}`),
   ];
+}
+
+/**
+ * Start this year's workpaper at `path` from last year's at `fromPath`: a new file holding only
+ * where it came from and the defaults. Refused when `path` exists (it would be overwritten).
+ */
+export function startCarriedForward(path: string, fromPath: string, shownFrom: string, toolVersion: string, now: Date): Workpaper {
+  if (existsSync(path)) {
+    throw new UsageError(`${path} exists already; carry forward starts a new workpaper file.`, ['Name a new file, e.g. the control and this year: tolrate plan NEW --from LAST.tolrate.json']);
+  }
+  if (resolve(path) === resolve(fromPath)) throw new UsageError('The new workpaper and last year\'s are the same file.');
+  const last = loadWorkpaper(fromPath);
+  const wp: Workpaper = { ...newWorkpaper(toolVersion, now), carriedForward: carryForward(last, shownFrom) };
+  return saveWorkpaper(path, wp, { by: 'tolrate', step: 'plan.carry-forward', at: now });
 }

@@ -17,10 +17,14 @@ import { answerOpenNotes, reviewSitting } from './review.js';
 import { reviewStatus } from '../control-test/index.js';
 import type { Session } from './session.js';
 import { wrap } from './show.js';
+import { followUpLines, startCarriedForward } from './carry-forward.js';
+import { packageVersion } from '../util/version.js';
 
 export interface StageOptions extends InterviewOptions {
   file?: string | undefined;
   policy?: string | undefined;
+  /** Last year's workpaper to carry forward into a new file (`plan NEW --from LAST`). */
+  from?: string | undefined;
 }
 
 function shown(ctx: CommandContext, path: string): string {
@@ -63,12 +67,18 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     });
   }
   const path = workpaperPath(ctx.cwd, file);
+  if (o.from) startCarriedForward(path, resolve(ctx.cwd, o.from), o.from, packageVersion(), (o.now ?? (() => new Date()))());
   const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
   if (!s) {
     ctx.stdout.write('Nothing was changed.\n');
     return undefined;
   }
   if (s.wp.log.length === 0) s.print(`Starting a new test in ${shown(ctx, path)}.`);
+  else if (o.from && s.wp.carriedForward) {
+    s.print(`Starting ${shown(ctx, path)} from last year's ${s.wp.carriedForward.path} (its state ${s.wp.carriedForward.stateHash.slice(0, 12)}...).`);
+    s.print('  The control, the attributes and the approach are offered as the answers to confirm; the population, selection, results and conclusion are not copied.');
+    s.print(...followUpLines(s.wp.carriedForward));
+  }
   else {
     s.print(`${shown(ctx, path)}: ${s.wp.control?.id ?? 'a test'}${s.wp.engagement ? `, ${s.wp.engagement.entity}` : ''}`);
     s.print(...statusLines(s.wp));
