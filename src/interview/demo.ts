@@ -22,6 +22,7 @@ import { answerOpenNotes, reviewSitting } from './review.js';
 import { evaluationLines } from './conclude.js';
 import { defaultSheetName } from './plan-selection.js';
 import { CAUTION, wrap } from './show.js';
+import type { EngagementFolder } from '../engagement/folder.js';
 
 export const SCENARIOS = ['main', 'small'] as const;
 export type Scenario = (typeof SCENARIOS)[number];
@@ -80,6 +81,8 @@ export interface DemoOptions {
   /** Stop after the planning steps (used to make the filled sheet from the real selection). */
   planOnly?: boolean;
   samples?: string;
+  /** The engagement folder file the demo's folder has (its answers replace the script's engagement). */
+  folder?: EngagementFolder;
 }
 
 /** A clock that starts at `start` and advances one second each time it is read. */
@@ -138,6 +141,7 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
     cwd: out,
     toolVersion: packageVersion(),
     now,
+    ...(o.folder ? { folder: o.folder } : {}),
   });
   const steps = o.planOnly ? STEPS.slice(0, 6) : STEPS;
   const got = await runOpenSteps(s, steps);
@@ -147,7 +151,7 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
   if (sc.review && !o.planOnly) {
     const sitting = async (answers: Record<string, unknown>): Promise<Session> => {
       const a = new ScriptedAsker(answers as ScriptAnswers, { defaults: true, onAsk: (r) => sink.write(`? ${r.message} ${r.answer === '' ? '(Enter)' : r.answer}${r.refused ? `\n  > ${r.refused}` : ''}\n`) });
-      const opened = await openSession({ asker: a, out: sink, path: wpPath, cwd: out, toolVersion: packageVersion(), now });
+      const opened = await openSession({ asker: a, out: sink, path: wpPath, cwd: out, toolVersion: packageVersion(), now, ...(o.folder ? { folder: o.folder } : {}) });
       if (!opened) throw new ScriptError('The demo could not open its own workpaper.');
       return opened;
     };
