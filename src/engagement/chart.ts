@@ -44,8 +44,8 @@ export function limitChart(rows: readonly LimitRow[], axisMax: number, step: num
   out.push(`<text x="${left + 24}" y="17" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(legend.limit)}</text>`);
   out.push(`<rect x="${left + 170}" y="8" width="18" height="10" fill="${COLORS.exceed}" stroke="${COLORS.exceedStroke}"/>`);
   out.push(`<text x="${left + 194}" y="17" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(legend.exceeds)}</text>`);
-  out.push(`<line x1="${left + 340}" y1="6" x2="${left + 340}" y2="20" stroke="${COLORS.tolerable}" stroke-width="2.5"/>`);
-  out.push(`<text x="${left + 348}" y="17" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(legend.tolerable)}</text>`);
+  out.push(`<line x1="${left + 390}" y1="6" x2="${left + 390}" y2="20" stroke="${COLORS.tolerable}" stroke-width="2.5"/>`);
+  out.push(`<text x="${left + 398}" y="17" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(legend.tolerable)}</text>`);
   const plotBottom = top + rowH * rows.length;
   const nTicks = Math.round(axisMax / step);
   for (let i = 0; i <= nTicks; i++) {

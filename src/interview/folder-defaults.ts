@@ -4,11 +4,12 @@
  * and a control picked from the firm library as the defaults of the control and attributes.
  */
 import type { Engagement } from '../workpaper/schema.js';
-import type { EngagementFolder } from '../engagement/folder.js';
-import { folderPath } from '../engagement/folder.js';
+import type { EngagementFolder, EngagementFolderInput } from '../engagement/folder.js';
+import { folderPath, TEAM_ROLES } from '../engagement/folder.js';
+import type { Asker } from './asker.js';
 import { libraryAnswers, loadLibrary } from '../engagement/library.js';
 import type { Session } from './session.js';
-import { requiredText } from './parse.js';
+import { date, optionalText, rate, requiredText } from './parse.js';
 import { wrap } from './show.js';
 
 export async function engagementFromFolder(s: Session, f: EngagementFolder): Promise<Engagement> {
@@ -56,4 +57,43 @@ export async function offerFromLibrary(s: Session): Promise<void> {
   if (!c) return;
   s.offerDefaults(libraryAnswers(c));
   s.print(`  ${c.id} and its attributes are offered as the answers: press Enter to keep each, or type your own.`);
+}
+
+/** Ask the engagement folder file's contents (the start screen's "set up this folder"), with the file's answers as defaults. */
+export async function askFolder(a: Asker, old: EngagementFolder | undefined, withLibrary: string): Promise<EngagementFolderInput> {
+  const entity = await a.text({ id: 'start.folder.entity', message: 'Entity', ...(old ? { default: old.entity } : {}), parse: requiredText('The entity') });
+  const periodStart = await a.text({ id: 'start.folder.periodStart', message: 'Period start (YYYY-MM-DD)', ...(old ? { default: old.periodStart } : {}), parse: date('Period start') });
+  const periodEnd = await a.text({ id: 'start.folder.periodEnd', message: 'Period end (YYYY-MM-DD)', ...(old ? { default: old.periodEnd } : {}), parse: date('Period end', { notBefore: periodStart, notBeforeWhat: 'the period start' }) });
+  const reference = await a.text({ id: 'start.folder.reference', message: 'Engagement reference', help: 'The engagement\'s own index, e.g. BK-2025 (each workpaper keeps its own reference too).', ...(old ? { default: old.reference } : {}), parse: requiredText('The engagement reference') });
+  const team: EngagementFolderInput['team'] = [];
+  for (let i = 1; ; i++) {
+    const prev = old?.team[i - 1];
+    const name = await a.text({ id: `start.folder.team.${i}.name`, message: `Team member ${i}: name`, help: 'The team needs at least one preparer and one reviewer, manager or partner.', ...(prev ? { default: prev.name } : {}), parse: requiredText('The name') });
+    const role = await a.select({ id: `start.folder.team.${i}.role`, message: `${name}: role`, choices: TEAM_ROLES.map((r) => ({ value: r, name: r })), default: prev?.role ?? (i === 1 ? 'manager' : 'preparer') });
+    team.push({ name, role });
+    const hasBoth = team.some((m) => m.role === 'preparer') && team.some((m) => m.role !== 'preparer');
+    if (!hasBoth) {
+      continue;
+    }
+    const more = await a.confirm({ id: `start.folder.team.more.${i}`, message: 'Add another team member?', default: (old?.team.length ?? 0) > i });
+    if (!more) break;
+  }
+  const confidence = await a.text({
+    id: 'start.folder.confidence',
+    message: 'Firm default confidence (%) for statistical tests',
+    default: old?.defaults.confidence !== undefined ? `${Number((old.defaults.confidence * 100).toPrecision(10))}` : '95',
+    parse: rate('Confidence', { atLeast: 0.5, atLeastWhat: '50%', example: '95' }),
+  });
+  const policy = await a.text({ id: 'start.folder.policy', message: 'Firm sampling policy file (blank = the one shipped with tolrate)', default: old?.defaults.policy ?? '', parse: optionalText });
+  const memoTemplate = await a.text({ id: 'start.folder.memoTemplate', message: 'Firm memo template folder (blank = the one shipped with tolrate)', default: old?.defaults.memoTemplate ?? '', parse: optionalText });
+  const useLibrary = await a.confirm({ id: 'start.folder.library', message: 'Offer the standard controls of the firm library when planning?', default: old ? old.defaults.library !== undefined : true });
+  return {
+    schemaVersion: 1,
+    entity,
+    periodStart,
+    periodEnd,
+    reference,
+    team,
+    defaults: { confidence, ...(policy ? { policy } : {}), ...(memoTemplate ? { memoTemplate } : {}), ...(useLibrary ? { library: old?.defaults.library ?? withLibrary } : {}) },
+  };
 }
