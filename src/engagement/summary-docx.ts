@@ -85,14 +85,14 @@ export async function renderSummaryDocx(m: SummaryModel): Promise<Buffer> {
 
   ch.push(h1('2. Controls tested'));
   if (m.controls.length === 0) ch.push(none('controls'));
-  else ch.push(table([{ h: "Ref.", w: 0.9 }, { h: 'Control', w: 1 }, { h: 'What the control does', w: 4 }, { h: 'Approach', w: 1.3 }, { h: 'Items', w: 0.7, right: true }, { h: 'Conclusion', w: 5 }], m.controls.map((c) => [c.reference, c.control, c.description, c.approach, c.sampleSize !== undefined ? int(c.sampleSize) : '-', c.conclusion])));
+  else ch.push(table([{ h: 'Ref.', w: 0.9 }, { h: 'Control', w: 1 }, { h: 'What the control does', w: 4 }, { h: 'Approach', w: 1.3 }, { h: 'Items', w: 0.7, right: true }, { h: 'Conclusion', w: 5 }], m.controls.map((c) => [c.reference, c.control, c.description, c.approach, c.sampleSize !== undefined ? int(c.sampleSize) : '-', c.conclusion])));
 
   ch.push(h1('3. Results by attribute'));
   if (m.results.length === 0) ch.push(none('results'));
   else {
     ch.push(
       table(
-        [{ h: "Ref.", w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Attr.', w: 0.6 }, { h: 'Attribute', w: 4 }, { h: 'Tested', w: 0.8, right: true }, { h: "Deviations", w: 1.1, right: true }, { h: 'Sample rate', w: 0.9, right: true }, { h: 'Upper limit', w: 0.9, right: true }, { h: "Tolerable", w: 1.0, right: true }, { h: 'Decision', w: 2 }],
+        [{ h: 'Ref.', w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Attr.', w: 0.6 }, { h: 'Attribute', w: 4 }, { h: 'Tested', w: 0.8, right: true }, { h: 'Deviations', w: 1.1, right: true }, { h: 'Sample rate', w: 0.9, right: true }, { h: 'Upper limit', w: 0.9, right: true }, { h: 'Tolerable', w: 1.0, right: true }, { h: 'Decision', w: 2 }],
         m.results.map((r) => [
           r.reference,
           r.control,
@@ -129,15 +129,15 @@ export async function renderSummaryDocx(m: SummaryModel): Promise<Buffer> {
 
   ch.push(h1('4. Deviations and their causes'));
   if (m.deviations.length === 0) ch.push(none('deviations'));
-  else ch.push(table([{ h: "Ref.", w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Item', w: 1.2 }, { h: 'Attr.', w: 0.6 }, { h: 'What was found', w: 4 }, { h: 'Cause', w: 1.6 }, { h: 'Detail', w: 2.4 }, { h: 'Intentional', w: 0.9 }, { h: 'Pattern', w: 0.9 }], m.deviations.map((d) => [d.reference, d.control, d.item, d.attribute, d.found + (d.concluded ? '' : ' (test in progress)'), d.cause, d.causeDetail, d.intentional, d.pattern])));
+  else ch.push(table([{ h: 'Ref.', w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Item', w: 1.2 }, { h: 'Attr.', w: 0.6 }, { h: 'What was found', w: 4 }, { h: 'Cause', w: 1.6 }, { h: 'Detail', w: 2.4 }, { h: 'Intentional', w: 0.9 }, { h: 'Pattern', w: 0.9 }], m.deviations.map((d) => [d.reference, d.control, d.item, d.attribute, d.found + (d.concluded ? '' : ' (test in progress)'), d.cause, d.causeDetail, d.intentional, d.pattern])));
 
   ch.push(h1('5. Deficiencies, as classified by the practitioner'));
   if (m.deficiencies.length === 0) ch.push(none('deficiencies in the concluded tests'));
-  else ch.push(table([{ h: "Ref.", w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Classification', w: 1.6 }, { h: 'Reasons', w: 5 }, { h: 'Conclusion on the control', w: 5 }], m.deficiencies.map((d) => [d.reference, d.control, d.classification, d.reasons, d.controlConclusion])));
+  else ch.push(table([{ h: 'Ref.', w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Classification', w: 1.6 }, { h: 'Reasons', w: 5 }, { h: 'Conclusion on the control', w: 5 }], m.deficiencies.map((d) => [d.reference, d.control, d.classification, d.reasons, d.controlConclusion])));
 
   ch.push(h1('6. Follow-up actions'));
   if (m.followUps.length === 0) ch.push(none('follow-up actions in the concluded tests'));
-  else ch.push(table([{ h: "Ref.", w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Action', w: 1.6 }, { h: 'Description', w: 5 }, { h: 'Owner', w: 1.6 }, { h: 'Due', w: 1 }, { h: `As of ${m.asOf}`, w: 1 }], m.followUps.map((x) => [x.reference, x.control, x.kind, x.description, x.owner, x.due ?? '-', x.timing])));
+  else ch.push(table([{ h: 'Ref.', w: 0.9 }, { h: 'Control', w: 1 }, { h: 'Action', w: 1.6 }, { h: 'Description', w: 5 }, { h: 'Owner', w: 1.6 }, { h: 'Due', w: 1 }, { h: `As of ${m.asOf}`, w: 1 }], m.followUps.map((x) => [x.reference, x.control, x.kind, x.description, x.owner, x.due ?? '-', x.timing])));
 
   const doc = new Document({
     creator: 'tolrate',
