@@ -75,8 +75,8 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
   }
   if (s.wp.log.length === 0) s.print(`Starting a new test in ${shown(ctx, path)}.`);
   else if (o.from && s.wp.carriedForward) {
-    s.print(`Starting ${shown(ctx, path)} from last year's ${s.wp.carriedForward.path} (its state ${s.wp.carriedForward.stateHash.slice(0, 12)}...).`);
-    s.print('  The control, the attributes and the approach are offered as the answers to confirm; the population, selection, results and conclusion are not copied.');
+    s.print(...wrap(`Starting ${shown(ctx, path)} from last year's ${s.wp.carriedForward.path} (its state ${s.wp.carriedForward.stateHash.slice(0, 12)}...).`));
+    s.print(...wrap('The control, the attributes and the approach are offered as the answers to confirm; the population, selection, results and conclusion are not copied.', 92, '  '));
     s.print(...followUpLines(s.wp.carriedForward));
   }
   else {

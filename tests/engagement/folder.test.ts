@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { parseFolder, saveFolder, type EngagementFolderInput } from '../../src/engagement/folder.js';
 import { loadLibrary, shippedLibraryDir } from '../../src/engagement/library.js';
 import { runWith as plan } from '../../src/commands/plan/index.js';
-import { ScriptedAsker } from '../../src/interview/scripted.js';
+import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { stateHash } from '../../src/workpaper/log.js';
 import { TolrateInputError } from '../../src/errors.js';
@@ -31,10 +31,10 @@ const FOLDER: EngagementFolderInput = {
 };
 
 /** The plan answers without the engagement questions the folder file answers. */
-function withoutEngagement(total: string): Record<string, string | boolean | number | null> {
+function withoutEngagement(total: string): ScriptAnswers {
   const a = { ...planAnswers(total) };
   for (const k of ['plan.engagement.entity', 'plan.engagement.periodStart', 'plan.engagement.periodEnd']) delete a[k];
-  return a as Record<string, string | boolean | number | null>;
+  return a;
 }
 
 function problemsOf(f: () => unknown): string[] {

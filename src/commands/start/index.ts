@@ -21,6 +21,11 @@ this folder, or use a calculator. Each stage also runs on its own:
 
 Usage: tolrate [FILE.tolrate.json] [--policy POLICY.json]
 
+With no FILE it shows the folder's engagement (tolrate-engagement.json) and every workpaper
+here with where it stands, and offers: start a new test, start this year's test from last
+year's workpaper, continue a workpaper, set up (or change) the folder's engagement file, or a
+calculator.
+
   FILE             continue this workpaper at its first unanswered step (plan, record or
                    conclude, whichever is next)
   --policy FILE    the firm's non-statistical sampling policy for a new test
@@ -123,7 +128,7 @@ export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: 
       { value: 'new', name: 'Start a new test' },
       { value: 'carry', name: 'Start this year\'s test from last year\'s workpaper of the same control' },
       { value: 'continue', name: `Continue a workpaper file${files.length ? ` (${files.length} in this folder)` : ''}` },
-      { value: 'folder', name: folder.file ? 'Change the engagement file of this folder (entity, period, team, firm defaults)' : 'Set up this folder as an engagement: entity, period, team and firm defaults, shared by every test here' },
+      { value: 'folder', name: folder.file ? 'Change this folder\'s engagement file (entity, period, team, firm defaults)' : 'Set up this folder as an engagement (entity, period, team, firm defaults)' },
       { value: 'calculator', name: 'Use a calculator (sample size, evaluation, planning table)' },
       { value: 'quit', name: 'Quit' },
     ],
