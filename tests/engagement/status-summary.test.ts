@@ -62,6 +62,24 @@ describe('tolrate status', () => {
     expect(text.text()).toContain('CHANGED OUTSIDE TOLRATE');
   });
 
+  it('with --reperform, re-performs every test: exit 0 when all agree, 1 naming the test whose population differs', async () => {
+    const extra = tempDir();
+    for (const f of ['supplier-invoice-approval.tolrate.json', 'supplier-invoices-2025.csv', 'supplier-invoice-approval.filled.csv']) copyFileSync(join(dir, f), join(extra, f));
+    const ok = captureContext(extra, false);
+    expect(await status([extra, '--as-of', AS_OF, '--reperform'], ok)).toBe(0);
+    expect(ok.text()).toContain('re-performance agrees');
+    // One amount of the population changed after the test: its fingerprint no longer matches.
+    const csv = join(extra, 'supplier-invoices-2025.csv');
+    const lines = readFileSync(csv, 'utf8').split('\n');
+    lines[5] = lines[5]!.replace(/(\d)(\.\d\d)/, (_m, d: string, c: string) => `${(Number(d) + 1) % 10}${c}`);
+    writeFileSync(csv, lines.join('\n'));
+    const bad = captureContext(extra, false);
+    expect(await status([extra, '--as-of', AS_OF, '--reperform', '--json'], bad)).toBe(1);
+    const got = JSON.parse(bad.text());
+    expect(got.counts.reperformDiffers).toBe(1);
+    expect(got.workpapers[0].reperform.join(' ')).toMatch(/^population: /);
+  });
+
   it('shows figures, decisions, step, review, notes and follow-ups due against the as-of date, as the workpapers record them', async () => {
     const ctx = captureContext(dir, false);
     expect(await status([dir, '--as-of', AS_OF, '--json'], ctx)).toBe(1);
