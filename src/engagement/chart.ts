@@ -70,8 +70,8 @@ export function limitChart(rows: readonly LimitRow[], axisMax: number, step: num
   return { svg: out.join('\n'), width, height, geometry };
 }
 
-/** The whole chart in parts of at most `perPart` rows, on one axis. */
-export function limitChartParts(rows: readonly LimitRow[], legend: { limit: string; exceeds: string; tolerable: string }, perPart = 40): LimitChart[] {
+/** The whole chart in parts of at most `perPart` rows (28 fit a landscape A4 page with the caption), on one axis. */
+export function limitChartParts(rows: readonly LimitRow[], legend: { limit: string; exceeds: string; tolerable: string }, perPart = 28): LimitChart[] {
   if (rows.length === 0) return [];
   const axis = niceAxis(Math.max(...rows.flatMap((r) => [r.upperLimit, r.tolerableRate])));
   const parts: LimitChart[] = [];

@@ -162,3 +162,20 @@ describe('tolrate summary', () => {
     expect(docx.files.some((f) => f.startsWith('word/media/'))).toBe(true);
   });
 });
+
+describe('the summary chart', () => {
+  it('draws every row on one axis in parts that fit a page; a limit above the tolerable rate is marked', async () => {
+    const { limitChartParts } = await import('../../src/engagement/chart.js');
+    // Limits and rates of an invented list of 60 rows (geometry only).
+    const rows = Array.from({ length: 60 }, (_, i) => ({ label: `T-${i} A1`, upperLimit: 0.005 + (i % 10) / 100, tolerableRate: 0.06, upperLimitText: '' }));
+    const parts = limitChartParts(rows, { limit: 'l', exceeds: 'e', tolerable: 't' });
+    expect(parts.map((p) => p.geometry.length)).toEqual([28, 28, 4]);
+    // One axis: the same tolerable rate is at the same x in every part.
+    const xs = new Set(parts.flatMap((p) => p.geometry.map((g) => g.tolerableX.toFixed(3))));
+    expect(xs.size).toBe(1);
+    const all = parts.flatMap((p) => p.geometry);
+    all.forEach((g, i) => expect(g.exceeds).toBe(rows[i]!.upperLimit > 0.06));
+    // 96 px to the inch: a part with its legend and axis fits the 6.7 in of a landscape A4 page.
+    for (const p of parts) expect(p.height / 96).toBeLessThan(6.7);
+  });
+});
