@@ -34,6 +34,7 @@ const FOLDER: EngagementFolderInput = {
 function withoutEngagement(total: string): ScriptAnswers {
   const a = { ...planAnswers(total) };
   for (const k of ['plan.engagement.entity', 'plan.engagement.periodStart', 'plan.engagement.periodEnd']) delete a[k];
+  a['plan.engagement.reviewer'] = 'M. Manager';
   return a;
 }
 
@@ -86,6 +87,55 @@ describe('the engagement folder file', () => {
     expect(ctx.text().replace(/\s+/g, ' ')).toContain('From the engagement folder file: Corrow Fittings Ltd, period 2025-01-01 to 2025-12-31, engagement CF-2025.');
   });
 
+  it('takes the firm\'s sampling policy file named in the folder file as the policy of a new test', async () => {
+    const dir = tempDir();
+    const { total } = writePopulation(dir);
+    const policy = JSON.parse(readFileSync(new URL('../../templates/sampling-policy.json', import.meta.url), 'utf8'));
+    policy.name = 'Corrow audit firm policy (test copy)';
+    mkdirSync(join(dir, 'firm'));
+    writeFileSync(join(dir, 'firm', 'policy.json'), JSON.stringify(policy));
+    saveFolder(dir, { ...FOLDER, defaults: { policy: 'firm/policy.json' } });
+    const answers = withoutEngagement(total);
+    answers['plan.approach.kind'] = 'non-statistical';
+    const a = new ScriptedAsker(answers, { defaults: true });
+    expect(await plan(['t1'], captureContext(dir), a, { now: fixedClock() })).toBe(0);
+    expect(loadWorkpaper(join(dir, 't1.tolrate.json')).approach!.policy!.name).toBe('Corrow audit firm policy (test copy)');
+  });
+
+  it('is created from the start screen, which then shows the engagement and where every workpaper stands', async () => {
+    const { runWith: start } = await import('../../src/commands/start/index.js');
+    const dir = tempDir();
+    const ctx = captureContext(dir);
+    const a = new ScriptedAsker({
+      'start.action': 'folder',
+      'start.folder.entity': 'Corrow Fittings Ltd',
+      'start.folder.periodStart': '2025-01-01',
+      'start.folder.periodEnd': '2025-12-31',
+      'start.folder.reference': 'CF-2025',
+      'start.folder.team.1.name': 'M. Manager',
+      'start.folder.team.1.role': 'manager',
+      'start.folder.team.2.name': 'T. Preparer',
+      'start.folder.team.2.role': 'preparer',
+      'start.folder.team.more.2': false,
+      'start.folder.confidence': '90',
+      'start.folder.policy': '',
+      'start.folder.memoTemplate': '',
+      'start.folder.library': false,
+    });
+    expect(await start([], ctx, a, { now: fixedClock() })).toBe(0);
+    expect(ctx.text()).toContain('This folder has no engagement file (tolrate-engagement.json) yet');
+    // A team of one manager cannot stop there: the member's role question comes before "more?".
+    expect(a.ids).not.toContain('start.folder.team.more.1');
+    const saved = JSON.parse(readFileSync(join(dir, 'tolrate-engagement.json'), 'utf8'));
+    expect(saved).toMatchObject({ entity: 'Corrow Fittings Ltd', reference: 'CF-2025', defaults: { confidence: 0.9 } });
+    expect(saved.team).toEqual([{ name: 'M. Manager', role: 'manager' }, { name: 'T. Preparer', role: 'preparer' }]);
+    writeFileSync(join(dir, 'odd.tolrate.json'), 'not json');
+    const ctx2 = captureContext(dir);
+    expect(await start([], ctx2, new ScriptedAsker({ 'start.action': 'quit' }), { now: fixedClock() })).toBe(0);
+    expect(ctx2.text()).toContain('Engagement CF-2025: Corrow Fittings Ltd, 2025-01-01 to 2025-12-31');
+    expect(ctx2.text()).toMatch(/odd\.tolrate\.json — cannot be read: /);
+  });
+
   it('refuses a bad folder file with every problem when a test is planned in the folder', async () => {
     const dir = tempDir();
     writeFileSync(join(dir, 'tolrate-engagement.json'), JSON.stringify({ schemaVersion: 1, entity: 'X', periodStart: '2025-01-01', periodEnd: '2025-12-31', reference: 'R', team: [] }));
@@ -122,7 +172,6 @@ describe('the firm library', () => {
     const answers = withoutEngagement(total);
     for (const k of Object.keys(answers)) if (k.startsWith('plan.control.') || k.startsWith('plan.attributes.')) delete answers[k];
     answers['plan.control.library'] = 'TR-BANKREC';
-    answers['plan.engagement.reviewer'] = 'M. Manager';
     answers['plan.control.frequency'] = 'many-times-daily';
     const a = new ScriptedAsker(answers, { defaults: true });
     expect(await plan(['t1'], captureContext(dir), a, { now: fixedClock() })).toBe(0);
