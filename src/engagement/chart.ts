@@ -64,7 +64,9 @@ export function limitChart(rows: readonly LimitRow[], axisMax: number, step: num
     out.push(`<text x="${left - 6}" y="${y + 13}" text-anchor="end" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${esc(r.label)}</text>`);
     out.push(`<rect x="${left}" y="${y + 3}" width="${Math.max(ux - left, 1).toFixed(2)}" height="12" fill="${exceeds ? COLORS.exceed : COLORS.limit}" stroke="${exceeds ? COLORS.exceedStroke : COLORS.limitStroke}" stroke-width="1"/>`);
     out.push(`<line x1="${tx.toFixed(2)}" y1="${y + 1}" x2="${tx.toFixed(2)}" y2="${y + 17}" stroke="${COLORS.tolerable}" stroke-width="2.5"/>`);
-    out.push(`<text x="${(Math.max(ux, tx) + 5).toFixed(2)}" y="${y + 13}" font-family="${FONT}" font-size="9" fill="${COLORS.text}">${esc(r.upperLimitText)}</text>`);
+    // The value just after its bar; after the mark instead when the mark would cross it.
+    const lx = tx >= ux - 2 && tx <= ux + 34 ? tx + 5 : ux + 5;
+    out.push(`<text x="${lx.toFixed(2)}" y="${y + 13}" font-family="${FONT}" font-size="9" fill="${COLORS.text}">${esc(r.upperLimitText)}</text>`);
   });
   out.push('</svg>');
   return { svg: out.join('\n'), width, height, geometry };
