@@ -3,7 +3,7 @@
  * "continue" runs. Each takes the answerer as an argument, so the same code runs on a terminal
  * and from a script.
  */
-import { relative, resolve } from 'node:path';
+import { dirname, relative, resolve, sep } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { TolrateInputError } from '../errors.js';
 import { int } from '../util/format.js';
@@ -67,7 +67,11 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     });
   }
   const path = workpaperPath(ctx.cwd, file);
-  if (o.from) startCarriedForward(path, resolve(ctx.cwd, o.from), o.from, packageVersion(), (o.now ?? (() => new Date()))());
+  if (o.from) {
+    // Recorded relative to the new file's folder (as population paths are), so the folders can move together.
+    const fromPath = resolve(ctx.cwd, o.from);
+    startCarriedForward(path, fromPath, relative(dirname(path), fromPath).split(sep).join('/'), packageVersion(), (o.now ?? (() => new Date()))());
+  }
   const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
   if (!s) {
     ctx.stdout.write('Nothing was changed.\n');

@@ -390,9 +390,9 @@ export const LogEntry = z.object({
 });
 
 /**
- * Where a test carried forward from an earlier one came from: the earlier file (path as given and
- * the state hash it had), the answers copied as defaults to confirm (by step, then question id),
- * and the earlier figures shown when the expected rate is asked.
+ * Where a test carried forward from an earlier one came from: the earlier file (its path relative
+ * to this file's folder, and the state hash it had), the answers copied as defaults to confirm
+ * (by step, then question id), and the earlier figures shown when the expected rate is asked.
  */
 export const CarriedForward = z.object({
   path: text,

@@ -240,6 +240,19 @@ describe('carry forward (plan NEW --from LAST)', () => {
     for (const f of lastWp.conclusion!.followUps) expect(out).toContain(f.description.slice(0, 40));
   });
 
+  it('is a start-screen choice: last year\'s file, then the new file', async () => {
+    const { runWith: start } = await import('../../src/commands/start/index.js');
+    const { dir, last, total } = await lastYear();
+    const answers = planAnswers(total);
+    for (const k of Object.keys(answers)) if (k.startsWith('plan.control.') || k.startsWith('plan.attributes.')) delete answers[k];
+    const a = new ScriptedAsker({ 'start.action': 'carry', 'start.carry.from': ['prior/nothing-here', 'prior/last'], 'start.file': 'again', ...answers, 'record.source': 'later' }, { defaults: true });
+    expect(await start([], captureContext(dir), a, { now: fixedClock('2026-01-20T09:00:00.000Z') })).toBe(0);
+    expect(a.refusals.map((r) => r.id)).toEqual(['start.carry.from']);
+    const wp = loadWorkpaper(join(dir, 'again.tolrate.json'));
+    expect(wp.carriedForward!.stateHash).toBe(stateHash(loadWorkpaper(last)));
+    expect(wp.control).toEqual(loadWorkpaper(last).control);
+  });
+
   it('refuses to carry forward onto an existing file', async () => {
     const { dir } = await lastYear();
     writeFileSync(join(dir, 'taken.tolrate.json'), '{}');
