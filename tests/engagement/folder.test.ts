@@ -259,3 +259,25 @@ describe('carry forward (plan NEW --from LAST)', () => {
     await expect(plan(['taken', '--from', 'prior/last.tolrate.json'], captureContext(dir), new ScriptedAsker({}), { now: fixedClock() })).rejects.toThrow(/exists already/);
   });
 });
+
+describe('the folder\'s memo template folder', () => {
+  it('is the default template of tolrate memo in the folder (without --template)', async () => {
+    const { buildFixture } = await import('../memo/fixtures.js');
+    const { DEFAULT_TEMPLATE_DIR } = await import('../../src/memo/index.js');
+    const { readDocx } = await import('../memo/docx-text.js');
+    const { cpSync } = await import('node:fs');
+    const { runCli } = await import('../../src/cli/main.js');
+    const f = buildFixture({ variant: 'supported' });
+    const tpl = join(f.dir, 'firm-memo');
+    cpSync(DEFAULT_TEMPLATE_DIR, tpl, { recursive: true });
+    const memo = JSON.parse(readFileSync(join(tpl, 'memo.json'), 'utf8')) as { title: string };
+    memo.title = 'Firm controls memorandum ({{reference}})';
+    writeFileSync(join(tpl, 'memo.json'), JSON.stringify(memo));
+    saveFolder(f.dir, { ...FOLDER, defaults: { memoTemplate: 'firm-memo' } });
+    const ctx = captureContext(f.dir, false);
+    expect(await runCli(['memo', 'C-310.tolrate.json'], ctx)).toBe(0);
+    const doc = await readDocx(readFileSync(join(f.dir, 'C-310.memo.docx')));
+    expect(doc.paragraphs[0]).toBe('Firm controls memorandum (C-310)');
+    expect(loadWorkpaper(f.path).memos!.at(-1)!.template).toBeDefined();
+  });
+});
