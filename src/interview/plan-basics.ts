@@ -7,6 +7,7 @@ import type { Session } from './session.js';
 import { wrap } from './show.js';
 import { date, NONE_ANSWER, optionalRate, requiredText } from './parse.js';
 import { engagementFromFolder, offerFromLibrary } from './folder-defaults.js';
+import { askRate } from './rate-question.js';
 
 export const FREQUENCY_LABELS: Record<Frequency, string> = {
   annual: 'Annual',
@@ -123,7 +124,7 @@ export async function askAttributes(s: Session): Promise<Attribute[]> {
       ...(prev ? { default: prev.deviationDefinition } : {}),
       parse: requiredText(`${id} deviation definition`),
     });
-    const tolerableRate = await a.text({
+    const tolerableRate = await askRate(a, {
       id: `plan.attributes.${id}.tolerableRate`,
       message: `${id}: its own tolerable deviation rate, if it differs from the test's (blank = the test's)`,
       help:

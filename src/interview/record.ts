@@ -26,7 +26,7 @@ function describe(item: SelectedItem, max = 6): string {
  * from the old results no longer holds: they are cleared in the same save, and the conclusion's
  * answers are kept as the defaults for concluding again.
  */
-export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): void {
+export async function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): Promise<void> {
   const before = s.wp.results?.items.find((x) => x.key === r.key);
   if (before && canonicalJson(before) === canonicalJson(r)) {
     s.print(`  ${r.key}: unchanged.`);
@@ -37,7 +37,7 @@ export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sh
     s.print(...wrap('The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).', 92, '  '));
   }
   s.wp = withResult(s.wp, r, { source, ...(sheetPath ? { sheetPath } : {}), at: s.now() });
-  if (save) s.save('record');
+  if (save) await s.save('record');
 }
 
 /** Record a void: the item is replaced by the next unused spare (or the sample is one short). */
@@ -156,7 +156,7 @@ export function problemLines(problems: readonly SheetProblem[], max = 40): strin
  * Apply the sheet from the next unrecorded item on, item by item, until one has no readable
  * result. Returns the problems that stop it (empty when everything is recorded).
  */
-function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProblem[] {
+async function applySheet(s: Session, sheetAbs: string, sheetRel: string): Promise<SheetProblem[]> {
   const sel = s.wp.selection!;
   const read = readResultsSheet(sheetAbs, sel.items, s.wp.attributes!);
   let applied = 0;
@@ -168,10 +168,10 @@ function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProble
     const rec = row ? sheetRecord(row, item, replaces) : undefined;
     if (rec === undefined) break;
     const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
-    storeResult(s, result, 'sheet', sheetRel, false);
+    await storeResult(s, result, 'sheet', sheetRel, false);
     applied++;
   }
-  if (applied > 0) s.save('record');
+  if (applied > 0) await s.save('record');
   const wl = worklist(s.wp);
   s.print(
     ...wrap(
@@ -222,7 +222,7 @@ async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
   });
   const rel = isAbsolute(abs) ? relative(s.dir, abs) || abs : abs;
   for (let round = 1; ; round++) {
-    const problems = applySheet(s, abs, rel.split('\\').join('/'));
+    const problems = await applySheet(s, abs, rel.split('\\').join('/'));
     if (problems.length === 0) return 'done';
     const wl = worklist(s.wp);
     s.print('', `  The sheet cannot be read for the items still to record (${problems.length} problem(s)); nothing was guessed:`);
@@ -240,7 +240,7 @@ async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
     if (what === 'stop') return 'stopped';
     if (what === 'type') {
       const r = await askItem(s, next.item, next.replaces, `${wl.items.indexOf(next) + 1} of ${wl.items.length}`);
-      storeResult(s, r, 'interview');
+      await storeResult(s, r, 'interview');
     }
   }
 }
@@ -250,7 +250,7 @@ async function recordTyped(s: Session): Promise<'done'> {
     const wl = worklist(s.wp);
     if (!wl.next) return 'done';
     const r = await askItem(s, wl.next.item, wl.next.replaces, `${wl.items.indexOf(wl.next) + 1} of ${wl.items.length}`);
-    storeResult(s, r, 'interview');
+    await storeResult(s, r, 'interview');
   }
 }
 
@@ -317,7 +317,7 @@ export async function changeResults(s: Session): Promise<'done' | 'stopped'> {
     const entry = wl.items.find((x) => x.item.key === pick)!;
     const previous = s.wp.results?.items.find((x) => x.key === pick);
     const r = await askItem(s, entry.item, entry.replaces, `${wl.items.indexOf(entry) + 1} of ${wl.items.length}`, previous);
-    storeResult(s, r, 'interview');
+    await storeResult(s, r, 'interview');
     if (!recordingComplete(s.wp)) {
       const got = await runRecordStep(s);
       if (got === 'stopped') return got;

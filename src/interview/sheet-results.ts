@@ -18,7 +18,8 @@
  * A row is matched to the selected item by its `Seq` and `Key` columns. Nothing is guessed:
  * every cell that cannot be read is reported with its row, column, value and why.
  */
-import { readFileSync } from 'node:fs';
+import { readRegularFile } from '../io/read.js';
+import { withoutQuotes } from '../io/messages.js';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
 import { KEY_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
@@ -111,7 +112,7 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
   try {
     records = parse(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true }) as string[][];
   } catch (e) {
-    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${(e as Error).message}`);
+    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${withoutQuotes((e as Error).message)}`);
   }
   const problems: SheetProblem[] = [];
   const out: SheetRead = { items: new Map(), problems };
@@ -226,10 +227,11 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
 export function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
   let text: string;
   try {
-    text = readFileSync(path, 'utf8');
+    // Read as it was (with its byte order mark, which the parser expects to handle itself).
+    text = readRegularFile(path, 'The filled fieldwork sheet').toString('utf8');
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new FileInputError(path, code === 'ENOENT' ? `No sheet at ${path}.` : `Cannot read ${path}: ${(e as Error).message}`);
+    if ((e as { errno?: string }).errno === 'ENOENT') throw new FileInputError(path, `No sheet at ${path}.`);
+    throw e;
   }
   return parseResultsSheet(text, items, attributes);
 }

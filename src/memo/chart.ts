@@ -10,6 +10,8 @@
 import { existsSync } from 'node:fs';
 
 export interface ChartRow {
+  /** The limit does not support reliance (from the decision, not from comparing rounded rates). */
+  exceeds?: boolean;
   id: string;
   sampleRate: number;
   upperLimit: number;
@@ -117,7 +119,9 @@ export function chartSvg(rows: readonly ChartRow[], labels: ChartLabels, width =
   const geometry: ChartSvg['geometry'] = [];
   rows.forEach((r, i) => {
     const y = top + i * rowH;
-    const exceeds = r.upperLimit > r.tolerableRate + 1e-12;
+    // The colour follows the decision (a hypergeometric limit equal to the tolerable rate does not
+    // support reliance), falling back to the figures only for a row without one.
+    const exceeds = r.exceeds ?? r.upperLimit > r.tolerableRate + 1e-12;
     const sx = scale(r.sampleRate);
     const ux = scale(r.upperLimit);
     const tx = scale(r.tolerableRate);

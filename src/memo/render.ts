@@ -428,8 +428,16 @@ async function approachSection(c: Ctx): Promise<void> {
             { header: L.expectedDeviations, w: 1.4, align: 'right' },
             { header: L.sampleSize, w: 1.1, align: 'right' },
             { header: L.plannedRisk, w: 1.2, align: 'right' },
+            ...(a.sizes.some((s) => s.underrelianceRisk !== undefined) ? [{ header: L.underrelianceRisk, w: 1.3, align: 'right' as const }] : []),
           ],
-          a.sizes.map((s) => [{ text: s.attributeId, bold: true }, pct(s.tolerableRate), int(s.expectedDeviations), int(s.sampleSize), pctUp(s.achievedRisk)]),
+          a.sizes.map((s) => [
+            { text: s.attributeId, bold: true },
+            pct(s.tolerableRate),
+            int(s.expectedDeviations),
+            int(s.sampleSize),
+            pctUp(s.achievedRisk),
+            ...(a.sizes.some((x) => x.underrelianceRisk !== undefined) ? [s.underrelianceRisk !== undefined ? pctUp(s.underrelianceRisk) : L.notRecorded] : []),
+          ]),
         );
         b.ps(T.sizePlanned);
       }
@@ -547,6 +555,7 @@ async function resultsSection(c: Ctx): Promise<void> {
           sampleRateText: pct(x.evaluation!.sampleRate),
           upperLimitText: pctLimit(x.evaluation!.upperLimit, x.evaluation!.tolerableRate),
           tolerableRateText: pct(x.evaluation!.tolerableRate),
+          ...(x.evaluation!.illustrative ? {} : { exceeds: !x.evaluation!.supportedByRates }),
         }));
         const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
         const svg = chartSvg(rows, { sampleRate: L.legendSampleRate, upperLimit: L.legendUpperLimit, exceeds: L.legendExceeds, tolerable: L.legendTolerable, ...(m.illustrative ? { note: L.illustrative } : {}) }, chartW);
@@ -838,6 +847,7 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
     );
   }
   b.p(b.f(T.workpaperState), { style: 'MemoNote' });
+  if (m.cleanedNote) b.note(m.cleanedNote);
 
 }
 
@@ -1082,7 +1092,36 @@ function assemble(b: Builder, m: MemoModel, t: MemoTemplate): Document {
   });
 }
 
-export async function packDocument(doc: Document): Promise<Buffer> {
-  return Packer.toBuffer(doc);
+/**
+ * Pack the document. The DOCX library stamps the document properties (created, modified) and
+ * every zip entry with the clock at packing; they are set to `at`, the memo's own time (the one
+ * its footer shows), so the properties agree with the memo and the same workpaper and time give
+ * the same bytes.
+ */
+export async function packDocument(doc: Document, at: Date = new Date()): Promise<Buffer> {
+  const packed = await Packer.toBuffer(doc);
+  const { default: JSZip } = await import('jszip');
+  const zip = await JSZip.loadAsync(packed);
+  const stamp = at.toISOString().replace(/\.\d{3}Z$/, 'Z');
+  const core = zip.file('docProps/core.xml');
+  if (core) {
+    const xml = (await core.async('string')).replace(/(<dcterms:(created|modified)[^>]*>)[^<]*(<\/dcterms:\2>)/g, `$1${stamp}$3`);
+    zip.file('docProps/core.xml', xml);
+  }
+  // The library numbers drawings with a counter that runs on across documents: number them afresh.
+  const body = zip.file('word/document.xml');
+  if (body) {
+    let n = 0;
+    let m = 0;
+    const xml = (await body.async('string')).replace(/<wp:docPr id="\d+"/g, () => `<wp:docPr id="${++n}"`).replace(/<pic:cNvPr id="\d+"/g, () => `<pic:cNvPr id="${++m}"`);
+    zip.file('word/document.xml', xml);
+  }
+  const out = new JSZip();
+  for (const name of Object.keys(zip.files).sort()) {
+    const f = zip.files[name]!;
+    if (f.dir) continue;
+    out.file(name, await f.async('uint8array'), { date: at, createFolders: false });
+  }
+  return out.generateAsync({ type: 'nodebuffer', compression: 'DEFLATE', compressionOptions: { level: 6 } });
 }
 

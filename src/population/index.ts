@@ -5,7 +5,7 @@ export type { ParsedAmount, AmountOptions } from './amount.js';
 export { parseDate, ymdText } from './date.js';
 export { detectDelimiter, delimiterOption, delimiterName } from './csv.js';
 export { parseRanges, RANGES_COLUMN } from './ranges.js';
-export { cellText } from './xlsx.js';
+export { cellText } from './cell-text.js';
 export { nearestColumn } from './columns.js';
 export { PROGRESS_DELAY_MS } from './progress.js';
 export type {

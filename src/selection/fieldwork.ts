@@ -1,7 +1,9 @@
-import { randomBytes } from 'node:crypto';
-import { mkdir, rename, rm, writeFile } from 'node:fs/promises';
-import { basename, dirname, extname, join } from 'node:path';
-import { FileInputError, TolrateInputError } from '../errors.js';
+import { mkdir } from 'node:fs/promises';
+import { dirname, extname } from 'node:path';
+import { TolrateInputError } from '../errors.js';
+import { writeFileSafely } from '../io/write.js';
+import { xmlText } from '../io/text.js';
+import { zipXmlProblems } from '../io/xml.js';
 import type { PopulationRow } from '../population/types.js';
 import type { Selection } from './types.js';
 
@@ -16,7 +18,8 @@ import type { Selection } from './types.js';
  * TAB or CR) gets a leading single quote; `restoreCell` undoes that when the sheet is read back.
  * XLSX (a path ending in .xlsx): the same table in a sheet "Fieldwork" (cells are text, never
  * formulas), and the notes, if any, in a sheet "About".
- * Either is written to a temporary file beside the target and renamed over it.
+ * Either is written through the one writer (src/io/write.ts): a temporary file beside the target,
+ * every byte checked and flushed, then renamed over it.
  */
 
 export const SEQ_COLUMN = 'Seq';
@@ -94,7 +97,10 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
   const wb = new ExcelJS.Workbook();
   wb.creator = 'tolrate';
   const ws = wb.addWorksheet('Fieldwork', { views: [{ state: 'frozen', ySplit: 1 }] });
-  const { header, rows } = fieldworkTable(sheet);
+  // XLSX is XML: characters XML 1.0 forbids are dropped from every cell (src/io/text.ts).
+  const table = fieldworkTable(sheet);
+  const header = table.header.map(xmlText);
+  const rows = table.rows.map((r) => r.map(xmlText));
   ws.addRow(header).font = { bold: true };
   for (const r of rows) ws.addRow(r);
   ws.columns.forEach((col, i) => {
@@ -105,27 +111,19 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
   if (sheet.notes?.length) {
     const about = wb.addWorksheet('About');
     about.getColumn(1).width = 100;
-    for (const line of sheet.notes) about.addRow([line]);
+    for (const line of sheet.notes) about.addRow([xmlText(line)]);
   }
-  return Buffer.from(await wb.xlsx.writeBuffer());
+  const buf = Buffer.from(await wb.xlsx.writeBuffer());
+  // The cells were cleaned above; a sheet whose XML does not parse would be tolrate's own fault.
+  const problems = await zipXmlProblems(buf);
+  if (problems.length) throw new Error(`the fieldwork sheet's XML does not parse, so it was not written: ${problems.slice(0, 3).join('; ')}`);
+  return buf;
 }
 
-/** Write a file by a temporary file in the same folder and a rename, so it is never half written. */
-export async function writeAtomic(path: string, data: string | Buffer): Promise<void> {
-  const dir = dirname(path);
-  await mkdir(dir, { recursive: true }).catch(() => undefined);
-  const tmp = join(dir, `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
-  try {
-    await writeFile(tmp, data);
-    await rename(tmp, path);
-  } catch (e) {
-    await rm(tmp, { force: true }).catch(() => undefined);
-    const code = (e as { code?: string }).code;
-    if (code === 'ENOENT' || code === 'EACCES' || code === 'EPERM' || code === 'EISDIR' || code === 'ENOTDIR' || code === 'EROFS') {
-      throw new FileInputError(path, `Cannot write ${path} (${code}).`);
-    }
-    throw e;
-  }
+/** Write a file through the one writer (src/io/write.ts), creating its folder first. */
+export async function writeAtomic(path: string, data: string | Buffer, what = 'the fieldwork sheet'): Promise<void> {
+  await mkdir(dirname(path), { recursive: true }).catch(() => undefined);
+  writeFileSafely(path, data, { what });
 }
 
 /** Write the fieldwork sheet (CSV, or XLSX when the path ends in .xlsx). */

@@ -29,6 +29,10 @@ Column conventions of the sheet, per attribute (A1, A2, ...):
   Void reason        why the document is void (for a V)
 Every cell that cannot be read is listed (row, column, value, why); nothing is guessed.
 
+While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a second session
+on the same file is told who has it and may look at it read-only. A save that fails (disk
+full, read-only) keeps the answer and asks: try again, save a copy elsewhere, or stop.
+
 Example:
   tolrate record supplier-invoices.tolrate.json
 `;
