@@ -90,7 +90,7 @@ export function loadFolder(dir: string): EngagementFolder | undefined {
 export function saveFolder(dir: string, f: EngagementFolderInput): EngagementFolder {
   const path = folderFilePath(dir);
   const checked = parseFolder(f, path);
-  writeFileAtomic(path, `${JSON.stringify(checked, null, 2)}\n`);
+  writeFileAtomic(path, `${JSON.stringify(checked, null, 2)}\n`, 'the engagement file');
   return checked;
 }
 

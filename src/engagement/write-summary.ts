@@ -22,7 +22,7 @@ export async function writeSummary(dir: string, o: { base: string; asOf: string;
   const model = summaryModel(folderStatus(dir, o.asOf), { ...(folder ? { folder } : {}), asOf: o.asOf, now: o.now });
   const [docx, xlsx] = await Promise.all([renderSummaryDocx(model), renderSummaryXlsx(model)]);
   const paths = { docx: `${o.base}.docx`, xlsx: `${o.base}.xlsx` };
-  writeFileAtomic(paths.docx, docx);
-  writeFileAtomic(paths.xlsx, xlsx);
+  writeFileAtomic(paths.docx, docx, 'the summary (DOCX)');
+  writeFileAtomic(paths.xlsx, xlsx, 'the summary (XLSX)');
   return { model, ...paths };
 }
