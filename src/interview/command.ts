@@ -3,7 +3,7 @@
  * answerer for a terminal, resolving a workpaper path, opening or creating the session.
  */
 import { existsSync } from 'node:fs';
-import { extname, resolve } from 'node:path';
+import { dirname, extname, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { FileSystemError, UsageError, WorkpaperLockedError } from '../errors.js';
 import { acquireLock, type HeldLock } from '../io/lock.js';
@@ -12,6 +12,7 @@ import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { Asker } from './asker.js';
 import { newSession, offerTempCleanup, openSession, type Session } from './session.js';
 import { TerminalAsker } from './terminal.js';
+import { folderPath, loadFolder } from '../engagement/folder.js';
 
 /** Options an interview run takes besides the answerer (tests fix the clock). */
 export interface InterviewOptions {
@@ -60,6 +61,9 @@ export async function sessionFor(
   o: InterviewOptions & { policyPath?: string; mustExist?: boolean; hold?: (s: Session) => Session },
 ): Promise<Session | ReadOnlyView | undefined> {
   if (!existsSync(path) && o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, [`Start a test with: ${ctx.invocation ?? 'tolrate'} plan FILE`]);
+  // The folder's engagement file: its answers are the defaults, its policy the default policy.
+  const folder = loadFolder(dirname(path));
+  const policyPath = o.policyPath ?? (folder?.defaults.policy ? folderPath(dirname(path), folder.defaults.policy) : undefined);
   let lock: HeldLock;
   try {
     lock = acquireLock(path, (o.now ?? (() => new Date()))());
@@ -78,6 +82,7 @@ export async function sessionFor(
   if (lock.tookOver) ctx.stdout.write(`Note: ${lock.tookOver}\n`);
   const base = {
     asker,
+    ...(folder ? { folder } : {}),
     out: ctx.stdout,
     path,
     color: ctx.color,
@@ -86,7 +91,7 @@ export async function sessionFor(
     invocation: ctx.invocation ?? 'tolrate',
     lock,
     ...(o.now ? { now: o.now } : {}),
-    ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
+    ...(policyPath ? { policyPath: resolve(ctx.cwd, policyPath) } : {}),
   };
   const hold = o.hold ?? ((s: Session) => s);
   try {

@@ -26,6 +26,7 @@ import { answerOpenNotes, reviewSitting } from './review.js';
 import { evaluationLines } from './conclude.js';
 import { defaultSheetName } from './plan-selection.js';
 import { CAUTION, wrap } from './show.js';
+import type { EngagementFolder } from '../engagement/folder.js';
 
 export const SCENARIOS = ['main', 'small'] as const;
 export type Scenario = (typeof SCENARIOS)[number];
@@ -84,6 +85,8 @@ export interface DemoOptions {
   /** Stop after the planning steps (used to make the filled sheet from the real selection). */
   planOnly?: boolean;
   samples?: string;
+  /** The engagement folder file the demo's folder has (its answers replace the script's engagement). */
+  folder?: EngagementFolder;
 }
 
 /** A clock that starts at `start` and advances one second each time it is read. */
@@ -162,6 +165,7 @@ async function runLocked(ctx: CommandContext, o: DemoOptions, sc: ScenarioFile, 
     cwd: out,
     toolVersion: packageVersion(),
     now,
+    ...(o.folder ? { folder: o.folder } : {}),
     // Nobody to ask: a failed save ends the demo with the reason (exit 2).
     onSaveFailure: 'throw',
   });
@@ -173,7 +177,7 @@ async function runLocked(ctx: CommandContext, o: DemoOptions, sc: ScenarioFile, 
   if (sc.review && !o.planOnly) {
     const sitting = async (answers: Record<string, unknown>): Promise<Session> => {
       const a = new ScriptedAsker(answers as ScriptAnswers, { defaults: true, onAsk: (r) => sink.write(`? ${r.message} ${r.answer === '' ? '(Enter)' : r.answer}${r.refused ? `\n  > ${r.refused}` : ''}\n`) });
-      const opened = await openSession({ asker: a, out: sink, path: wpPath, cwd: out, toolVersion: packageVersion(), now });
+      const opened = await openSession({ asker: a, out: sink, path: wpPath, cwd: out, toolVersion: packageVersion(), now, ...(o.folder ? { folder: o.folder } : {}) });
       if (!opened) throw new ScriptError('The demo could not open its own workpaper.');
       return opened;
     };

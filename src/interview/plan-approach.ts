@@ -10,6 +10,7 @@ import { TolrateInputError } from '../errors.js';
 import type { Approach, Attribute, Model, SizeForAttribute } from '../workpaper/schema.js';
 import { int, pctPlain, pctUp } from '../util/format.js';
 import type { Session } from './session.js';
+import { lastYearLines } from './carry-forward.js';
 import { AnswerError, count, rate, requiredText } from './parse.js';
 import { loadPolicy, policySize } from './policy.js';
 import { table, wrap } from './show.js';
@@ -118,7 +119,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     id: 'plan.approach.confidence',
     message: 'Confidence (%)',
     help: 'Usually 90 or 95. The planned risk of overreliance is 100% minus this.',
-    default: wasStat ? pctPlain(wasStat.confidence) : '95',
+    default: wasStat ? pctPlain(wasStat.confidence) : s.folder?.defaults.confidence !== undefined ? pctPlain(s.folder.defaults.confidence) : '95',
     parse: rate('Confidence', { atLeast: 0.5, atLeastWhat: '50%, below which a sample gives no assurance', example: '95' }),
   });
   const own = attrs.filter((x) => x.tolerableRate !== undefined);
@@ -132,6 +133,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   const lowest = Math.min(...attrs.map((x) => x.tolerableRate ?? tolerableRate));
   const lowestId = attrs.find((x) => (x.tolerableRate ?? tolerableRate) === lowest)!.id;
   const lowestWhat = lowest === tolerableRate ? 'the tolerable rate' : `${lowestId}'s own tolerable rate`;
+  if (s.wp.carriedForward) s.print(...lastYearLines(s.wp.carriedForward));
   const expectedRate = await askRate(a, {
     id: 'plan.approach.expectedRate',
     message: 'Expected deviation rate (%)',

@@ -6,6 +6,7 @@ import { pctPlain } from '../util/format.js';
 import type { Session } from './session.js';
 import { wrap } from './show.js';
 import { date, NONE_ANSWER, optionalRate, requiredText } from './parse.js';
+import { engagementFromFolder, offerFromLibrary } from './folder-defaults.js';
 import { askRate } from './rate-question.js';
 
 export const FREQUENCY_LABELS: Record<Frequency, string> = {
@@ -32,6 +33,7 @@ export async function askEngagement(s: Session): Promise<Engagement> {
   const a = s.asker;
   const old = s.wp.engagement;
   s.heading('Engagement');
+  if (s.folder) return engagementFromFolder(s, s.folder);
   const entity = await a.text({ id: 'plan.engagement.entity', message: 'Entity', ...(old ? { default: old.entity } : {}), parse: requiredText('The entity') });
   const periodStart = await a.text({
     id: 'plan.engagement.periodStart',
@@ -61,6 +63,7 @@ export async function askControl(s: Session): Promise<Control> {
   const a = s.asker;
   const old = s.wp.control;
   s.heading('Control');
+  if (!old) await offerFromLibrary(s);
   const id = await a.text({ id: 'plan.control.id', message: 'Control identifier', help: 'As in the entity\'s control matrix, e.g. P2P-03.', ...(old ? { default: old.id } : {}), parse: requiredText('The control identifier') });
   const description = await a.text({
     id: 'plan.control.description',

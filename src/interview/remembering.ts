@@ -19,6 +19,11 @@ export class RememberingAsker implements Asker {
     return { ...this.answers };
   }
 
+  /** Offer more answers as defaults (they replace earlier offers for the same questions). */
+  offer(answers: Record<string, string | boolean>): void {
+    Object.assign(this.offered, answers);
+  }
+
   /** Everything answered so far is saved. */
   forget(): void {
     this.answers = {};

@@ -24,6 +24,8 @@ import { requiredText } from './parse.js';
 import { afterOutsideEdit, recordChanges, signedRoles } from '../control-test/index.js';
 import { replay } from '../workpaper/log.js';
 import { RememberingAsker } from './remembering.js';
+import type { EngagementFolder } from '../engagement/folder.js';
+import { carriedDefaults } from './carry-forward.js';
 
 export interface SessionOptions {
   asker: Asker;
@@ -50,6 +52,8 @@ export interface SessionOptions {
   onSaveFailure?: 'ask' | 'throw';
   /** How tolrate was started, for the commands the interview prints (default `tolrate`). */
   invocation?: string;
+  /** The engagement folder file of the workpaper's folder, when there is one. */
+  folder?: EngagementFolder;
 }
 
 function sha256(data: string | Uint8Array): string {
@@ -75,6 +79,8 @@ export class Session {
   readonly color: boolean;
   readonly cwd: string;
   readonly invocation: string;
+  /** The engagement folder file of the workpaper's folder: its answers are the defaults. */
+  readonly folder: EngagementFolder | undefined;
   /** The step being asked, for keeping its answers if the user stops. */
   currentStep: string | undefined;
   /** The item a review note being answered is on: offered first when an item is to be changed. */
@@ -96,7 +102,7 @@ export class Session {
     this.wp = o.wp;
     this.path = o.path;
     this.dir = dirname(o.path);
-    this.remembering = new RememberingAsker(o.asker, o.wp.unfinishedStep?.answers ?? {});
+    this.remembering = new RememberingAsker(o.asker, { ...carriedDefaults(o.wp), ...(o.wp.unfinishedStep?.answers ?? {}) });
     this.asker = this.remembering;
     this.out = o.out;
     this.now = o.now ?? (() => new Date());
@@ -107,6 +113,12 @@ export class Session {
     this.diskHash = o.loadedText !== undefined ? sha256(o.loadedText) : undefined;
     this.onSaveFailure = o.onSaveFailure ?? 'ask';
     this.invocation = o.invocation ?? 'tolrate';
+    this.folder = o.folder;
+  }
+
+  /** Offer answers as the defaults of questions still to be asked (a control picked from the firm library). */
+  offerDefaults(answers: Record<string, string | boolean>): void {
+    this.remembering.offer(answers);
   }
 
   /**

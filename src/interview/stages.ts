@@ -3,7 +3,7 @@
  * "continue" runs. Each takes the answerer as an argument, so the same code runs on a terminal
  * and from a script.
  */
-import { relative, resolve } from 'node:path';
+import { dirname, relative, resolve, sep } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { TolrateInputError } from '../errors.js';
 import { loadWorkpaper } from '../workpaper/file.js';
@@ -18,10 +18,14 @@ import { answerOpenNotes, reviewSitting } from './review.js';
 import { reviewStatus } from '../control-test/index.js';
 import type { Session } from './session.js';
 import { wrap } from './show.js';
+import { followUpLines, startCarriedForward } from './carry-forward.js';
+import { packageVersion } from '../util/version.js';
 
 export interface StageOptions extends InterviewOptions {
   file?: string | undefined;
   policy?: string | undefined;
+  /** Last year's workpaper to carry forward into a new file (`plan NEW --from LAST`). */
+  from?: string | undefined;
 }
 
 function shown(ctx: CommandContext, path: string): string {
@@ -71,6 +75,11 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     });
   }
   const path = workpaperPath(ctx.cwd, file);
+  if (o.from) {
+    // Recorded relative to the new file's folder (as population paths are), so the folders can move together.
+    const fromPath = resolve(ctx.cwd, o.from);
+    startCarriedForward(path, fromPath, relative(dirname(path), fromPath).split(sep).join('/'), packageVersion(), (o.now ?? (() => new Date()))());
+  }
   const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
   if (s && 'readOnly' in s) {
     // Another session has it open: show where the test stands, save nothing.
@@ -84,6 +93,11 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
     return undefined;
   }
   if (s.wp.log.length === 0) s.print(`Starting a new test in ${shown(ctx, path)}.`);
+  else if (o.from && s.wp.carriedForward) {
+    s.print(...wrap(`Starting ${shown(ctx, path)} from last year's ${s.wp.carriedForward.path} (its state ${s.wp.carriedForward.stateHash.slice(0, 12)}...).`));
+    s.print(...wrap('The control, the attributes and the approach are offered as the answers to confirm; the population, selection, results and conclusion are not copied.', 92, '  '));
+    s.print(...followUpLines(s.wp.carriedForward));
+  }
   else {
     s.print(`${shown(ctx, path)}: ${s.wp.control?.id ?? 'a test'}${s.wp.engagement ? `, ${s.wp.engagement.entity}` : ''}`);
     s.print(...statusLines(s.wp));

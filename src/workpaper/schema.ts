@@ -404,6 +404,26 @@ export const LogEntry = z.object({
   hash: z.string(),
 });
 
+/**
+ * Where a test carried forward from an earlier one came from: the earlier file (its path relative
+ * to this file's folder, and the state hash it had), the answers copied as defaults to confirm
+ * (by step, then question id), and the earlier figures shown when the expected rate is asked.
+ */
+export const CarriedForward = z.object({
+  path: text,
+  stateHash: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal'),
+  reference: optText,
+  periodEnd: isoDate.optional(),
+  defaults: z.record(z.string(), z.record(z.string(), z.union([z.string(), z.boolean()]))),
+  lastYear: z.object({
+    expectedRate: rateOrZero.optional(),
+    attributes: z.array(z.object({ attributeId: z.string(), sampleSize: count, deviations: count, sampleRate: z.number().min(0).max(1), upperLimit: z.number().min(0).max(1), tolerableRate: rate })),
+    controlSupportsReliance: z.boolean().optional(),
+    severity: z.object({ classification: z.enum(SEVERITIES), rationale: text }).optional(),
+    followUps: z.array(FollowUp),
+  }),
+});
+
 export const Workpaper = z.object({
   schemaVersion: z.literal(SCHEMA_VERSION),
   tool: z.object({ name: z.literal('tolrate'), version: z.string() }),
@@ -435,6 +455,8 @@ export const Workpaper = z.object({
   amendments: z.array(Amendment).optional(),
   /** Every memo written from this workpaper: its SHA-256, when, and the state it shows. */
   memos: z.array(MemoRecord).optional(),
+  /** The earlier test this one was carried forward from (optional: absent for a test started afresh). */
+  carriedForward: CarriedForward.optional(),
   log: z.array(LogEntry).default([]),
 }).superRefine((wp, ctx) => {
   const ids = new Set((wp.attributes ?? []).map((a) => a.id));
@@ -481,6 +503,7 @@ export type FollowUp = z.infer<typeof FollowUp>;
 export type Conclusion = z.infer<typeof Conclusion>;
 export type LogEntry = z.infer<typeof LogEntry>;
 export type MemoRecord = z.infer<typeof MemoRecord>;
+export type CarriedForward = z.infer<typeof CarriedForward>;
 export type ReviewNote = z.infer<typeof ReviewNote>;
 export type NoteEvent = z.infer<typeof NoteEvent>;
 export type Amendment = z.infer<typeof Amendment>;

@@ -2,7 +2,7 @@
  * The layers of src/ and the one direction their imports may point (DEVELOPERS.md, "Layers"):
  *
  *   errors, util, io  <-  stats  <-  workpaper, population, selection  <-  control-test
- *   <-  memo, reperform  <-  interview, commands  <-  cli (and the entry points cli.ts, index.ts)
+ *   <-  memo, reperform, engagement  <-  interview, commands  <-  cli (and the entry points cli.ts, index.ts)
  *
  * A module may import from its own layer or any layer below it, never from a layer above. This
  * test reads every import of every source file (static and dynamic), so a new upward import fails
@@ -20,7 +20,7 @@ const LAYERS: ReadonlyArray<readonly string[]> = [
   ['stats'],
   ['workpaper', 'population', 'selection'],
   ['control-test'],
-  ['memo', 'reperform'],
+  ['memo', 'reperform', 'engagement'],
   ['interview', 'commands'],
   ['cli', 'cli.ts', 'index.ts'],
 ];

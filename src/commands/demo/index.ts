@@ -5,12 +5,16 @@ import type { CommandContext } from '../types.js';
 import { fileLines, loadScenario, narrative, runDemoInterview, SCENARIOS, type Scenario } from '../../interview/demo.js';
 import { nearest } from '../args.js';
 
-const SPEC = { out: { type: 'string' as const }, scenario: { type: 'string' as const }, verbose: { type: 'boolean' as const } };
+const SPEC = { out: { type: 'string' as const }, scenario: { type: 'string' as const }, verbose: { type: 'boolean' as const }, engagement: { type: 'boolean' as const } };
+
+/** The date the engagement demo's status and summary are written as of (invented, after its tests). */
+export const ENGAGEMENT_DEMO_AS_OF = '2026-02-15';
 
 export function help(): string {
   return `tolrate demo — run a whole test of a control on an invented scenario, with scripted answers
 
 Usage: tolrate demo [--out DIR] [--scenario main|small] [--verbose]
+       tolrate demo --engagement [--out DIR]
 
   --out DIR          where to write the workpaper, the fieldwork sheet and the memo
                      (default: ./demo-output); files of an earlier demo there are replaced
@@ -20,6 +24,11 @@ Usage: tolrate demo [--out DIR] [--scenario main|small] [--verbose]
                      visibly smaller than the binomial one
   --verbose          show the whole interview: every question, the scripted answer, and what
                      the interview showed
+  --engagement       build an engagement folder instead (default --out ./demo-engagement): its
+                     folder file (entity, period, team), both scenarios planned in it, and a
+                     third test carried forward from an invented prior year's workpaper (planned,
+                     not yet tested); then print \`tolrate status\` and write \`tolrate summary\`
+                     as of ${'$'}{ENGAGEMENT_DEMO_AS_OF}
   -h, --help         show this help
 
 The demo runs the same interview as \`tolrate plan\`, \`record\` and \`conclude\`, answered from
@@ -36,6 +45,10 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   if (p.values.help) {
     ctx.stdout.write(help());
     return 0;
+  }
+  if (p.values.engagement) {
+    if (str(p, 'scenario') !== undefined || p.values.verbose) throw new UsageError('tolrate demo --engagement runs both scenarios; it takes only --out.');
+    return engagementDemo(ctx, str(p, 'out') ?? 'demo-engagement');
   }
   const sc = str(p, 'scenario') ?? 'main';
   if (!(SCENARIOS as readonly string[]).includes(sc)) {
@@ -55,6 +68,32 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   got.files.push({ what: 'memo', path: memo.path });
   if (p.values.verbose) ctx.stdout.write('\n');
   ctx.stdout.write(`${narrative(got.workpaper, `tolrate demo: ${title}`).join('\n')}\n`);
+  ctx.stdout.write(`${fileLines(ctx.cwd, got.files).join('\n')}\n`);
+  return 0;
+}
+
+async function engagementDemo(ctx: CommandContext, out: string): Promise<number> {
+  const { runEngagementDemo } = await import('../../interview/demo-engagement.js');
+  const { defaultMemoPath, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
+  const got = await runEngagementDemo(ctx, { out });
+  // The memos of the two scenarios, as the single-scenario demo writes them.
+  for (const t of got.tests.slice(0, 2)) {
+    rmSync(defaultMemoPath(t.workpaperPath), { force: true });
+    const at = got.now();
+    const memo = await writeMemo({ workpaper: t.workpaper, workpaperPath: t.workpaperPath, now: at });
+    const final = !(await memoModel(t.workpaper, { workpaperPath: t.workpaperPath })).draft;
+    recordMemo(t.workpaper, t.workpaperPath, memo, { at, final });
+    got.files.push({ what: 'memo', path: memo.path });
+  }
+  const { relative } = await import('node:path');
+  const shown = relative(ctx.cwd, got.dir) || '.';
+  ctx.stdout.write(`tolrate demo --engagement: ${got.folder.entity} (invented), engagement ${got.folder.reference}\n\n`);
+  ctx.stdout.write(`$ tolrate status ${shown} --as-of ${ENGAGEMENT_DEMO_AS_OF}\n`);
+  const status = await import('../status/index.js');
+  await status.run([got.dir, '--as-of', ENGAGEMENT_DEMO_AS_OF], ctx);
+  ctx.stdout.write(`$ tolrate summary ${shown} --as-of ${ENGAGEMENT_DEMO_AS_OF}\n`);
+  const summary = await import('../summary/index.js');
+  await summary.run([got.dir, '--as-of', ENGAGEMENT_DEMO_AS_OF], ctx);
   ctx.stdout.write(`${fileLines(ctx.cwd, got.files).join('\n')}\n`);
   return 0;
 }

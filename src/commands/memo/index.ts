@@ -11,7 +11,9 @@ Usage: tolrate memo FILE [--out MEMO.docx] [--template DIR] [--oc] [--draft]
   FILE               the workpaper file (NAME.tolrate.json)
   --out MEMO.docx    where to write the memo (default: NAME.memo.docx beside FILE)
   --template DIR     a copy of tolrate's templates/memo folder with your firm's wording
-                     (and, optionally, a styles.docx whose Word styles the memo takes)
+                     (and, optionally, a styles.docx whose Word styles the memo takes);
+                     default: the memo template folder the engagement folder file names,
+                     if any, else the shipped wording
   --oc               add Appendix D: each attribute's operating characteristic (the chance of
                      relying on the control at each true deviation rate), as a table and a picture
   --draft            for a file changed outside tolrate: write a DRAFT that lists the changes
@@ -73,7 +75,10 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const { testState } = await import('../../control-test/index.js');
   const { loadTemplate, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
   const { wp: workpaper, text: loadedText } = loadWorkpaperText(workpaperPath);
-  const dir = templateDir !== undefined ? resolve(ctx.cwd, templateDir) : undefined;
+  // Without --template, the firm's memo template folder named in the engagement folder file, if any.
+  const { folderOf, folderPath } = await import('../../engagement/folder.js');
+  const { dir: wpDir, folder } = folderOf(workpaperPath);
+  const dir = templateDir !== undefined ? resolve(ctx.cwd, templateDir) : folder?.defaults.memoTemplate ? folderPath(wpDir, folder.defaults.memoTemplate) : undefined;
   const template = await loadTemplate(dir);
   // The integrity check first: a file changed outside tolrate gives no final memo.
   const state = testState(workpaper);

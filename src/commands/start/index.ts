@@ -10,6 +10,9 @@ import { wholeInterview, type StageOptions } from '../../interview/stages.js';
 import { count, existingFile, optionalCount, optionalRate, rate } from '../../interview/parse.js';
 import { WORKPAPER_SUFFIX } from '../../workpaper/file.js';
 import { pctPlain } from '../../util/format.js';
+import { FOLDER_FILE, loadFolder, saveFolder, type EngagementFolder } from '../../engagement/folder.js';
+import { shippedLibraryDir } from '../../engagement/library.js';
+import { askFolder } from '../../interview/folder-defaults.js';
 
 export function help(): string {
   return `tolrate — on a terminal, with no command: start a new test, continue a workpaper file in
@@ -17,6 +20,11 @@ this folder, or use a calculator. Each stage also runs on its own:
   tolrate plan [FILE]    tolrate record FILE    tolrate conclude FILE
 
 Usage: tolrate [FILE.tolrate.json] [--policy POLICY.json]
+
+With no FILE it shows the folder's engagement (tolrate-engagement.json) and every workpaper
+here with where it stands, and offers: start a new test, start this year's test from last
+year's workpaper, continue a workpaper, set up (or change) the folder's engagement file, or a
+calculator.
 
   FILE             continue this workpaper at its first unanswered step (plan, record or
                    conclude, whichever is next)
@@ -82,6 +90,23 @@ function describeFile(path: string, name: string): string {
   }
 }
 
+/** The engagement of this folder and where every workpaper stands, shown above the menu. */
+function engagementLines(ctx: CommandContext, files: readonly string[]): { file: EngagementFolder | undefined } {
+  let file: EngagementFolder | undefined;
+  try {
+    file = loadFolder(ctx.cwd);
+    ctx.stdout.write(file ? `Engagement ${file.reference}: ${file.entity}, ${file.periodStart} to ${file.periodEnd} (${FOLDER_FILE})\n` : `This folder has no engagement file (${FOLDER_FILE}) yet: choose "Set up this folder" to create it.\n`);
+  } catch (e) {
+    ctx.stdout.write(`${FOLDER_FILE} cannot be used: ${(e as Error).message}${(e as { details?: string[] }).details?.length ? `\n  ${(e as { details: string[] }).details.join('\n  ')}` : ''}\n`);
+  }
+  if (files.length > 0) {
+    ctx.stdout.write('Workpapers here:\n');
+    for (const f of files) ctx.stdout.write(`  ${describeFile(join(ctx.cwd, f), f)}\n`);
+  }
+  ctx.stdout.write('\n');
+  return { file };
+}
+
 export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: StageOptions = {}): Promise<number> {
   const p = parseFlags('', args, { policy: { type: 'string' } }, 1);
   const policy = str(p, 'policy');
@@ -95,12 +120,15 @@ export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: 
   } catch {
     files = [];
   }
+  const folder = engagementLines(ctx, files);
   const action = await a.select({
     id: 'start.action',
     message: 'What do you want to do?',
     choices: [
       { value: 'new', name: 'Start a new test' },
+      { value: 'carry', name: 'Start this year\'s test from last year\'s workpaper of the same control' },
       { value: 'continue', name: `Continue a workpaper file${files.length ? ` (${files.length} in this folder)` : ''}` },
+      { value: 'folder', name: folder.file ? 'Change this folder\'s engagement file (entity, period, team, firm defaults)' : 'Set up this folder as an engagement (entity, period, team, firm defaults)' },
       { value: 'calculator', name: 'Use a calculator (sample size, evaluation, planning table)' },
       { value: 'quit', name: 'Quit' },
     ],
@@ -109,6 +137,23 @@ export async function runWith(args: string[], ctx: CommandContext, a: Asker, o: 
   if (action === 'quit') return 0;
   if (action === 'calculator') return calculator(ctx, a);
   if (action === 'new') return wholeInterview(ctx, a, { ...o });
+  if (action === 'folder') {
+    const saved = saveFolder(ctx.cwd, await askFolder(a, folder.file, shippedLibraryDir()));
+    ctx.stdout.write(`\nSaved ${FOLDER_FILE}: ${saved.entity}, ${saved.periodStart} to ${saved.periodEnd}, ${saved.team.length} team member(s). Every new test planned here takes these answers.\n`);
+    return 0;
+  }
+  if (action === 'carry') {
+    const from = await a.text({
+      id: 'start.carry.from',
+      message: 'Last year\'s workpaper file',
+      help: 'Its control, attributes and approach are offered as the answers; population, selection, results and conclusion are not copied.',
+      parse: (t) => {
+        existingFile('Last year\'s workpaper', ctx.cwd)(workpaperPath(ctx.cwd, t));
+        return workpaperPath(ctx.cwd, t);
+      },
+    });
+    return wholeInterview(ctx, a, { ...o, from });
+  }
   let file: string;
   const OTHER = '\u0000other';
   const pick = files.length
