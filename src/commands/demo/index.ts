@@ -86,7 +86,8 @@ async function engagementDemo(ctx: CommandContext, out: string): Promise<number>
     got.files.push({ what: 'memo', path: memo.path });
   }
   const { relative } = await import('node:path');
-  const shown = relative(ctx.cwd, got.dir) || '.';
+  const rel = relative(ctx.cwd, got.dir);
+  const shown = rel === '' ? '.' : rel.startsWith('..') ? got.dir : rel;
   ctx.stdout.write(`tolrate demo --engagement: ${got.folder.entity} (invented), engagement ${got.folder.reference}\n\n`);
   ctx.stdout.write(`$ tolrate status ${shown} --as-of ${ENGAGEMENT_DEMO_AS_OF}\n`);
   const status = await import('../status/index.js');
