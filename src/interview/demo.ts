@@ -115,7 +115,8 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
       throw new FileInputError(src, `The demo scenario needs ${src}, which is missing.`);
     }
     copyFileSync(src, join(out, f));
-    files.push({ what: f.includes('filled') ? 'filled fieldwork sheet (the tester\'s results)' : 'population', path: join(out, f) });
+    const what = f.includes('filled') ? 'filled fieldwork sheet (the tester\'s results)' : f.startsWith('evidence') ? 'evidence file (fingerprinted when recorded)' : 'population';
+    files.push({ what, path: join(out, f) });
   }
   const wpPath = join(out, sc.workpaper);
   const sheetPath = join(out, defaultSheetName(wpPath));

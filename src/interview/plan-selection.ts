@@ -22,7 +22,7 @@ import { int } from '../util/format.js';
 import type { Session } from './session.js';
 import { AnswerError, count, requiredText } from './parse.js';
 import { readSource } from './plan-population.js';
-import { resultColumns, SHEET_CONVENTIONS } from './sheet-results.js';
+import { FIELDWORK_COLUMNS, resultColumns, SHEET_CONVENTIONS } from './sheet-results.js';
 import { table, wrap } from './show.js';
 import { XLSX_SHEET_NOTE } from './record.js';
 
@@ -231,7 +231,7 @@ export async function askSelection(s: Session): Promise<Selection> {
   await writeFieldworkSheet(sheetAbs, {
     columns,
     items,
-    resultColumns: resultColumns(s.wp.attributes),
+    resultColumns: [...resultColumns(s.wp.attributes), ...FIELDWORK_COLUMNS],
     notes: [
       `${s.wp.engagement?.entity ?? ''} ${s.wp.control?.id ?? ''}: fieldwork sheet`,
       `Selection ${drawn.algorithm}`,

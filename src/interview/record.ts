@@ -6,13 +6,13 @@
  */
 import { isAbsolute, relative, resolve } from 'node:path';
 import { CAUSES, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
-import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
+import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, evidenceRefs, fingerprintEvidence, isoDay, testedOnProblem, withFieldwork, type ItemFieldwork, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
 
 export { worklist, isRecorded, progress, recordingComplete } from '../control-test/index.js';
-import { AnswerError, existingFile, requiredText } from './parse.js';
-import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
+import { AnswerError, existingFile, NONE_ANSWER, optionalText, requiredText } from './parse.js';
+import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetOptions, type SheetProblem } from './sheet-results.js';
 import { table, wrap } from './show.js';
 import { canonicalJson } from '../workpaper/log.js';
 
@@ -98,7 +98,58 @@ export async function askItem(s: Session, item: SelectedItem, replaces: string |
     const before = previous?.attributes[attr.id];
     out.attributes[attr.id] = await askDeviation(s, id, before?.result === 'deviation' ? before : undefined);
   }
-  return out;
+  return withFieldwork(out, await askFieldwork(s, item, previous));
+}
+
+export const EVIDENCE_HELP =
+  'The evidence inspected: document numbers, report names or file names, separated by ";". ' +
+  'A file in the workpaper\'s folder (e.g. evidence/PI-253098.pdf) is fingerprinted (SHA-256) so re-performance can check it is unchanged.';
+
+/** Who tested the item, when, the evidence inspected and a note (defaults: the preparer, today). */
+async function askFieldwork(s: Session, item: SelectedItem, previous?: ItemResult): Promise<ItemFieldwork> {
+  const a = s.asker;
+  const id = `record.item.${item.seq}`;
+  const today = isoDay(s.now());
+  const periodStart = s.wp.engagement?.periodStart;
+  const testedBy = await a.text({
+    id: `${id}.testedBy`,
+    message: 'Tested by',
+    default: previous?.testedBy ?? s.wp.engagement?.preparer ?? s.by,
+    parse: requiredText('Who tested the item'),
+  });
+  const testedOn = await a.text({
+    id: `${id}.testedOn`,
+    message: 'Date tested (YYYY-MM-DD)',
+    default: previous?.testedOn ?? today,
+    parse: (t) => {
+      const why = testedOnProblem(t, { today, ...(periodStart ? { periodStart } : {}) });
+      if (why) throw new AnswerError(`The date tested: ${why}.`);
+      return t.trim();
+    },
+  });
+  const prevRefs = (previous?.evidence ?? []).map((e) => e.ref).join('; ');
+  const refs = await a.text({
+    id: `${id}.evidence`,
+    message: 'Evidence inspected (references separated by ";")',
+    help: EVIDENCE_HELP,
+    ...(prevRefs ? { default: prevRefs, editable: true } : {}),
+    parse: (t) => {
+      const list = evidenceRefs(t);
+      if (list.length === 0) throw new AnswerError('Name at least one piece of evidence inspected: a document number, a report or a file name.');
+      return list;
+    },
+  });
+  const note = await a.text({
+    id: `${id}.note`,
+    message: `Note (optional${previous?.note ? `; ${NONE_ANSWER} for none` : ''})`,
+    default: previous?.note ?? '',
+    ...(previous?.note ? { editable: true } : {}),
+    parse: (t) => (t.trim() === NONE_ANSWER ? undefined : optionalText(t)),
+  });
+  const evidence = fingerprintEvidence(s.dir, refs);
+  const files = evidence.filter((e) => e.sha256);
+  if (files.length > 0) s.print(`  Fingerprinted: ${files.map((e) => `${e.ref} (SHA-256 ${e.sha256!.slice(0, 12)}…)`).join(', ')}`);
+  return { testedBy, testedOn, evidence, ...(note ? { note } : {}) };
 }
 
 async function askDeviation(s: Session, id: string, before?: Extract<AttributeResult, { result: 'deviation' }>): Promise<AttributeResult> {
@@ -139,10 +190,14 @@ async function askDeviation(s: Session, id: string, before?: Extract<AttributeRe
   return { result: 'deviation', found, cause, ...(causeDetail ? { causeDetail } : {}), intentional, pattern };
 }
 
-function sheetRecord(sheet: SheetItem, item: SelectedItem, replaces: string | undefined): ItemResult | 'void' | undefined {
+function sheetRecord(s: Session, sheet: SheetItem, item: SelectedItem, replaces: string | undefined): ItemResult | 'void' | undefined {
   if (sheet.blank || sheet.problems.length > 0) return undefined;
   if (sheet.void) return 'void';
-  return { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: sheet.attributes };
+  const f = sheet.fieldwork;
+  return withFieldwork(
+    { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: sheet.attributes },
+    { ...f, evidence: fingerprintEvidence(s.dir, f.evidence) },
+  );
 }
 
 export function problemLines(problems: readonly SheetProblem[], max = 40): string[] {
@@ -152,20 +207,25 @@ export function problemLines(problems: readonly SheetProblem[], max = 40): strin
   return lines;
 }
 
+function sheetOptions(s: Session): SheetOptions {
+  const start = s.wp.engagement?.periodStart;
+  return { today: isoDay(s.now()), ...(start ? { periodStart: start } : {}) };
+}
+
 /**
  * Apply the sheet from the next unrecorded item on, item by item, until one has no readable
  * result. Returns the problems that stop it (empty when everything is recorded).
  */
 function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProblem[] {
   const sel = s.wp.selection!;
-  const read = readResultsSheet(sheetAbs, sel.items, s.wp.attributes!);
+  const read = readResultsSheet(sheetAbs, sel.items, s.wp.attributes!, sheetOptions(s));
   let applied = 0;
   for (;;) {
     const wl = worklist(s.wp);
     if (!wl.next) break;
     const { item, replaces } = wl.next;
     const row = read.items.get(item.seq);
-    const rec = row ? sheetRecord(row, item, replaces) : undefined;
+    const rec = row ? sheetRecord(s, row, item, replaces) : undefined;
     if (rec === undefined) break;
     const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
     storeResult(s, result, 'sheet', sheetRel, false);

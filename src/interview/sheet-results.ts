@@ -14,6 +14,10 @@
  *   A1 intent [no/suspected/yes]        for a D (required: it is never assumed)
  *   A1 pattern [isolated/systemic/unclear]  for a D (required)
  *   Void reason           for a V (required)
+ *   Tested by             who tested the item           } for every tested item, when the
+ *   Date tested           YYYY-MM-DD                    } sheet has these columns (a sheet
+ *   Evidence              references, separated by ;    } written before them has not)
+ *   Note                  optional
  *
  * A row is matched to the selected item by its `Seq` and `Key` columns. Nothing is guessed:
  * every cell that cannot be read is reported with its row, column, value and why.
@@ -21,12 +25,18 @@
 import { readFileSync } from 'node:fs';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
-import { KEY_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
-import { CAUSE_LABELS } from '../control-test/index.js';
+import { KEY_COLUMN, NOTE_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
+import { CAUSE_LABELS, evidenceRefs, testedOnProblem } from '../control-test/index.js';
 import { CAUSES, INTENT, PATTERNS, type Attribute, type AttributeResult, type Cause, type SelectedItem } from '../workpaper/schema.js';
 
 export { SEQ_COLUMN, KEY_COLUMN };
 export const VOID_COLUMN = 'Void reason';
+export const TESTED_BY_COLUMN = 'Tested by';
+export const TESTED_ON_COLUMN = 'Date tested [YYYY-MM-DD]';
+export const EVIDENCE_COLUMN = 'Evidence [references; separated by ;]';
+
+/** The fieldwork columns after the results (the Note column follows them, last). */
+export const FIELDWORK_COLUMNS: readonly string[] = [TESTED_BY_COLUMN, TESTED_ON_COLUMN, EVIDENCE_COLUMN];
 
 /** The result columns for one attribute, as written in the header. */
 export function attributeColumns(id: string): { result: string; found: string; cause: string; intent: string; pattern: string } {
@@ -50,9 +60,13 @@ export const SHEET_CONVENTIONS: readonly string[] = [
   'A document that cannot be found is a deviation (D), not a void.',
   `For a D fill found, cause (${CAUSES.join(', ')}), intent (no/suspected/yes) and pattern (isolated/systemic/unclear).`,
   'For a V fill the void reason. Leave the rows of unused spares blank.',
+  'For every tested item fill who tested it, the date tested (YYYY-MM-DD) and the evidence inspected (references separated by ;); the note is optional.',
+  'A piece of evidence that is a file in the workpaper\'s folder (e.g. evidence/PI-253098.pdf) is fingerprinted (SHA-256) when the sheet is read.',
 ];
 
 export interface SheetProblem {
+  /** The file (and, for a workbook, its sheet) the problem is in, when more than one may be read. */
+  sheet?: string;
   /** Row in the sheet as a spreadsheet shows it (header = 1). */
   row: number;
   column: string;
@@ -68,7 +82,18 @@ export interface SheetItem {
   blank: boolean;
   void?: { reason: string };
   attributes: Record<string, AttributeResult>;
+  /** Tester, date tested, evidence references and note, as read (evidence not yet fingerprinted). */
+  fieldwork: { testedBy?: string; testedOn?: string; evidence: string[]; note?: string };
   problems: SheetProblem[];
+}
+
+export interface SheetOptions {
+  /** Today (YYYY-MM-DD): a date tested after it is refused. */
+  today?: string;
+  /** The period's start: a date tested before it is refused. */
+  periodStart?: string;
+  /** Named in every problem (file, and sheet of a workbook). */
+  sheet?: string;
 }
 
 export interface SheetRead {
@@ -105,14 +130,28 @@ function choice<T extends string>(list: readonly T[], t: string): T | undefined 
   return list.find((x) => x === w);
 }
 
-/** Parse the filled sheet text against the selection and the attributes. */
-export function parseResultsSheet(text: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
+/** Parse the filled sheet text (CSV) against the selection and the attributes. */
+export function parseResultsSheet(text: string, items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): SheetRead {
   let records: string[][];
   try {
     records = parse(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true }) as string[][];
   } catch (e) {
-    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${(e as Error).message}`);
+    throw new FileInputError(o.sheet ?? 'sheet', `The sheet is not a readable CSV file: ${(e as Error).message}`);
   }
+  return parseResultsRows(records, items, attributes, o);
+}
+
+/** Parse the filled sheet's rows (header first, every cell as text) against the selection and the attributes. */
+export function parseResultsRows(records: readonly string[][], items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): SheetRead {
+  const read = parseRows(records, items, attributes, o);
+  if (o.sheet) {
+    for (const p of read.problems) p.sheet = o.sheet;
+    for (const it of read.items.values()) for (const p of it.problems) p.sheet = o.sheet;
+  }
+  return read;
+}
+
+function parseRows(records: readonly string[][], items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions): SheetRead {
   const problems: SheetProblem[] = [];
   const out: SheetRead = { items: new Map(), problems };
   const header = records[0];
@@ -150,7 +189,7 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
       problems.push({ row, column: SEQ_COLUMN, value: seqText, why: `item ${seq} appears twice (first at row ${out.items.get(seq)!.row})` });
       return;
     }
-    const item: SheetItem = { seq, key: sel.key, row, blank: true, attributes: {}, problems: [] };
+    const item: SheetItem = { seq, key: sel.key, row, blank: true, attributes: {}, fieldwork: { evidence: [] }, problems: [] };
     out.items.set(seq, item);
     // Problems name the column as the sheet's header writes it.
     const bad = (column: string, value: string, why: string) => item.problems.push({ row, column: shownName(column), value, why });
@@ -174,7 +213,15 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
     }
     const voidReason = cell(r, VOID_COLUMN);
     if (voidReason !== '') item.blank = false;
+    const has = (name: string) => col(name) !== undefined;
+    const opt = (name: string) => (has(name) ? cell(r, name) : '');
+    const testedBy = opt(TESTED_BY_COLUMN);
+    const testedOn = opt(TESTED_ON_COLUMN);
+    const evidence = evidenceRefs(opt(EVIDENCE_COLUMN));
+    const note = opt(NOTE_COLUMN);
+    if (testedBy !== '' || testedOn !== '' || evidence.length > 0) item.blank = false;
     if (item.blank) return;
+    item.fieldwork = { ...(testedBy ? { testedBy } : {}), ...(testedOn ? { testedOn } : {}), evidence, ...(note ? { note } : {}) };
     const isVoid = kinds.some(([, k]) => k === 'void');
     if (isVoid) {
       const tested = kinds.filter(([, k]) => k === 'conforms' || k === 'deviation');
@@ -186,6 +233,13 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
       return;
     }
     if (voidReason !== '') bad(VOID_COLUMN, voidReason, 'a void reason is given but no result is V');
+    // A tested item says who tested it, when, and on what evidence (when the sheet has the columns).
+    if (has(TESTED_BY_COLUMN) && testedBy === '') bad(TESTED_BY_COLUMN, '', 'a tested item needs who tested it');
+    if (has(TESTED_ON_COLUMN)) {
+      const why = testedOn === '' ? 'a tested item needs the date it was tested (YYYY-MM-DD)' : testedOnProblem(testedOn, { today: o.today ?? '9999-12-31', ...(o.periodStart ? { periodStart: o.periodStart } : {}) });
+      if (why) bad(TESTED_ON_COLUMN, testedOn, why);
+    }
+    if (has(EVIDENCE_COLUMN) && evidence.length === 0) bad(EVIDENCE_COLUMN, '', 'a tested item needs the evidence inspected: document numbers or file names, separated by ;');
     for (const [a, k] of kinds) {
       const c = attributeColumns(a.id);
       if (k === undefined) {
@@ -223,7 +277,7 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
   return out;
 }
 
-export function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
+export function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): SheetRead {
   let text: string;
   try {
     text = readFileSync(path, 'utf8');
@@ -231,5 +285,5 @@ export function readResultsSheet(path: string, items: readonly SelectedItem[], a
     const code = (e as NodeJS.ErrnoException).code;
     throw new FileInputError(path, code === 'ENOENT' ? `No sheet at ${path}.` : `Cannot read ${path}: ${(e as Error).message}`);
   }
-  return parseResultsSheet(text, items, attributes);
+  return parseResultsSheet(text, items, attributes, o);
 }

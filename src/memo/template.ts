@@ -238,6 +238,13 @@ export const MemoFile = z.strictObject({
     noteReopened: para.default('re-opened'),
     noteCleared: para.default('cleared'),
     mustClear: para.default('must be cleared before sign-off'),
+    // Added with the evidence per item: a firm's copy without them gets these.
+    testedBy: para.default('Tested by'),
+    dateTested: para.default('Date tested'),
+    evidence: para.default('Evidence inspected'),
+    itemDate: para.default('Date'),
+    amount: para.default('Amount'),
+    evidencePerItem: para.default('Who tested each item, when, and on what evidence'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
@@ -245,6 +252,8 @@ export const MemoFile = z.strictObject({
     amendmentsNone: para.default('No change was made to the record after a sign-off.'),
     amendmentsLead: para.default('Each change made to the record after a sign-off: who made it, in which role, when and why, and every value before and after. A change to the record clears both sign-offs; the test is signed again afterwards.'),
     reviewNone: para.default('No review notes were raised.'),
+    appendixEvidence: para.default('For every item tested: who tested it, the date tested, the evidence inspected and the tester\'s note. An evidence file kept beside the workpaper is shown with the start of its SHA-256, which re-performance checks again.'),
+    appendixEvidenceNone: para.default('No item has been tested yet.'),
     reviewLead: para.default('The reviewer\'s notes, each with its whole thread: raised, answered, re-opened and cleared, with who and when.'),
   }),
 });

@@ -228,9 +228,22 @@ export const AttributeResult = z.discriminatedUnion('result', [
   }),
 ]);
 
+/** One piece of evidence inspected for an item: a document number, a file name, any reference. */
+export const EvidenceRef = z.object({
+  ref: text,
+  /** When the reference names a file beside the workpaper: its SHA-256 and size as recorded. */
+  sha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal').optional(),
+  bytes: count.optional(),
+});
+
 export const ItemResult = z.object({
   key: z.string(),
   seq: positive,
+  /** Who tested the item, when, what evidence was inspected, and a note (any tested item). */
+  testedBy: optText,
+  testedOn: isoDate.optional(),
+  evidence: z.array(EvidenceRef).optional(),
+  note: optText,
   /** A properly voided document: not tested, replaced by the next spare. */
   void: z.object({ reason: text, replacedBy: z.string().optional() }).optional(),
   /** When this spare replaces a voided item, that item's key. */
@@ -459,6 +472,7 @@ export type SelectedItem = z.infer<typeof SelectedItem>;
 export type Selection = z.infer<typeof Selection>;
 export type AttributeResult = z.infer<typeof AttributeResult>;
 export type ItemResult = z.infer<typeof ItemResult>;
+export type EvidenceRef = z.infer<typeof EvidenceRef>;
 export type Results = z.infer<typeof Results>;
 export type AttributeEvaluation = z.infer<typeof AttributeEvaluation>;
 export type Evaluation = z.infer<typeof Evaluation>;

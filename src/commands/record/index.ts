@@ -27,6 +27,14 @@ Column conventions of the sheet, per attribute (A1, A2, ...):
   A1 intent          no, suspected or yes (for a D)
   A1 pattern         isolated, systemic or unclear (for a D)
   Void reason        why the document is void (for a V)
+  Tested by          who tested the item        } for every tested item, conforming
+  Date tested        YYYY-MM-DD                 } or not (a sheet written before
+  Evidence           references, separated by ; } these columns were added has not)
+  Note               the tester's note (optional)
+A piece of evidence that names a file in the workpaper's folder is fingerprinted (SHA-256)
+when it is recorded; \`tolrate reperform\` reads it again.
+Typed, each item asks the same: tester (default: the preparer), date tested (default: today),
+the evidence inspected and a note.
 Every cell that cannot be read is listed (row, column, value, why); nothing is guessed.
 
 Example:
