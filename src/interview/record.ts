@@ -12,7 +12,7 @@ import type { Session } from './session.js';
 
 export { worklist, isRecorded, progress, recordingComplete } from '../control-test/index.js';
 import { AnswerError, existingFile, NONE_ANSWER, optionalText, requiredText } from './parse.js';
-import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetOptions, type SheetProblem } from './sheet-results.js';
+import { readResultsSheets, SHEET_CONVENTIONS, type SheetItem, type SheetOptions, type SheetProblem } from './sheet-results.js';
 import { table, wrap } from './show.js';
 import { canonicalJson } from '../workpaper/log.js';
 
@@ -26,7 +26,7 @@ function describe(item: SelectedItem, max = 6): string {
  * from the old results no longer holds: they are cleared in the same save, and the conclusion's
  * answers are kept as the defaults for concluding again.
  */
-export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): void {
+export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string | readonly string[], save = true): void {
   const before = s.wp.results?.items.find((x) => x.key === r.key);
   if (before && canonicalJson(before) === canonicalJson(r)) {
     s.print(`  ${r.key}: unchanged.`);
@@ -47,11 +47,6 @@ function voidItem(s: Session, item: SelectedItem, replaces: string | undefined, 
   else s.print(`  ${item.key} is void and no spare is left: the sample will be one item short unless more items are selected.`);
   return result;
 }
-
-/** Results are read back from a CSV sheet only: an XLSX fieldwork sheet is saved as CSV first. */
-export const XLSX_SHEET_NOTE =
-  'Results are read from a CSV sheet only. In the spreadsheet program, save the filled XLSX sheet as CSV ' +
-  '(keep every column and its header as written) and give that file here, or type the results instead.';
 
 export const RESULT_HELP =
   'Conforms: the attribute is met. Deviation: it is not met; a document that cannot be found is a deviation, not a void.\n' +
@@ -202,7 +197,13 @@ function sheetRecord(s: Session, sheet: SheetItem, item: SelectedItem, replaces:
 
 export function problemLines(problems: readonly SheetProblem[], max = 40): string[] {
   // "Sheet row" as the spreadsheet numbers it (header = 1), not the population row in the sheet's own Row column.
-  const lines = table(['Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why]));
+  // The sheet is named when there are several, or when it is a workbook's sheet.
+  const sheets = new Set(problems.map((p) => p.sheet).filter((x): x is string => x !== undefined));
+  const named = sheets.size > 1 || [...sheets].some((x) => x.includes(', sheet '));
+  const cells = (p: SheetProblem) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why];
+  const lines = named
+    ? table(['Sheet', 'Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [p.sheet ?? '', ...cells(p)]))
+    : table(['Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map(cells));
   if (problems.length > max) lines.push(`  ... and ${problems.length - max} more`);
   return lines;
 }
@@ -216,9 +217,10 @@ function sheetOptions(s: Session): SheetOptions {
  * Apply the sheet from the next unrecorded item on, item by item, until one has no readable
  * result. Returns the problems that stop it (empty when everything is recorded).
  */
-function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProblem[] {
+async function applySheet(s: Session, sheetsAbs: readonly string[], sheetsRel: readonly string[]): Promise<SheetProblem[]> {
   const sel = s.wp.selection!;
-  const read = readResultsSheet(sheetAbs, sel.items, s.wp.attributes!, sheetOptions(s));
+  const read = await readResultsSheets(sheetsAbs, sel.items, s.wp.attributes!, sheetOptions(s));
+  const sheetRel = sheetsRel.join('; ');
   let applied = 0;
   for (;;) {
     const wl = worklist(s.wp);
@@ -228,7 +230,7 @@ function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProble
     const rec = row ? sheetRecord(s, row, item, replaces) : undefined;
     if (rec === undefined) break;
     const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
-    storeResult(s, result, 'sheet', sheetRel, false);
+    storeResult(s, result, 'sheet', sheetsRel, false);
     applied++;
   }
   if (applied > 0) s.save('record');
@@ -268,21 +270,26 @@ function applySheet(s: Session, sheetAbs: string, sheetRel: string): SheetProble
 async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
   const a = s.asker;
   // Stored relative to the workpaper's folder; typed (and suggested) relative to the working folder.
-  const stored = s.wp.results?.sheetPath ?? s.wp.selection!.fieldworkSheet;
-  const suggested = stored ? relative(s.cwd, resolve(s.dir, stored)) || stored : undefined;
+  const r = s.wp.results;
+  const stored = r?.sheetPaths ?? (r?.sheetPath ? [r.sheetPath] : s.wp.selection!.fieldworkSheet ? [s.wp.selection!.fieldworkSheet] : []);
+  const suggested = stored.length ? stored.map((p) => relative(s.cwd, resolve(s.dir, p)) || p).join('; ') : undefined;
   const abs = await a.text({
     id: 'record.sheet.path',
-    message: 'Filled fieldwork sheet (CSV)',
+    message: 'Filled fieldwork sheet (CSV or XLSX; several, one per tester, separated by ";")',
     help: SHEET_CONVENTIONS.join('\n'),
     ...(suggested ? { default: suggested } : {}),
     parse: (t) => {
-      if (/\.xlsx["']?\s*$/i.test(t.trim())) throw new AnswerError(XLSX_SHEET_NOTE);
-      return existingFile('The sheet', s.cwd, ['.csv'])(t);
+      const list = t.split(';').map((x) => x.trim()).filter((x) => x !== '');
+      if (list.length === 0) throw new AnswerError('Name the filled sheet (or several, separated by ";").');
+      const files = list.map((x) => existingFile('The sheet', s.cwd, ['.csv', '.xlsx'])(x));
+      const twice = files.find((f, i) => files.indexOf(f) !== i);
+      if (twice) throw new AnswerError(`${relative(s.cwd, twice) || twice} is named twice.`);
+      return files;
     },
   });
-  const rel = isAbsolute(abs) ? relative(s.dir, abs) || abs : abs;
+  const rel = abs.map((p) => (isAbsolute(p) ? relative(s.dir, p) || p : p).split('\\').join('/'));
   for (let round = 1; ; round++) {
-    const problems = applySheet(s, abs, rel.split('\\').join('/'));
+    const problems = await applySheet(s, abs, rel);
     if (problems.length === 0) return 'done';
     const wl = worklist(s.wp);
     s.print('', `  The sheet cannot be read for the items still to record (${problems.length} problem(s)); nothing was guessed:`);

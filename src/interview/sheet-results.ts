@@ -23,9 +23,11 @@
  * every cell that cannot be read is reported with its row, column, value and why.
  */
 import { readFileSync } from 'node:fs';
+import { basename, extname } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
-import { KEY_COLUMN, NOTE_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
+import { FIELDWORK_SHEET, INSTRUCTIONS_SHEET, KEY_COLUMN, NOTE_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
+import { cellText } from '../population/index.js';
 import { CAUSE_LABELS, evidenceRefs, testedOnProblem } from '../control-test/index.js';
 import { CAUSES, INTENT, PATTERNS, type Attribute, type AttributeResult, type Cause, type SelectedItem } from '../workpaper/schema.js';
 
@@ -52,6 +54,19 @@ export function attributeColumns(id: string): { result: string; found: string; c
 /** Every result column, in order: the attributes' groups, then the void reason. */
 export function resultColumns(attributes: readonly Pick<Attribute, 'id'>[]): string[] {
   return [...attributes.flatMap((a) => Object.values(attributeColumns(a.id))), VOID_COLUMN];
+}
+
+/** The pick lists of the XLSX sheet, by column: result codes, causes, intent and pattern. */
+export function pickLists(attributes: readonly Pick<Attribute, 'id'>[]): Record<string, readonly string[]> {
+  const out: Record<string, readonly string[]> = {};
+  for (const a of attributes) {
+    const c = attributeColumns(a.id);
+    out[c.result] = ['C', 'D', 'V'];
+    out[c.cause] = CAUSES;
+    out[c.intent] = INTENT;
+    out[c.pattern] = PATTERNS;
+  }
+  return out;
 }
 
 /** The conventions as short lines (for the sheet's notes and the interview's help). */
@@ -103,6 +118,12 @@ export interface SheetRead {
   problems: SheetProblem[];
 }
 
+/** The file (and sheet) an item was read from. */
+const SOURCE = new WeakMap<SheetItem, string>();
+function sheetOf(it: SheetItem): string {
+  return SOURCE.get(it) ?? '';
+}
+
 /** Header text as compared: lower case, bracketed reminder removed, spaces collapsed. */
 function norm(h: string): string {
   return h.replace(/\s*[[(][^\])]*[\])]\s*$/, '').trim().replace(/\s+/g, ' ').toLowerCase();
@@ -146,7 +167,10 @@ export function parseResultsRows(records: readonly string[][], items: readonly S
   const read = parseRows(records, items, attributes, o);
   if (o.sheet) {
     for (const p of read.problems) p.sheet = o.sheet;
-    for (const it of read.items.values()) for (const p of it.problems) p.sheet = o.sheet;
+    for (const it of read.items.values()) {
+      SOURCE.set(it, o.sheet);
+      for (const p of it.problems) p.sheet = o.sheet;
+    }
   }
   return read;
 }
@@ -277,13 +301,103 @@ function parseRows(records: readonly string[][], items: readonly SelectedItem[],
   return out;
 }
 
-export function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): SheetRead {
-  let text: string;
+/** The sheet's rows as text: a CSV file, or the "Fieldwork" sheet (else the first) of an XLSX workbook. */
+async function sheetRecords(path: string): Promise<{ records: string[][] | undefined; text?: string; label: string }> {
+  const name = basename(path);
+  let data: Buffer;
   try {
-    text = readFileSync(path, 'utf8');
+    data = readFileSync(path);
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     throw new FileInputError(path, code === 'ENOENT' ? `No sheet at ${path}.` : `Cannot read ${path}: ${(e as Error).message}`);
   }
-  return parseResultsSheet(text, items, attributes, o);
+  if (extname(path).toLowerCase() !== '.xlsx') return { records: undefined, text: data.toString('utf8'), label: name };
+  const ExcelJS = (await import('exceljs')).default;
+  const wb = new ExcelJS.Workbook();
+  try {
+    await wb.xlsx.load(data as unknown as ArrayBuffer);
+  } catch (e) {
+    throw new FileInputError(path, `${name} is not a readable XLSX workbook: ${(e as Error).message}`);
+  }
+  const ws = wb.getWorksheet(FIELDWORK_SHEET) ?? wb.worksheets.find((w) => w.name !== INSTRUCTIONS_SHEET) ?? wb.worksheets[0];
+  if (!ws) throw new FileInputError(path, `${name} has no sheets.`);
+  const records: string[][] = [];
+  const width = ws.columnCount;
+  for (let r = 1; r <= ws.rowCount; r++) {
+    const row = ws.getRow(r);
+    const cells: string[] = [];
+    for (let c = 1; c <= width; c++) {
+      const v = row.getCell(c).value as unknown;
+      // A formula is shown as typed (=...): it is never taken for the value it computes.
+      const f = v && typeof v === 'object' && ('formula' in v || 'sharedFormula' in v) ? `=${String((v as { formula?: string; sharedFormula?: string }).formula ?? (v as { sharedFormula?: string }).sharedFormula)}` : undefined;
+      cells.push(f ?? cellText(v));
+    }
+    if (cells.some((c) => c.trim() !== '')) records.push(cells);
+    else if (records.length > 0) records.push(cells.map(() => ''));
+  }
+  // Rows as the spreadsheet numbers them: blank rows count; trailing blank rows are dropped.
+  while (records.length > 0 && records[records.length - 1]!.every((c) => c.trim() === '')) records.pop();
+  return { records, label: `${name}, sheet ${ws.name}` };
+}
+
+/** Read one filled sheet (CSV or XLSX); every problem names the file (and the workbook's sheet). */
+export async function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): Promise<SheetRead> {
+  const got = await sheetRecords(path);
+  const opts = { ...o, sheet: o.sheet ?? got.label };
+  return got.records ? parseResultsRows(got.records, items, attributes, opts) : parseResultsSheet(got.text!, items, attributes, opts);
+}
+
+/**
+ * Read several filled sheets (one per tester) and merge them. An item filled on more than one
+ * sheet must say the same on each; when it does not, it is refused with both values and both
+ * files named, and nothing is taken for it. Blank rows (items another tester has) are ignored.
+ */
+export async function readResultsSheets(paths: readonly string[], items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): Promise<SheetRead> {
+  const reads = [];
+  for (const p of paths) reads.push(await readResultsSheet(p, items, attributes, o));
+  if (reads.length === 1) return reads[0]!;
+  const out: SheetRead = { items: new Map(), problems: reads.flatMap((r) => r.problems) };
+  const from = new Map<number, SheetItem>();
+  for (const read of reads) {
+    for (const [seq, it] of read.items) {
+      const had = from.get(seq);
+      if (!had || had.blank) {
+        from.set(seq, it);
+        continue;
+      }
+      if (it.blank) continue;
+      const conflict = sheetConflict(had, it, attributes);
+      if (conflict) {
+        const merged: SheetItem = { ...had, problems: [...had.problems, ...it.problems, ...conflict] };
+        from.set(seq, merged);
+      } else if (it.problems.length > 0) from.set(seq, { ...had, problems: [...had.problems, ...it.problems] });
+    }
+  }
+  out.items = from;
+  return out;
+}
+
+function shownResult(it: SheetItem, id: string): string {
+  if (it.void) return `V (${it.void.reason})`;
+  const r = it.attributes[id];
+  if (!r) return '(no readable result)';
+  return r.result === 'conforms' ? 'C' : `D (${r.found}; ${r.cause}; ${r.intentional}; ${r.pattern})`;
+}
+
+/** The ways two sheets' rows of one item differ, each as a problem naming both values and both files. */
+function sheetConflict(a: SheetItem, b: SheetItem, attributes: readonly Attribute[]): SheetProblem[] {
+  const where = (x: SheetItem) => `${sheetOf(x)} row ${x.row}`;
+  const out: SheetProblem[] = [];
+  const add = (column: string, va: string, vb: string) =>
+    out.push({ sheet: sheetOf(b), row: b.row, column, value: vb, why: `item ${b.seq} (${b.key}) differs between two sheets in ${column}: "${va}" in ${where(a)}, "${vb}" in ${where(b)}; nothing is taken for it until one is corrected` });
+  for (const attr of attributes) {
+    const va = shownResult(a, attr.id);
+    const vb = shownResult(b, attr.id);
+    if (va !== vb) add(`${attr.id} result`, va, vb);
+    if (a.void || b.void) break;
+  }
+  const f = (x: SheetItem) => x.fieldwork;
+  if ((f(a).testedBy ?? '') !== (f(b).testedBy ?? '')) add('Tested by', f(a).testedBy ?? '', f(b).testedBy ?? '');
+  if ((f(a).testedOn ?? '') !== (f(b).testedOn ?? '')) add('Date tested', f(a).testedOn ?? '', f(b).testedOn ?? '');
+  return out;
 }

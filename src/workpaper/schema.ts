@@ -254,6 +254,8 @@ export const ItemResult = z.object({
 export const Results = z.object({
   source: z.enum(['interview', 'sheet']),
   sheetPath: z.string().optional(),
+  /** When results were read from several sheets (one per tester): every one, the first being sheetPath. */
+  sheetPaths: z.array(z.string()).optional(),
   items: z.array(ItemResult),
   recordedAt: isoTime,
 });
