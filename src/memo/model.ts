@@ -5,6 +5,7 @@
  * Percentages use src/util/format.ts: rates to one decimal place, upper limits and risks rounded up,
  * exact values (4 decimal places of a percent) for the appendix.
  */
+import { describePeriods } from '../population/index.js';
 import { basename } from 'node:path';
 import { int, pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import type {
@@ -179,6 +180,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   if (p) {
     const src = p.source;
     if (src.kind === 'ranges') populationSource = `${src.ranges}${src.exclusions.length ? ` (excluding ${src.exclusions.join(', ')})` : ''}`;
+    else if (src.kind === 'periods') populationSource = describePeriods(src);
     else populationSource = `${src.path}${src.kind === 'xlsx' && src.sheet ? `, sheet ${src.sheet}` : ''}`;
   }
 
@@ -193,7 +195,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   const bySeq = new Map(resultItems.map((i) => [i.seq, i]));
 
   const selByKey = new Map((s?.items ?? []).map((x) => [x.key, x]));
-  const srcCols = p && p.source.kind !== 'ranges' ? p.source : undefined;
+  const srcCols = p && (p.source.kind === 'csv' || p.source.kind === 'xlsx') ? p.source : undefined;
   const valueOf = (key: string, column: string | undefined): string => (column ? (selByKey.get(key)?.values[column] ?? '') : '');
   const deviations: DeviationView[] = [];
   for (const attr of attrs) {

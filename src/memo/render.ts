@@ -362,8 +362,8 @@ async function populationSection(c: Ctx): Promise<void> {
       [L.populationDescription, pop.description],
       [L.samplingUnit, pop.samplingUnit],
       [L.source, b.v(values.populationSource)],
-      [L.keyColumn, src.kind !== 'ranges' ? src.keyColumn : undefined],
-      [L.amountColumn, src.kind !== 'ranges' ? src.amountColumn : undefined],
+      [L.keyColumn, src.kind === 'csv' || src.kind === 'xlsx' ? src.keyColumn : undefined],
+      [L.amountColumn, src.kind === 'csv' || src.kind === 'xlsx' ? src.amountColumn : undefined],
       [L.scannedAt, pop.scannedAt.replace('T', ' ').replace(/:\d\d(\.\d+)?Z$/, ' UTC')],
     ]);
     b.h2(H.tieOut);

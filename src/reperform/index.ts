@@ -74,6 +74,7 @@ function close(a: number, b: number, tol = LIMIT_TOLERANCE): boolean {
 export function resolveSource(wp: Workpaper, workpaperPath: string, override?: string): { source: import('../population/index.js').PopulationSource; path?: string } {
   const s = wp.population!.source as WorkpaperSource;
   if (s.kind === 'ranges') return { source: { kind: 'ranges', ranges: s.ranges, exclusions: s.exclusions } };
+  if (s.kind === 'periods') return { source: { ...s } };
   const base = dirname(resolve(workpaperPath));
   const path = override ? resolve(override) : isAbsolute(s.path) ? s.path : resolve(base, s.path);
   const cols = {
@@ -114,7 +115,8 @@ async function checkPopulation(wp: Workpaper, opts: ReperformOptions): Promise<{
     diffs.push(`amount total differs: recorded ${rec.amountTotal}, file has ${got.amountTotal ?? '(none)'}`);
   }
   const rel = path ? relative(dirname(resolve(opts.workpaperPath)), path) : undefined;
-  const where = path ? (rel && !rel.startsWith('..') ? rel : path) : `ranges ${(wp.population.source as { ranges: string }).ranges}`;
+  const ws = wp.population.source;
+  const where = path ? (rel && !rel.startsWith('..') ? rel : path) : ws.kind === 'periods' ? `periods: ${pop.describePeriods(ws)}` : `ranges ${(ws as { ranges: string }).ranges}`;
   const summary = diffs.length === 0
     ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${groupDigits(got.amountTotal)}` : ''} — as recorded`
     : `${where}: ${diffs.length} difference(s)`;

@@ -104,6 +104,15 @@ export const PopulationSource = z.discriminatedUnion('kind', [
     ranges: text,
     exclusions: z.array(z.string()).default([]),
   }),
+  /** The occurrences of a periodic control: each month, quarter, week or working day of the period. */
+  z.object({
+    kind: z.literal('periods'),
+    frequency: z.enum(['monthly', 'quarterly', 'weekly', 'daily']),
+    start: isoDate,
+    end: isoDate,
+    /** Daily: days that are not working days besides Saturdays and Sundays. */
+    nonWorkingDays: z.array(isoDate).default([]),
+  }),
 ]);
 
 export const Fingerprint = z.object({
