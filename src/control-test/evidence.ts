@@ -123,3 +123,14 @@ export function evidenceDifferences(wp: Workpaper, dir: string): { checked: numb
   }
   return { checked, differences };
 }
+
+/**
+ * True when two recordings of an item give the same finding (results, void, replacement): a
+ * change to who tested it, when, the evidence or the note alone leaves the evaluation and the
+ * conclusion standing.
+ */
+export function sameFinding(a: ItemResult | undefined, b: ItemResult): boolean {
+  if (!a) return false;
+  const finding = (r: ItemResult) => JSON.stringify([r.void ?? null, r.replaces ?? null, Object.entries(r.attributes).sort(([x], [y]) => x.localeCompare(y))]);
+  return finding(a) === finding(b);
+}

@@ -6,7 +6,7 @@
  */
 import { isAbsolute, relative, resolve } from 'node:path';
 import { CAUSES, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
-import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, evidenceRefs, fingerprintEvidence, isoDay, testedOnProblem, withFieldwork, type ItemFieldwork, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
+import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, evidenceRefs, fieldworkGaps, sameFinding, fingerprintEvidence, isoDay, testedOnProblem, withFieldwork, type ItemFieldwork, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
 
@@ -24,7 +24,8 @@ function describe(item: SelectedItem, max = 6): string {
 /**
  * Store one item's result (and save, unless `save` is false). An evaluation or conclusion made
  * from the old results no longer holds: they are cleared in the same save, and the conclusion's
- * answers are kept as the defaults for concluding again.
+ * answers are kept as the defaults for concluding again. A change to the item's tester, date,
+ * evidence or note alone keeps them.
  */
 export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string | readonly string[], save = true): void {
   const before = s.wp.results?.items.find((x) => x.key === r.key);
@@ -32,7 +33,7 @@ export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sh
     s.print(`  ${r.key}: unchanged.`);
     return;
   }
-  if (s.wp.evaluation || s.wp.conclusion) {
+  if ((s.wp.evaluation || s.wp.conclusion) && !sameFinding(before, r)) {
     s.wp = clearSteps(s.wp, ['conclude']);
     s.print(...wrap('The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).', 92, '  '));
   }
@@ -356,6 +357,11 @@ export async function runRecordStep(s: Session): Promise<'done' | 'stopped'> {
     s.print(...recordSummary(s.wp));
     const short = worklist(s.wp).shortBy;
     if (short > 0) s.print(`  The sample is ${short} item(s) short: voided items without a spare left.`);
+    const gaps = fieldworkGaps(s.wp);
+    if (gaps.length > 0) {
+      const shown = gaps.slice(0, 5).map((g) => `${g.key} (${g.missing.join(', ')})`).join('; ');
+      s.print(...wrap(`${gaps.length} tested item(s) have no record of who tested them, when, or on what evidence (a sheet without those columns): ${shown}${gaps.length > 5 ? '; ...' : ''}. Change the item's result to add them.`, 92, '  '));
+    }
   }
   return got;
 }

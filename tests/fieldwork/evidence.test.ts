@@ -133,4 +133,21 @@ describe('evidence files beside the workpaper', () => {
     expect(row).toMatchObject({ 'Tested by': 'S. Second', 'Date tested': '2026-01-18', Note: 'Checked against the bank statement' });
     expect(row['Evidence inspected']).toMatch(/^scan-3\.pdf \(SHA-256 [0-9a-f]{12}…\); PV ledger$/);
   });
+
+  it('a sheet written before the fieldwork columns is read all the same, and the items without them are listed', async () => {
+    const { dir, file } = await plannedTest();
+    const wp0 = loadWorkpaper(file);
+    const sheet = join(dir, wp0.selection!.fieldworkSheet!);
+    fillSheet(sheet, join(dir, 'full.csv'), {}, { 'A1 result': 'C', 'A2 result': 'C' });
+    // The three columns removed, as in a sheet from an earlier version (Void reason, then Note).
+    const lines = readFileSync(join(dir, 'full.csv'), 'utf8').split('\r\n');
+    const head = lines[0]!.split(',');
+    const drop = new Set(['Tested by', 'Date tested', 'Evidence'].map((c) => head.findIndex((h) => h.startsWith(c))));
+    writeFileSync(join(dir, 'old.csv'), lines.map((l) => l.split(',').filter((_, i) => !drop.has(i)).join(',')).join('\r\n'));
+    const ctx = captureContext(dir);
+    expect(await record(['t1.tolrate.json'], ctx, new ScriptedAsker({ 'record.source': 'sheet', 'record.sheet.path': 'old.csv' }), { now: fixedClock() })).toBe(0);
+    const n = wp0.selection!.sampleSize;
+    expect(ctx.text().replace(/\s+/g, ' ')).toContain(`${n} tested item(s) have no record of who tested them, when, or on what evidence`);
+    expect(loadWorkpaper(file).results!.items.every((r) => r.testedBy === undefined)).toBe(true);
+  });
 });
