@@ -31,7 +31,8 @@ function xorshift(seed) {
   };
 }
 
-export async function makePopulation(rows = DEFAULT_ROWS, out = defaultPath(rows)) {
+/** `twice`: every invoice number on two rows (row i has number i mod rows/2), for the duplicate check. */
+export async function makePopulation(rows = DEFAULT_ROWS, out = defaultPath(rows), { twice = false } = {}) {
   mkdirSync(dirname(out), { recursive: true });
   const ws = createWriteStream(out);
   const next = xorshift(20240101);
@@ -45,7 +46,7 @@ export async function makePopulation(rows = DEFAULT_ROWS, out = defaultPath(rows
     const cents = 1000 + (next() % 999_000);
     const sign = (r >>> 20) % 40 === 0 ? '-' : '';
     const amount = `${sign}${Math.floor(cents / 100)}.${String(cents % 100).padStart(2, '0')}`;
-    buf += `INV-${String(1_000_001 + i)},${d},${customer},${amount}\n`;
+    buf += `INV-${String(1_000_001 + (twice ? i % Math.ceil(rows / 2) : i))},${d},${customer},${amount}\n`;
     if (buf.length > 1 << 20) {
       if (!ws.write(buf)) await new Promise((res) => ws.once('drain', res));
       buf = '';

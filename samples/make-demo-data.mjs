@@ -63,7 +63,7 @@ function invoices() {
   return { N, total: `${total / 100n}.${String(total % 100n).padStart(2, '0')}` };
 }
 
-const PREPARERS = ['H. Quarrie', 'D. Penhallow', 'S. Achterberg', 'M. Tulliver'];
+const PREPARERS = ['H. Quarrie', 'D. Calderbay', 'S. Achterberg', 'M. Farrowby'];
 const ACCOUNTS = ['Accruals', 'Prepayments', 'Stock provision', 'Payroll control', 'Intercompany', 'Fixed asset transfers'];
 
 function journals() {

@@ -57,3 +57,39 @@ export class FileInputError extends TolrateInputError {
 export function isInputError(e: unknown): e is TolrateInputError {
   return e instanceof TolrateInputError;
 }
+
+/**
+ * The file system refused a write or a read (disk full, no permission, read-only disk, a folder
+ * where a file was expected...). The message says what happened and what to do; `errno` is the
+ * system's code (ENOSPC, EACCES, ...). Nothing on disk was changed when a write fails.
+ */
+export class FileSystemError extends TolrateInputError {
+  readonly path: string;
+  readonly errno: string;
+  constructor(path: string, errno: string, message: string, details: string[] = []) {
+    super(message, 'FILE_SYSTEM', details);
+    this.name = 'FileSystemError';
+    this.path = path;
+    this.errno = errno;
+  }
+}
+
+/** Another session holds the workpaper's lock (the message names who). */
+export class WorkpaperLockedError extends TolrateInputError {
+  readonly path: string;
+  constructor(path: string, message: string, details: string[] = []) {
+    super(message, 'LOCKED', details);
+    this.name = 'WorkpaperLockedError';
+    this.path = path;
+  }
+}
+
+/** The workpaper on disk is not the one the session loaded (another session or an edit changed it). */
+export class WorkpaperChangedError extends TolrateInputError {
+  readonly path: string;
+  constructor(path: string, message: string, details: string[] = []) {
+    super(message, 'CHANGED_ON_DISK', details);
+    this.name = 'WorkpaperChangedError';
+    this.path = path;
+  }
+}

@@ -4,6 +4,8 @@ import { COMMANDS, findCommand } from '../commands/registry.js';
 import type { CommandContext, CommandRun } from '../commands/types.js';
 import { isInputError } from '../errors.js';
 import { nearest } from '../util/text.js';
+import { heldLocks, releaseAllLocks } from '../io/lock.js';
+import { visible } from '../io/text.js';
 
 export { packageVersion };
 
@@ -33,8 +35,9 @@ export function mainHelp(): string {
   lines.push('  tolrate size --confidence 95 --tolerable 6 --expected 1');
   lines.push('  tolrate limit --sample 78 --deviations 2 --confidence 95 --tolerable 6');
   lines.push('');
-  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage;');
-  lines.push('            130 stopped with Ctrl-C (every step answered before is saved).');
+  lines.push('Exit codes: 0 done; 1 a check or re-performance found a difference; 2 bad input or usage,');
+  lines.push('            or the disk refused (full, read-only, no permission), or the file is open in');
+  lines.push('            another session; 130 stopped with Ctrl-C (every step saved before is kept).');
   lines.push('');
   lines.push('The tool computes. Whether a control can be relied on, and how severe a deficiency is, are');
   lines.push('the practitioner\'s judgements under the auditing standards that apply (e.g. AU-C 530,');
@@ -79,6 +82,7 @@ export function invocation(script: string | undefined, cwd: string): string {
 /** Run the CLI with the given arguments; resolves to the exit code. */
 export async function runCli(argv: string[], ctx: CommandContext = defaultContext()): Promise<number> {
   const [first, ...rest] = argv;
+  const locksBefore = heldLocks();
   try {
     if (first === undefined) {
       return await (await loadCommand('start'))([], ctx);
@@ -116,20 +120,40 @@ export async function runCli(argv: string[], ctx: CommandContext = defaultContex
     return await (await loadCommand(info.name))(rest, ctx);
   } catch (e) {
     if (isInputError(e)) {
-      ctx.stderr.write(`${e.message}\n`);
-      for (const d of e.details) ctx.stderr.write(`  ${d}\n`);
+      // A message may quote a key or a value from a file: its control characters are shown, not sent.
+      ctx.stderr.write(`${visible(e.message, { keepLines: true })}\n`);
+      for (const d of e.details) ctx.stderr.write(`  ${visible(d, { keepLines: true })}\n`);
       return 2;
     }
     if (e instanceof Error && e.name === 'ExitPromptError') {
+      // Stopped while a failed save was being handled: the session says what is not on disk.
+      const note = (e as { stopNote?: unknown }).stopNote;
+      if (typeof note === 'string') {
+        ctx.stderr.write(note);
+        return 130;
+      }
       const { stoppedMessage } = await import('./stopped.js');
       const info = e as { workpaper?: string; keptUnfinished?: boolean };
       ctx.stderr.write(stoppedMessage(ctx.cwd, relative, { workpaper: info.workpaper, keptUnfinished: info.keptUnfinished }, ctx.invocation));
       return 130;
+    }
+    const sys = e as { code?: unknown; syscall?: unknown; path?: unknown };
+    if (e instanceof Error && typeof sys.code === 'string' && /^E[A-Z]+$/.test(sys.code) && typeof sys.syscall === 'string') {
+      // A system error that no reader or writer turned into a message: still the environment's, not a bug.
+      const { readError, writeError } = await import('../io/messages.js');
+      const where = typeof sys.path === 'string' ? sys.path : '(a file)';
+      const m = /^(read|stat|lstat|scandir|access|readlink)$/.test(sys.syscall) ? readError(e, where, 'The file') : writeError(e, where, 'the file');
+      ctx.stderr.write(`${visible(m.message, { keepLines: true })}\n`);
+      for (const d of m.details) ctx.stderr.write(`  ${d}\n`);
+      return 2;
     }
     const msg = e instanceof Error ? e.message : String(e);
     ctx.stderr.write(`tolrate: internal error: ${msg}\n`);
     if (ctx.env.TOLRATE_DEBUG && e instanceof Error && e.stack) ctx.stderr.write(`${e.stack}\n`);
     else ctx.stderr.write('This is a bug in tolrate. Run again with TOLRATE_DEBUG=1 for details.\n');
     return 70;
+  } finally {
+    // Whatever way the command ended, the locks it took are given back.
+    releaseAllLocks(locksBefore);
   }
 }

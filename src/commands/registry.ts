@@ -14,7 +14,7 @@ export const COMMANDS: readonly CommandInfo[] = [
   { name: 'record', group: 'test', usage: 'tolrate record FILE', summary: 'Record each item\'s result and the cause of every deviation' },
   { name: 'conclude', group: 'test', usage: 'tolrate conclude FILE', summary: 'Evaluate the results, review the causes, conclude and list follow-up actions' },
   { name: 'review', group: 'test', usage: 'tolrate review FILE', summary: 'Review a test: re-perform it, raise and clear review notes, sign off as reviewer' },
-  { name: 'memo', group: 'test', usage: 'tolrate memo FILE [--out MEMO.docx] [--template DIR]', summary: 'Write the DOCX workpaper memo from a workpaper file' },
+  { name: 'memo', group: 'test', usage: 'tolrate memo FILE [--out MEMO.docx] [--template DIR] [--oc]', summary: 'Write the DOCX workpaper memo from a workpaper file' },
   { name: 'reperform', group: 'test', usage: 'tolrate reperform FILE', summary: 'Re-derive the selection and every figure and report any difference' },
   { name: 'size', group: 'calculators', usage: 'tolrate size --confidence 95 --tolerable 6 --expected 1', summary: 'Sample size for an attribute test' },
   { name: 'limit', group: 'calculators', usage: 'tolrate limit --sample 78 --deviations 2 --confidence 95', summary: 'Upper deviation limit, risk of overreliance and decision' },

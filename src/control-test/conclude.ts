@@ -36,13 +36,33 @@ export interface AttributeFinding {
   deviations: DeviationRecord[];
 }
 
-/** Questions the practitioner answers before choosing a severity (common practice, no single source). */
+/**
+ * Questions the practitioner answers before choosing a severity, one test each, in the order the
+ * assessment runs: first the two dimensions of severity (likelihood, then magnitude against
+ * materiality), then what can reduce it (a compensating control), then what points to a material
+ * weakness (its indicators and the prudent-official test), and last the significant-deficiency
+ * test for what falls short of one. The wording is ours; the factors follow the standards named
+ * beside each question. Paragraph numbers are recalled, not read from the texts (from memory).
+ */
 export const SEVERITY_QUESTIONS = [
-  'Is there a reasonable possibility that the control fails to prevent or detect a misstatement?',
-  'How large could that misstatement be (inconsequential, more than inconsequential, material)?',
-  'Does a compensating control, tested and found effective, achieve the same objective?',
-  'Do the causes point to intent, management override or a weak control environment?',
-  'Would a prudent official think it merits the attention of those charged with governance?',
+  // Likelihood: "a reasonable possibility" that the controls fail to prevent or detect a
+  // misstatement, with its risk factors (PCAOB AS 2201 ¶62 and ¶65; AICPA AU-C 265 .A5 and
+  // IAASB ISA 265 A5–A6; from memory).
+  'Likelihood: is there a reasonable possibility that, as it operated, the control would fail to prevent, or detect and correct, a misstatement of the accounts or disclosures it covers? Consider how susceptible they are to error or fraud, how much judgement they involve and which other controls interact with this one.',
+  // Magnitude of the potential (not only the actual) misstatement, judged against materiality
+  // (AS 2201 ¶62–¶64 and ¶66; AU-C 265 .A6; ISA 265 A6; from memory).
+  'Magnitude: how large could the resulting misstatement be, compared with materiality? Consider the amounts and the volume of transactions exposed to the deficiency in the period, not only the deviations found, and this deficiency together with any others affecting the same accounts.',
+  // Compensating controls reduce severity only if tested and found effective (AS 2201 ¶68;
+  // AU-C 265 .A7; from memory).
+  'Compensating controls: does another control, tested and found to operate effectively, address the same risk precisely enough to prevent or detect a misstatement of that size?',
+  // Indicators of a material weakness (AS 2201 ¶69; AU-C 265 .A11; ISA 265 A7; from memory).
+  'Indicators of a material weakness: do the causes point to fraud by management, management override of controls, a misstatement that the controls of the entity did not find, or ineffective oversight by those charged with governance?',
+  // Prudent-official test for a material weakness (AS 2201 ¶70; AU-C 265 .A10; from memory).
+  'Prudent officials: knowing these facts, would prudent officials, in the conduct of their own affairs, still conclude that they have reasonable assurance that transactions are recorded as needed to prepare the financial statements?',
+  // Significant deficiency: less severe than a material weakness yet important enough to merit
+  // the attention of those charged with governance (AS 2201 Appendix A; AU-C 265 .07; ISA 265
+  // ¶6(b) and A5; from memory).
+  'Attention of governance: if it is not a material weakness, is the deficiency, alone or with others, important enough to merit the attention of those charged with governance (those responsible for overseeing financial reporting)?',
 ] as const;
 
 function causesText(devs: DeviationRecord[]): string {
@@ -118,9 +138,16 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
     const intentional = f.deviations.some((d) => escalates(d.result).intentional);
     const systemic = f.deviations.some((d) => escalates(d.result).systemic);
     if (!intentional && !systemic && !ev.illustrative && ev.extension !== null && ev.extension > 0) {
+      // An extension decided after seeing the results is a second look: offered with the exact risk
+      // of the procedure followed, beside the planned one, never as "supports reliance".
+      const risk = ev.extensionRisk;
       out.push({
         kind: 'extend-sample',
-        description: `Extend the sample for ${f.attributeId} by ${ev.extension} items (to ${ev.sampleSize + ev.extension}); the extended sample supports reliance only if none of the additional items deviates.`,
+        description:
+          `Extend the sample for ${f.attributeId} by ${ev.extension} items (to ${ev.sampleSize + ev.extension}) and rely on the control only if none of them deviates` +
+          (risk
+            ? `: because the extension is decided after seeing these results, the risk of overreliance of doing so is ${pctUp(risk.procedure)}, not the planned ${pctPlain(1 - ev.confidence)} (${pctUp(risk.repeated)} if the sample is extended again after each failure). Extend only if that risk is acceptable under the firm's methodology and documented; otherwise test a compensating control or reduce reliance.`
+            : '.'),
         items: ev.extension,
       });
     } else if (!ev.illustrative && ev.extension === null && !intentional) {

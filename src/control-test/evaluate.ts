@@ -3,7 +3,7 @@
  * limit at the planned confidence, the achieved risk of overreliance at the tolerable rate, the
  * decision the rates alone give, and the extension that would be needed. Pure: no I/O.
  */
-import { extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
+import { extensionRisk, extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
 import { NoPracticalSizeError, TolrateInputError } from '../errors.js';
 import { progress, testedResults, worklist } from './worklist.js';
 import type {
@@ -89,6 +89,8 @@ export function attributeFigures(args: {
   confidence: number;
   model: Model;
   populationSize?: number;
+  /** The population size when it is known, whatever the model: an extension never goes beyond the untested remainder. */
+  knownPopulationSize?: number;
   illustrative: boolean;
 }): AttributeEvaluation {
   const { sampleSize: n, deviations: k, tolerableRate, confidence, model, populationSize } = args;
@@ -100,12 +102,13 @@ export function attributeFigures(args: {
   const achievedRisk = overrelianceRisk({ sampleSize: n, deviations: k, tolerableRate, model, ...(populationSize !== undefined ? { populationSize } : {}) });
   // The one comparison of the engine (stats/within-risk.ts): risk ≤ β, an exact tie counting as achieved.
   const supportedByRates = withinRisk(achievedRisk, 1 - confidence);
+  const extN = populationSize ?? args.knownPopulationSize;
   let extension: number | null = 0;
   if (!supportedByRates) {
     if (k >= n) extension = null;
     else {
       try {
-        extension = extensionSize({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(populationSize !== undefined ? { populationSize } : {}) });
+        extension = extensionSize({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(extN !== undefined ? { populationSize: extN } : {}) });
       } catch (e) {
         if (e instanceof NoPracticalSizeError) extension = null;
         else throw e;
@@ -127,6 +130,11 @@ export function attributeFigures(args: {
     extension,
   };
   if (limit.deviationsInPopulation !== undefined) out.deviationsInPopulation = limit.deviationsInPopulation;
+  if (extension !== null && extension > 0) {
+    // The honest figure: the exact risk of the procedure actually followed (stats/extension-risk.ts).
+    const r = extensionRisk({ sampleSize: n, deviations: k, tolerableRate, confidence, model, ...(extN !== undefined ? { populationSize: extN } : {}) });
+    out.extensionRisk = { procedure: r.procedureRisk, repeated: r.repeatedProcedureRisk };
+  }
   return out;
 }
 
@@ -157,6 +165,7 @@ export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
       confidence: wp.approach!.confidence,
       model: wp.approach!.model,
       ...(populationSize !== undefined ? { populationSize } : {}),
+      ...(wp.population?.fingerprint.rowCount !== undefined ? { knownPopulationSize: wp.population.fingerprint.rowCount } : {}),
       illustrative,
     });
   });
@@ -184,6 +193,10 @@ export function evaluationDifferences(recorded: Evaluation, fresh: Evaluation, s
     if (!close(r.achievedRisk, f.achievedRisk)) diffs.push(`${id}: recorded risk of overreliance ${show.exact(r.achievedRisk)}, recomputed ${show.exact(f.achievedRisk)}`);
     if (r.supportedByRates !== f.supportedByRates) diffs.push(`${id}: recorded that the rates ${r.supportedByRates ? 'support' : 'do not support'} reliance; recomputed: they ${f.supportedByRates ? 'do' : 'do not'}`);
     if (r.extension !== f.extension) diffs.push(`${id}: recorded extension ${r.extension ?? 'not practical'}, recomputed ${f.extension ?? 'not practical'}`);
+    if (r.extensionRisk && f.extensionRisk && (!close(r.extensionRisk.procedure, f.extensionRisk.procedure) || !close(r.extensionRisk.repeated, f.extensionRisk.repeated))) {
+      diffs.push(`${id}: recorded risk of the extension ${show.exact(r.extensionRisk.procedure)}, recomputed ${show.exact(f.extensionRisk.procedure)}`);
+    }
+    if (!r.extensionRisk && f.extensionRisk) diffs.push(`${id}: the risk of extending the sample (${show.exact(f.extensionRisk.procedure)}) is not recorded`);
     if (r.illustrative !== f.illustrative) diffs.push(`${id}: recorded as ${r.illustrative ? '' : 'not '}illustrative, recomputed ${f.illustrative ? '' : 'not '}illustrative`);
     if ((r.deviationsInPopulation ?? null) !== (f.deviationsInPopulation ?? null)) {
       diffs.push(`${id}: recorded upper limit count ${r.deviationsInPopulation ?? '(none)'}, recomputed ${f.deviationsInPopulation ?? '(none)'}`);

@@ -67,6 +67,8 @@ export class InterviewStopped extends Error {
   workpaper?: string;
   /** The answers given in the step in progress were kept in the workpaper. */
   keptUnfinished?: boolean;
+  /** Said instead of the usual stop message: a save had just failed, so the last answer is not on disk. */
+  stopNote?: string;
   constructor(message = 'The interview was stopped.') {
     super(message);
     this.name = 'ExitPromptError';

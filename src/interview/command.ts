@@ -5,11 +5,12 @@
 import { existsSync } from 'node:fs';
 import { extname, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
-import { UsageError } from '../errors.js';
+import { FileSystemError, UsageError, WorkpaperLockedError } from '../errors.js';
+import { acquireLock, type HeldLock } from '../io/lock.js';
 import { packageVersion } from '../util/version.js';
 import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { Asker } from './asker.js';
-import { newSession, openSession, type Session } from './session.js';
+import { newSession, offerTempCleanup, openSession, type Session } from './session.js';
 import { TerminalAsker } from './terminal.js';
 
 /** Options an interview run takes besides the answerer (tests fix the clock). */
@@ -41,13 +42,40 @@ export function workpaperPath(cwd: string, file: string): string {
   return resolve(cwd, extname(f) === '' ? `${f}${WORKPAPER_SUFFIX}` : f);
 }
 
-/** Open an existing workpaper (with the outside-change check) or start a new one at `path`. */
+/** The workpaper is open in another session and the user chose to look at it read-only. */
+export interface ReadOnlyView {
+  readOnly: true;
+  path: string;
+}
+
+/**
+ * Open an existing workpaper (with the outside-change check) or start a new one at `path`. The
+ * session takes the file's lock first (src/io/lock.ts); when another session holds it, the user
+ * may open the file read-only instead (a ReadOnlyView: nothing is saved), else it is refused.
+ */
 export async function sessionFor(
   ctx: CommandContext,
   asker: Asker,
   path: string,
   o: InterviewOptions & { policyPath?: string; mustExist?: boolean; hold?: (s: Session) => Session },
-): Promise<Session | undefined> {
+): Promise<Session | ReadOnlyView | undefined> {
+  if (!existsSync(path) && o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, [`Start a test with: ${ctx.invocation ?? 'tolrate'} plan FILE`]);
+  let lock: HeldLock;
+  try {
+    lock = acquireLock(path, (o.now ?? (() => new Date()))());
+  } catch (e) {
+    // Held by another session, or the folder takes no lock file (read-only): the file can still be looked at.
+    if (!(e instanceof WorkpaperLockedError || e instanceof FileSystemError) || !existsSync(path)) throw e;
+    ctx.stdout.write(`${e.message}\n${e.details.map((d) => `  ${d}\n`).join('')}`);
+    const look = await asker.confirm({
+      id: 'open.locked.readOnly',
+      message: 'Open it read-only (see where the test stands; nothing is saved)?',
+      default: true,
+    });
+    if (!look) throw e;
+    return { readOnly: true, path };
+  }
+  if (lock.tookOver) ctx.stdout.write(`Note: ${lock.tookOver}\n`);
   const base = {
     asker,
     out: ctx.stdout,
@@ -56,11 +84,22 @@ export async function sessionFor(
     cwd: ctx.cwd,
     toolVersion: packageVersion(),
     invocation: ctx.invocation ?? 'tolrate',
+    lock,
     ...(o.now ? { now: o.now } : {}),
     ...(o.policyPath ? { policyPath: resolve(ctx.cwd, o.policyPath) } : {}),
   };
   const hold = o.hold ?? ((s: Session) => s);
-  if (existsSync(path)) return openSession({ ...base, hold });
-  if (o.mustExist) throw new UsageError(`No workpaper file at ${path}.`, [`Start a test with: ${ctx.invocation ?? 'tolrate'} plan FILE`]);
-  return hold(newSession(base));
+  try {
+    if (existsSync(path)) {
+      const s = await openSession({ ...base, hold });
+      if (!s) lock.release();
+      return s;
+    }
+    const s = hold(newSession(base));
+    await offerTempCleanup(s);
+    return s;
+  } catch (e) {
+    lock.release();
+    throw e;
+  }
 }

@@ -54,12 +54,12 @@ export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
 }
 
 /** Run the evaluation and save it (computed: saved by "tolrate"). */
-export function runEvaluation(s: Session): Evaluation {
+export async function runEvaluation(s: Session): Promise<Evaluation> {
   const ev = evaluate(s.wp, s.now());
   const same = s.wp.evaluation && canonicalJson(s.wp.evaluation.attributes) === canonicalJson(ev.attributes);
   if (!same) {
     s.wp = { ...s.wp, evaluation: ev };
-    s.save('evaluate', 'tolrate');
+    await s.save('evaluate', 'tolrate');
   }
   return s.wp.evaluation!;
 }
@@ -172,7 +172,7 @@ async function askSeverity(s: Session, prior?: Conclusion['severity']): Promise<
 export async function askConclusion(s: Session): Promise<Conclusion> {
   const a = s.asker;
   s.heading('Evaluation');
-  const ev = runEvaluation(s);
+  const ev = await runEvaluation(s);
   s.print(...evaluationLines(s.wp, ev));
   const proposal = proposeConclusion(s.wp, ev, s.now());
   // Concluding again (after a change to the results or an earlier answer): every earlier answer

@@ -4,7 +4,11 @@
  * sheet, memo) go to one folder, with copies of the scenario's population and filled sheet so
  * that the folder is complete on its own.
  */
-import { copyFileSync, existsSync, mkdirSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { acquireLock } from '../io/lock.js';
+import { writeError } from '../io/messages.js';
+import { readRegularFile } from '../io/read.js';
+import { writeFileSafely } from '../io/write.js';
 import { dirname, join, relative, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
@@ -106,7 +110,21 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
   const from = scenarioDir(o.scenario, samples);
   const out = resolve(ctx.cwd, o.out);
   if (existsSync(out) && !statSync(out).isDirectory()) throw new TolrateInputError(`--out ${out} is a file, not a folder.`, 'USAGE');
-  mkdirSync(out, { recursive: true });
+  try {
+    mkdirSync(out, { recursive: true });
+  } catch (e) {
+    throw writeError(e, out, 'the demo folder');
+  }
+  // The demo's workpaper is locked like any other while the interview writes it.
+  const lock = acquireLock(join(out, sc.workpaper));
+  try {
+    return await runLocked(ctx, o, sc, from, out);
+  } finally {
+    lock.release();
+  }
+}
+
+async function runLocked(ctx: CommandContext, o: DemoOptions, sc: ScenarioFile, from: string, out: string): Promise<DemoResult> {
   const files: DemoResult['files'] = [];
   for (const f of sc.copy) {
     const src = join(from, f);
@@ -114,13 +132,19 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
       if (o.planOnly) continue;
       throw new FileInputError(src, `The demo scenario needs ${src}, which is missing.`);
     }
-    copyFileSync(src, join(out, f));
+    writeFileSafely(join(out, f), readRegularFile(src, 'The demo file'), { what: 'the demo copy' });
     const what = f.includes('filled') ? 'filled fieldwork sheet (the tester\'s results)' : f.startsWith('evidence') ? 'evidence file (fingerprinted when recorded)' : 'population';
     files.push({ what, path: join(out, f) });
   }
   const wpPath = join(out, sc.workpaper);
   const sheetPath = join(out, defaultSheetName(wpPath));
-  for (const p of [wpPath, sheetPath]) rmSync(p, { force: true });
+  for (const p of [wpPath, sheetPath]) {
+    try {
+      rmSync(p, { force: true });
+    } catch (e) {
+      throw writeError(e, p, 'the earlier demo file');
+    }
+  }
   let echoed = '';
   const sink: Output = {
     write: (t: string) => {
@@ -139,6 +163,8 @@ export async function runDemoInterview(ctx: CommandContext, o: DemoOptions): Pro
     cwd: out,
     toolVersion: packageVersion(),
     now,
+    // Nobody to ask: a failed save ends the demo with the reason (exit 2).
+    onSaveFailure: 'throw',
   });
   const steps = o.planOnly ? STEPS.slice(0, 6) : STEPS;
   const got = await runOpenSteps(s, steps);

@@ -26,7 +26,7 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
     const before = (s.wp as Record<string, unknown>)[member];
     if (revisit && sameAnswer(before, value)) {
       // Nothing changed but the time it was asked: keep the answer (and its time) as it was.
-      s.save(step);
+      await s.save(step);
       return 'done';
     }
     const later = dependents(step, s.wp, value).filter((d) => STEP_MEMBERS[d].some((m) => (s.wp as Record<string, unknown>)[m] !== undefined));
@@ -37,7 +37,7 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
       s.wp = clearSteps(s.wp, later);
     }
     s.wp = { ...s.wp, [member]: value } as Workpaper;
-    s.save(step);
+    await s.save(step);
     return 'done';
   };
   switch (step) {
@@ -59,13 +59,13 @@ export async function runStep(s: Session, step: StepName): Promise<'done' | 'sto
       const c = await askConclusion(s);
       const { earlierConclusion: _earlier, ...rest } = s.wp;
       s.wp = { ...rest, conclusion: c } as Workpaper;
-      s.save('conclude');
+      await s.save('conclude');
       return 'done';
     }
     case 'signoff': {
       const p = await askSignoff(s);
       s.wp = { ...s.wp, signoffs: { ...(s.wp.signoffs ?? {}), preparer: p } };
-      s.save('signoff', p.name);
+      await s.save('signoff', p.name);
       return 'done';
     }
   }

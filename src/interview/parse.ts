@@ -5,7 +5,7 @@
  */
 import { existsSync, statSync } from 'node:fs';
 import { isAbsolute, resolve } from 'node:path';
-import { parseCount, parsePercent } from '../util/percent.js';
+import { isBareFraction, parseCount, parsePercent } from '../util/percent.js';
 import { int, pctPlain } from '../util/format.js';
 import { nearest } from '../util/text.js';
 
@@ -65,19 +65,20 @@ function isNone(t: string): boolean {
   return v === '' || v === NONE_ANSWER;
 }
 
-/** A percentage typed as `6` or `6%`, returned as a fraction. */
+/** A percentage typed as `6`, `6%` or with a decimal comma (`0,5`), returned as a fraction. */
 export function rate(field: string, limits: RateLimits = {}): (t: string) => number {
   const example = limits.example ?? '6';
   return (t) => {
     if (t.trim() === '') throw new AnswerError(`${field}: type a percentage, e.g. ${example} or ${example}%.`);
-    if (!/^\s*[+]?(\d+(\.\d*)?|\.\d+)\s*%?\s*$/.test(t)) {
-      throw new AnswerError(`${field}: "${t}" is not a percentage. Type a number such as ${example} or ${example}% (meaning ${example}%).`);
-    }
-    const v = rethrow(() => parsePercent(t, field, { allowZero: limits.allowZero ?? false }));
+    const v = rethrow(() => parsePercent(t, field, { allowZero: limits.allowZero ?? false, example }));
     if (limits.below !== undefined && !(v < limits.below)) {
       throw new AnswerError(`${field}: ${pctPlain(v)} must be below ${named(limits.belowWhat, limits.below)}.`);
     }
     if (limits.atLeast !== undefined && v < limits.atLeast) {
+      if (isBareFraction(t) && v * 100 >= limits.atLeast) {
+        const asPercent = String(Number((v * 10_000).toPrecision(12)));
+        throw new AnswerError(`${field}: ${t.trim()} is read as ${t.trim()}%; write ${asPercent} for ${asPercent}%.`);
+      }
       throw new AnswerError(`${field}: ${pctPlain(v)} must be at least ${named(limits.atLeastWhat, limits.atLeast)}.`);
     }
     return v;
@@ -152,7 +153,9 @@ export function existingFile(field: string, baseDir: string, exts?: readonly str
     if (v === '') throw new AnswerError(`${field}: type the path of the file.`);
     const abs = isAbsolute(v) ? v : resolve(baseDir, v);
     if (!existsSync(abs)) throw new AnswerError(`${field}: there is no file at ${abs}.`);
-    if (!statSync(abs).isFile()) throw new AnswerError(`${field}: ${abs} is a folder, not a file.`);
+    const st = statSync(abs);
+    if (st.isDirectory()) throw new AnswerError(`${field}: ${abs} is a folder, not a file.`);
+    if (!st.isFile()) throw new AnswerError(`${field}: ${abs} is ${st.isFIFO() ? 'a named pipe' : st.isSocket() ? 'a socket' : 'a device'}, not a regular file. Give the path of a file saved on disk.`);
     if (exts && !exts.some((e) => abs.toLowerCase().endsWith(e))) {
       throw new AnswerError(`${field}: ${abs} is not a ${exts.join(' or ')} file.`);
     }

@@ -14,6 +14,7 @@ import { AnswerError, count, rate, requiredText } from './parse.js';
 import { loadPolicy, policySize } from './policy.js';
 import { table, wrap } from './show.js';
 import { FREQUENCY_LABELS } from './plan-basics.js';
+import { askRate } from './rate-question.js';
 
 export const MODEL_LABELS: Record<Model, string> = {
   hypergeometric: 'Hypergeometric (exact for a known population size)',
@@ -113,7 +114,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   const attrs = s.wp.attributes!;
   const N = s.wp.population!.fingerprint.rowCount;
   const wasStat = old?.kind === 'statistical' ? old : undefined;
-  const confidence = await a.text({
+  const confidence = await askRate(a, {
     id: 'plan.approach.confidence',
     message: 'Confidence (%)',
     help: 'Usually 90 or 95. The planned risk of overreliance is 100% minus this.',
@@ -121,7 +122,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     parse: rate('Confidence', { atLeast: 0.5, atLeastWhat: '50%, below which a sample gives no assurance', example: '95' }),
   });
   const own = attrs.filter((x) => x.tolerableRate !== undefined);
-  const tolerableRate = await a.text({
+  const tolerableRate = await askRate(a, {
     id: 'plan.approach.tolerableRate',
     message: own.length === attrs.length ? 'Tolerable deviation rate (%) for the test (each attribute has its own; this is recorded for the test)' : 'Tolerable deviation rate (%)',
     help: 'The highest deviation rate at which you would still rely on the control as planned, e.g. 5 or 6.',
@@ -131,7 +132,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   const lowest = Math.min(...attrs.map((x) => x.tolerableRate ?? tolerableRate));
   const lowestId = attrs.find((x) => (x.tolerableRate ?? tolerableRate) === lowest)!.id;
   const lowestWhat = lowest === tolerableRate ? 'the tolerable rate' : `${lowestId}'s own tolerable rate`;
-  const expectedRate = await a.text({
+  const expectedRate = await askRate(a, {
     id: 'plan.approach.expectedRate',
     message: 'Expected deviation rate (%)',
     help:
@@ -164,15 +165,17 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   s.heading('Sample size');
   s.print(
     ...table(
-      ['Attribute', 'Tolerable', 'Size', 'k_e', 'Risk at k_e', 'Allowed'],
-      sizes.map((x) => [x.attribute.id, pctPlain(x.tolerableRate), int(x.result.sampleSize), String(x.result.expectedDeviations), pctUp(x.result.achievedRisk), pctPlain(beta)]),
+      ['Attribute', 'Tolerable', 'Size', 'k_e', 'Risk at k_e', 'Allowed', 'Underreliance'],
+      sizes.map((x) => [x.attribute.id, pctPlain(x.tolerableRate), int(x.result.sampleSize), String(x.result.expectedDeviations), pctUp(x.result.achievedRisk), pctPlain(beta), pctUp(x.result.underrelianceRisk)]),
     ),
   );
   const why =
     `${int(n)} is the smallest sample for which finding k_e = ⌈${int(n)} × ${pctPlain(expectedRate)}⌉ = ${top.result.expectedDeviations} ` +
     `deviation(s) still leaves the risk of overreliance at ${pctUp(top.result.achievedRisk)} (rounded up), within the ${pctPlain(beta)} allowed at ` +
     `${pctPlain(confidence)} confidence against a tolerable rate of ${pctPlain(top.tolerableRate)} (${modelWords(model, N)}).` +
-    (sizes.length > 1 ? ` It is the largest of the attributes' sizes (${top.attribute.id}), so it serves every attribute.` : '');
+    (sizes.length > 1 ? ` It is the largest of the attributes' sizes (${top.attribute.id}), so it serves every attribute.` : '') +
+    ` The sample supports reliance with up to ${top.result.acceptanceNumber} deviation(s); the risk of underreliance (that a control working at the expected ${pctPlain(expectedRate)} shows more and is not relied on) is ${pctUp(top.result.underrelianceRisk)}.` +
+    (top.result.sizeRemark ? ` ${top.result.sizeRemark}` : '');
   s.print('', ...wrap(why, 92, '  '));
   const fpc = top.result.finitePopulationCorrection;
   if (fpc) {
@@ -202,6 +205,8 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     sampleSize: x.result.sampleSize,
     expectedDeviations: x.result.expectedDeviations,
     achievedRisk: x.result.achievedRisk,
+    acceptanceNumber: x.result.acceptanceNumber,
+    underrelianceRisk: x.result.underrelianceRisk,
   }));
   return {
     kind: 'statistical',
@@ -234,7 +239,7 @@ async function nonStatistical(s: Session, old: Approach | undefined): Promise<Ap
   const level = levels.find((l) => l.id === reliance)!;
   const size = policySize(policy, frequency, reliance);
   const range = policy.ranges?.[frequency];
-  const tolerableRate = await a.text({
+  const tolerableRate = await askRate(a, {
     id: 'plan.approach.tolerableRate',
     message: 'Tolerable deviation rate (%)',
     help: `The policy's size for ${level.label.toLowerCase()} is meant for a tolerable rate of about ${level.tolerableRatePercent}%.`,

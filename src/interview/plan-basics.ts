@@ -6,6 +6,7 @@ import { pctPlain } from '../util/format.js';
 import type { Session } from './session.js';
 import { wrap } from './show.js';
 import { date, NONE_ANSWER, optionalRate, requiredText } from './parse.js';
+import { askRate } from './rate-question.js';
 
 export const FREQUENCY_LABELS: Record<Frequency, string> = {
   annual: 'Annual',
@@ -120,7 +121,7 @@ export async function askAttributes(s: Session): Promise<Attribute[]> {
       ...(prev ? { default: prev.deviationDefinition } : {}),
       parse: requiredText(`${id} deviation definition`),
     });
-    const tolerableRate = await a.text({
+    const tolerableRate = await askRate(a, {
       id: `plan.attributes.${id}.tolerableRate`,
       message: `${id}: its own tolerable deviation rate, if it differs from the test's (blank = the test's)`,
       help:

@@ -11,7 +11,7 @@ import type { Population, PopulationSource } from '../workpaper/schema.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
 import { AnswerError, existingFile, NONE_ANSWER, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
-import { csvColumns, xlsxColumns, xlsxSheetNames } from './columns.js';
+import { csvColumns, sheetList, xlsxColumns, xlsxSheets } from './columns.js';
 import { wrap } from './show.js';
 
 /** a − b for decimal strings, exactly. */
@@ -192,27 +192,33 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
     if (isXlsx) {
       // The sheets are listed and one is named as the default, so a notes or cover sheet in
       // front of the data is not read as the population without the user seeing it.
-      const names = await xlsxSheetNames(abs);
+      // A hidden sheet is never the default; with more than one visible sheet the user picks.
+      const sheets = await xlsxSheets(abs);
+      const names = sheets.map((x) => x.name);
+      const visible = sheets.filter((x) => !x.hidden);
       const oldSheet = sameFile && old.kind === 'xlsx' ? old.sheet : undefined;
       const want =
-        names.length === 1
-          ? names[0]!
-          : await a.text({
-              id: 'plan.population.sheet',
-              message: 'Worksheet',
-              help: `Sheets in ${basename(abs)}: ${names.map((n) => `"${n}"`).join(', ')}.`,
-              default: oldSheet ?? names[0] ?? '',
-              parse: (t) => {
-                const v = requiredText('The worksheet')(t);
-                const hit = names.find((n) => n.toLowerCase() === v.toLowerCase());
-                if (!hit) throw new AnswerError(`There is no sheet "${v}" in ${basename(abs)}. Sheets: ${names.map((n) => `"${n}"`).join(', ')}.`);
-                return hit;
-              },
-            });
+        visible.length === 1 && sheets.length === 1
+          ? visible[0]!.name
+          : visible.length === 1 && oldSheet === undefined
+            ? visible[0]!.name
+            : await a.text({
+                id: 'plan.population.sheet',
+                message: 'Worksheet',
+                help: `Sheets in ${basename(abs)}: ${sheetList(sheets)}.`,
+                default: oldSheet ?? visible[0]?.name ?? '',
+                parse: (t) => {
+                  const v = requiredText('The worksheet')(t);
+                  const hit = names.find((n) => n === v) ?? names.find((n) => n.toLowerCase() === v.toLowerCase());
+                  if (!hit) throw new AnswerError(`There is no sheet "${v}" in ${basename(abs)}. Sheets: ${sheetList(sheets)}.`);
+                  return hit;
+                },
+              });
       const got = await xlsxColumns(abs, want);
       sheet = got.sheet;
       columns = got.columns;
       if (names.length > 1) s.print(`  Sheet "${sheet}" (${names.length} sheets in the workbook)`);
+      if (sheets.some((x) => x.hidden)) s.print(`  Sheets: ${sheetList(sheets)}; a hidden sheet is read only when it is named.`);
     } else columns = await csvColumns(abs);
   } catch (e) {
     if (e instanceof TolrateInputError) {

@@ -4,7 +4,8 @@
  * templates/sampling-policy.json; a firm's own copy is passed with `--policy FILE`. The file is
  * validated on load and every problem is named.
  */
-import { readFileSync } from 'node:fs';
+import { readRegularText } from '../io/read.js';
+import { jsonErrorWhere } from '../io/messages.js';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
@@ -68,16 +69,16 @@ export function defaultPolicyPath(): string {
 export function loadPolicy(path = defaultPolicyPath()): SamplingPolicy {
   let raw: string;
   try {
-    raw = readFileSync(path, 'utf8');
+    raw = readRegularText(path, 'The sampling policy');
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new FileInputError(path, code === 'ENOENT' ? `No sampling policy file at ${path}.` : `Cannot read the sampling policy ${path}: ${(e as Error).message}`);
+    if ((e as { errno?: string }).errno === 'ENOENT') throw new FileInputError(path, `No sampling policy file at ${path}.`);
+    throw e;
   }
   let data: unknown;
   try {
-    data = JSON.parse(raw.replace(/^\uFEFF/, ''));
+    data = JSON.parse(raw);
   } catch (e) {
-    throw new FileInputError(path, `The sampling policy ${path} is not valid JSON: ${(e as Error).message}`);
+    throw new FileInputError(path, `The sampling policy ${path} is not valid JSON: ${jsonErrorWhere(e, raw)}.`);
   }
   const r = SamplingPolicy.safeParse(data);
   if (!r.success) {

@@ -27,7 +27,7 @@ function describe(item: SelectedItem, max = 6): string {
  * answers are kept as the defaults for concluding again. A change to the item's tester, date,
  * evidence or note alone keeps them.
  */
-export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string | readonly string[], save = true): void {
+export async function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string | readonly string[], save = true): Promise<void> {
   const before = s.wp.results?.items.find((x) => x.key === r.key);
   if (before && canonicalJson(before) === canonicalJson(r)) {
     s.print(`  ${r.key}: unchanged.`);
@@ -38,7 +38,7 @@ export function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sh
     s.print(...wrap('The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).', 92, '  '));
   }
   s.wp = withResult(s.wp, r, { source, ...(sheetPath ? { sheetPath } : {}), at: s.now() });
-  if (save) s.save('record');
+  if (save) await s.save('record');
 }
 
 /** Record a void: the item is replaced by the next unused spare (or the sample is one short). */
@@ -231,10 +231,10 @@ async function applySheet(s: Session, sheetsAbs: readonly string[], sheetsRel: r
     const rec = row ? sheetRecord(s, row, item, replaces) : undefined;
     if (rec === undefined) break;
     const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
-    storeResult(s, result, 'sheet', sheetsRel, false);
+    await storeResult(s, result, 'sheet', sheetsRel, false);
     applied++;
   }
-  if (applied > 0) s.save('record');
+  if (applied > 0) await s.save('record');
   const wl = worklist(s.wp);
   s.print(
     ...wrap(
@@ -308,7 +308,7 @@ async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
     if (what === 'stop') return 'stopped';
     if (what === 'type') {
       const r = await askItem(s, next.item, next.replaces, `${wl.items.indexOf(next) + 1} of ${wl.items.length}`);
-      storeResult(s, r, 'interview');
+      await storeResult(s, r, 'interview');
     }
   }
 }
@@ -318,7 +318,7 @@ async function recordTyped(s: Session): Promise<'done'> {
     const wl = worklist(s.wp);
     if (!wl.next) return 'done';
     const r = await askItem(s, wl.next.item, wl.next.replaces, `${wl.items.indexOf(wl.next) + 1} of ${wl.items.length}`);
-    storeResult(s, r, 'interview');
+    await storeResult(s, r, 'interview');
   }
 }
 
@@ -390,7 +390,7 @@ export async function changeResults(s: Session): Promise<'done' | 'stopped'> {
     const entry = wl.items.find((x) => x.item.key === pick)!;
     const previous = s.wp.results?.items.find((x) => x.key === pick);
     const r = await askItem(s, entry.item, entry.replaces, `${wl.items.indexOf(entry) + 1} of ${wl.items.length}`, previous);
-    storeResult(s, r, 'interview');
+    await storeResult(s, r, 'interview');
     if (!recordingComplete(s.wp)) {
       const got = await runRecordStep(s);
       if (got === 'stopped') return got;

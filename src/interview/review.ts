@@ -158,7 +158,7 @@ export async function reviewSitting(s: Session): Promise<void> {
   const warning = same ? `The reviewer (${name}) is the preparer who signed off: a review by the preparer is not an independent review.` : undefined;
   if (warning) s.print('', ...wrap(`Warning: ${warning} The warning is recorded in the workpaper and shown in the memo.`, 92, '  '));
   s.wp = addSitting(s.wp, name, s.now(), warning);
-  s.save('review.start');
+  await s.save('review.start');
   s.print('', '  Re-performance first:');
   const differences = await reperformFor(s);
 
@@ -182,7 +182,7 @@ export async function reviewSitting(s: Session): Promise<void> {
         ? await a.text({ id: `review.note.${n.id}.comment`, message: 'Further comment', parse: requiredText('The comment') })
         : undefined;
     s.wp = addNoteEvent(s.wp, n.id, { kind: what === 'clear' ? 'cleared' : 'reopened', by: name, role: 'reviewer', at: s.now().toISOString(), ...(text ? { text } : {}) });
-    s.save(`review.note.${n.id}`);
+    await s.save(`review.note.${n.id}`);
   }
 
   // Each section, with what was recorded; notes on it or on one of its items.
@@ -212,7 +212,7 @@ export async function reviewSitting(s: Session): Promise<void> {
       const mustClear = await a.confirm({ id: `${id}.mustClear`, message: 'Must it be cleared before you sign off?', default: true });
       const got = raiseNote(s.wp, { section, ...(item ? { item } : {}), text, mustClear, by: name, at: s.now() });
       s.wp = got.wp;
-      s.save(`review.note.${got.note.id}`);
+      await s.save(`review.note.${got.note.id}`);
       s.print(`  Raised ${got.note.id}.`);
     }
   }
@@ -243,7 +243,7 @@ export async function reviewSitting(s: Session): Promise<void> {
     },
   });
   s.wp = { ...s.wp, signoffs: { ...(s.wp.signoffs ?? {}), reviewer: { name, date: d } } };
-  s.save('review.signoff');
+  await s.save('review.signoff');
   s.print('', `  Reviewed and signed off by ${name} on ${d}.`);
 }
 
@@ -279,7 +279,7 @@ export async function answerOpenNotes(s: Session, runStep: (st: StepName) => Pro
     }
     const text = await s.asker.text({ id: `notes.${n.id}.answer`, message: 'Your answer', parse: requiredText('The answer') });
     s.wp = addNoteEvent(s.wp, n.id, { kind: 'answered', by: s.by, role: 'preparer', at: s.now().toISOString(), text, ...(changed ? { changedRecord: true } : {}) });
-    s.save(`notes.${n.id}.answer`);
+    await s.save(`notes.${n.id}.answer`);
   }
 }
 

@@ -22,8 +22,9 @@
  * A row is matched to the selected item by its `Seq` and `Key` columns. Nothing is guessed:
  * every cell that cannot be read is reported with its row, column, value and why.
  */
-import { readFileSync } from 'node:fs';
 import { basename, extname } from 'node:path';
+import { readRegularFile } from '../io/read.js';
+import { withoutQuotes } from '../io/messages.js';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
 import { FIELDWORK_SHEET, INSTRUCTIONS_SHEET, KEY_COLUMN, NOTE_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
@@ -157,7 +158,7 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
   try {
     records = parse(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true }) as string[][];
   } catch (e) {
-    throw new FileInputError(o.sheet ?? 'sheet', `The sheet is not a readable CSV file: ${(e as Error).message}`);
+    throw new FileInputError(o.sheet ?? 'sheet', `The sheet is not a readable CSV file: ${withoutQuotes((e as Error).message)}`);
   }
   return parseResultsRows(records, items, attributes, o);
 }
@@ -306,10 +307,10 @@ async function sheetRecords(path: string): Promise<{ records: string[][] | undef
   const name = basename(path);
   let data: Buffer;
   try {
-    data = readFileSync(path);
+    data = readRegularFile(path, 'The filled fieldwork sheet');
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new FileInputError(path, code === 'ENOENT' ? `No sheet at ${path}.` : `Cannot read ${path}: ${(e as Error).message}`);
+    if ((e as { errno?: string }).errno === 'ENOENT') throw new FileInputError(path, `No sheet at ${path}.`);
+    throw e;
   }
   if (extname(path).toLowerCase() !== '.xlsx') return { records: undefined, text: data.toString('utf8'), label: name };
   const ExcelJS = (await import('exceljs')).default;
@@ -367,10 +368,12 @@ export async function readResultsSheets(paths: readonly string[], items: readonl
       }
       if (it.blank) continue;
       const conflict = sheetConflict(had, it, attributes);
-      if (conflict) {
-        const merged: SheetItem = { ...had, problems: [...had.problems, ...it.problems, ...conflict] };
+      const problems = [...had.problems, ...it.problems, ...conflict];
+      if (problems.length > had.problems.length) {
+        const merged: SheetItem = { ...had, problems };
+        SOURCE.set(merged, sheetOf(had));
         from.set(seq, merged);
-      } else if (it.problems.length > 0) from.set(seq, { ...had, problems: [...had.problems, ...it.problems] });
+      }
     }
   }
   out.items = from;

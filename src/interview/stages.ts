@@ -6,6 +6,7 @@
 import { relative, resolve } from 'node:path';
 import type { CommandContext } from '../commands/types.js';
 import { TolrateInputError } from '../errors.js';
+import { loadWorkpaper } from '../workpaper/file.js';
 import { int } from '../util/format.js';
 import { InterviewStopped, isStop, type Asker } from './asker.js';
 import { sessionFor, workpaperPath, type InterviewOptions } from './command.js';
@@ -31,6 +32,7 @@ function shown(ctx: CommandContext, path: string): string {
 /**
  * Run an interview so that a stop (Ctrl-C) names the workpaper once it holds something, and
  * keeps the answers given in the step in progress (offered again when it is asked again).
+ * However it ends, the session gives back the workpaper's lock.
  */
 async function guarded(run: (hold: (s: Session) => Session) => Promise<number>): Promise<number> {
   let held: Session | undefined;
@@ -39,15 +41,21 @@ async function guarded(run: (hold: (s: Session) => Session) => Promise<number>):
   } catch (e) {
     if (!isStop(e)) throw e;
     const stop = new InterviewStopped((e as Error).message);
-    if (held?.saved) {
+    const note = (e as InterviewStopped).stopNote;
+    if (note !== undefined) {
+      // Stopped while a failed save was being handled: the last answer is not on disk, say so.
+      stop.stopNote = note;
+    } else if (held?.saved) {
       stop.keptUnfinished = held.currentStep !== undefined && held.keepUnfinished(held.currentStep);
       stop.workpaper = held.path;
     }
     throw stop;
+  } finally {
+    held?.release();
   }
 }
 
-async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean, hold: (s: Session) => Session): Promise<Session | undefined> {
+async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExist: boolean, hold: (s: Session) => Session): Promise<Session | number | undefined> {
   if (o.policy) loadPolicy(resolve(ctx.cwd, o.policy));
   let file = o.file;
   if (file === undefined) {
@@ -64,6 +72,13 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
   }
   const path = workpaperPath(ctx.cwd, file);
   const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
+  if (s && 'readOnly' in s) {
+    // Another session has it open: show where the test stands, save nothing.
+    const wp = loadWorkpaper(path);
+    ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
+    ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
+    return 0;
+  }
   if (!s) {
     ctx.stdout.write('Nothing was changed.\n');
     return undefined;
@@ -100,21 +115,27 @@ function next(ctx: CommandContext, s: Session): void {
   else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: ${s.command('plan', f)}`);
 }
 
+/** Offer to change answered steps, one after another, until the user says no (each change runs the steps it reopens). */
+async function revisits(s: Session, steps: readonly StepName[], idPrefix: string): Promise<void> {
+  for (let i = 1; ; i++) {
+    const st = await chooseRevisit(s, steps, `${idPrefix}.${i}`);
+    if (!st) return;
+    await runStep(s, st);
+    await runOpenSteps(s, steps);
+  }
+}
+
 /** `tolrate plan [FILE]`. */
 export async function planInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
     const s = await open(ctx, asker, o, false, hold);
+    if (typeof s === 'number') return s;
     if (!s) return 1;
     const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
     await runOpenSteps(s, PLAN_STEPS);
     if (wasComplete) {
       s.print('', 'Every planning step is answered.');
-      for (let i = 1; ; i++) {
-        const st = await chooseRevisit(s, PLAN_STEPS, `plan.revisit.${i}`);
-        if (!st) break;
-        await runStep(s, st);
-        await runOpenSteps(s, PLAN_STEPS);
-      }
+      await revisits(s, PLAN_STEPS, 'plan.revisit');
     }
     next(ctx, s);
     return 0;
@@ -125,6 +146,7 @@ export async function planInterview(ctx: CommandContext, asker: Asker, o: StageO
 export async function recordInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
     const s = await open(ctx, asker, o, true, hold);
+    if (typeof s === 'number') return s;
     if (!s) return 1;
     const open1 = firstOpen(s.wp, PLAN_STEPS);
     if (open1) {
@@ -142,6 +164,7 @@ export async function recordInterview(ctx: CommandContext, asker: Asker, o: Stag
 export async function concludeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
     const s = await open(ctx, asker, o, true, hold);
+    if (typeof s === 'number') return s;
     if (!s) return 1;
     const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
     if (open1) {
@@ -174,17 +197,11 @@ export async function concludeInterview(ctx: CommandContext, asker: Asker, o: St
 export async function wholeInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
     const s = await open(ctx, asker, o, false, hold);
+    if (typeof s === 'number') return s;
     if (!s) return 1;
     const wasDone = firstOpen(s.wp) === undefined;
     await runOpenSteps(s, STEPS);
-    if (wasDone) {
-      for (let i = 1; ; i++) {
-        const st: StepName | undefined = await chooseRevisit(s, STEPS, `start.revisit.${i}`);
-        if (!st) break;
-        await runStep(s, st);
-        await runOpenSteps(s, STEPS);
-      }
-    }
+    if (wasDone) await revisits(s, STEPS, 'start.revisit');
     next(ctx, s);
     return 0;
   });
@@ -195,6 +212,13 @@ export async function reviewInterview(ctx: CommandContext, asker: Asker, o: Stag
   return guarded(async (hold) => {
     const path = workpaperPath(ctx.cwd, o.file ?? '');
     const s = await sessionFor(ctx, asker, path, { ...o, mustExist: true, hold });
+    if (s && 'readOnly' in s) {
+      // Another session has it open: show where the test stands, save nothing.
+      const wp = loadWorkpaper(path);
+      ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
+      ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
+      return 0;
+    }
     if (!s) {
       ctx.stdout.write('Nothing was changed.\n');
       return 1;

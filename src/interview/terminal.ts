@@ -6,6 +6,7 @@ import type { Asker, ConfirmQuestion, SelectQuestion, TextQuestion } from './ask
 import { refusal } from './asker.js';
 import { wrap } from './show.js';
 import type { Output } from '../commands/types.js';
+import { visible } from '../io/text.js';
 
 type Prompts = typeof import('@inquirer/prompts');
 
@@ -29,7 +30,7 @@ export class TerminalAsker implements Asker {
     if (!text) return;
     // Wrapped here so that a long help line does not break mid-word at the terminal's edge.
     // A blank line before it groups the help with the question below it, not the answer above.
-    const lines = wrap(text, 94, '  ').join('\n');
+    const lines = wrap(visible(text, { keepLines: true }), 94, '  ').join('\n');
     this.options.out.write(this.options.color ? `\n\x1b[2m${lines}\x1b[22m\n` : `\n${lines}\n`);
   }
 
@@ -37,7 +38,8 @@ export class TerminalAsker implements Asker {
     const { input } = await this.load();
     this.help(q.help);
     const typed = await input({
-      message: q.message,
+      // Messages and choices may quote keys and values from files: their control characters are shown, not sent.
+      message: visible(q.message),
       ...(q.default !== undefined && q.default !== '' ? { default: q.default } : {}),
       ...(q.editable && q.default ? { prefill: 'editable' as const } : {}),
       validate: (v: string) => {
@@ -45,7 +47,7 @@ export class TerminalAsker implements Asker {
           q.parse(v);
           return true;
         } catch (e) {
-          return refusal(e);
+          return visible(refusal(e), { keepLines: true });
         }
       },
     });
@@ -56,8 +58,8 @@ export class TerminalAsker implements Asker {
     const { select } = await this.load();
     this.help(q.help);
     const value = await select<T>({
-      message: q.message,
-      choices: q.choices.map((c) => ({ value: c.value, name: c.name, ...(c.description ? { description: c.description } : {}) })),
+      message: visible(q.message),
+      choices: q.choices.map((c) => ({ value: c.value, name: visible(c.name), ...(c.description ? { description: visible(c.description) } : {}) })),
       ...(q.default !== undefined ? { default: q.default } : {}),
       pageSize: Math.min(12, Math.max(q.choices.length, 3)),
     });
@@ -67,6 +69,6 @@ export class TerminalAsker implements Asker {
   async confirm(q: ConfirmQuestion): Promise<boolean> {
     const { confirm } = await this.load();
     this.help(q.help);
-    return confirm({ message: q.message, ...(q.default !== undefined ? { default: q.default } : {}) });
+    return confirm({ message: visible(q.message), ...(q.default !== undefined ? { default: q.default } : {}) });
   }
 }

@@ -10,6 +10,8 @@
 import { existsSync } from 'node:fs';
 
 export interface ChartRow {
+  /** The limit does not support reliance (from the decision, not from comparing rounded rates). */
+  exceeds?: boolean;
   id: string;
   sampleRate: number;
   upperLimit: number;
@@ -117,7 +119,9 @@ export function chartSvg(rows: readonly ChartRow[], labels: ChartLabels, width =
   const geometry: ChartSvg['geometry'] = [];
   rows.forEach((r, i) => {
     const y = top + i * rowH;
-    const exceeds = r.upperLimit > r.tolerableRate + 1e-12;
+    // The colour follows the decision (a hypergeometric limit equal to the tolerable rate does not
+    // support reliance), falling back to the figures only for a row without one.
+    const exceeds = r.exceeds ?? r.upperLimit > r.tolerableRate + 1e-12;
     const sx = scale(r.sampleRate);
     const ux = scale(r.upperLimit);
     const tx = scale(r.tolerableRate);
@@ -182,4 +186,64 @@ export async function renderPng(svg: string, zoom = 2): Promise<Buffer | undefin
   } catch {
     return undefined;
   }
+}
+
+/** One curve of the operating characteristic: the chance of relying on the control at each true rate. */
+export interface OcCurve {
+  id: string;
+  points: ReadonlyArray<{ rate: number; acceptanceProbability: number }>;
+  tolerableRate: number;
+  expectedRate: number;
+}
+
+/**
+ * The operating characteristic as a line chart: the chance of acceptance (relying on the control)
+ * against the true deviation rate, one line per attribute, with the tolerable and expected rates
+ * marked. At the tolerable rate the curve's height is the risk of overreliance; at the expected
+ * rate one minus its height is the risk of underreliance.
+ */
+export function ocSvg(curves: readonly OcCurve[], labels: { x: string; y: string; tolerable: string; expected: string }, width = 620): { svg: string; width: number; height: number } {
+  const left = 56;
+  const right = 20;
+  const top = 20;
+  const bottom = 46;
+  const height = 300;
+  const plotW = width - left - right;
+  const plotH = height - top - bottom;
+  const maxRate = Math.max(...curves.flatMap((c) => c.points.map((p) => p.rate)), 0.01);
+  const x = (r: number) => left + (r / maxRate) * plotW;
+  const y = (p: number) => top + (1 - p) * plotH;
+  const esc = (t: string) => t.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
+  const parts: string[] = [];
+  parts.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="${FONT}" font-size="11">`);
+  parts.push(`<rect x="0" y="0" width="${width}" height="${height}" fill="#FFFFFF"/>`);
+  for (let i = 0; i <= 4; i++) {
+    const p = i / 4;
+    parts.push(`<line x1="${left}" y1="${y(p).toFixed(1)}" x2="${left + plotW}" y2="${y(p).toFixed(1)}" stroke="#D9D9D9" stroke-width="1"/>`);
+    parts.push(`<text x="${left - 6}" y="${(y(p) + 4).toFixed(1)}" text-anchor="end" fill="#404040">${Math.round(p * 100)}%</text>`);
+  }
+  const step = maxRate <= 0.1 ? 0.02 : 0.05;
+  for (let r = 0; r <= maxRate + 1e-9; r += step) {
+    parts.push(`<text x="${x(r).toFixed(1)}" y="${top + plotH + 16}" text-anchor="middle" fill="#404040">${Math.round(r * 1000) / 10}%</text>`);
+  }
+  parts.push(`<text x="${left + plotW / 2}" y="${height - 8}" text-anchor="middle" fill="#262626">${esc(labels.x)}</text>`);
+  parts.push(`<text x="14" y="${top + plotH / 2}" text-anchor="middle" fill="#262626" transform="rotate(-90 14 ${top + plotH / 2})">${esc(labels.y)}</text>`);
+  const shades = ['#2F5597', '#C55A11', '#548235', '#7030A0', '#BF9000', '#404040'];
+  curves.forEach((c, i) => {
+    const color = shades[i % shades.length]!;
+    const d = c.points.map((p, j) => `${j === 0 ? 'M' : 'L'}${x(p.rate).toFixed(1)},${y(p.acceptanceProbability).toFixed(1)}`).join(' ');
+    parts.push(`<path d="${d}" fill="none" stroke="${color}" stroke-width="2"/>`);
+    const last = c.points[c.points.length - 1]!;
+    parts.push(`<text x="${(x(last.rate) - 4).toFixed(1)}" y="${(y(last.acceptanceProbability) - 6 - i * 12).toFixed(1)}" text-anchor="end" fill="${color}">${esc(c.id)}</text>`);
+  });
+  const first = curves[0];
+  if (first) {
+    parts.push(`<line x1="${x(first.tolerableRate).toFixed(1)}" y1="${top}" x2="${x(first.tolerableRate).toFixed(1)}" y2="${top + plotH}" stroke="#000000" stroke-width="1.5" stroke-dasharray="5,3"/>`);
+    parts.push(`<text x="${(x(first.tolerableRate) + 4).toFixed(1)}" y="${top + 12}" fill="#000000">${esc(labels.tolerable)}</text>`);
+    parts.push(`<line x1="${x(first.expectedRate).toFixed(1)}" y1="${top}" x2="${x(first.expectedRate).toFixed(1)}" y2="${top + plotH}" stroke="#7F7F7F" stroke-width="1" stroke-dasharray="2,2"/>`);
+    parts.push(`<text x="${(x(first.expectedRate) + 4).toFixed(1)}" y="${top + 26}" fill="#595959">${esc(labels.expected)}</text>`);
+  }
+  parts.push(`<rect x="${left}" y="${top}" width="${plotW}" height="${plotH}" fill="none" stroke="#A6A6A6" stroke-width="1"/>`);
+  parts.push('</svg>');
+  return { svg: parts.join(''), width, height };
 }

@@ -12,7 +12,10 @@ import { createHash } from 'node:crypto';
 import { basename, dirname, isAbsolute, join, relative, resolve } from 'node:path';
 import { stateHash } from '../workpaper/log.js';
 import { FileInputError } from '../errors.js';
-import { saveWorkpaper, writeFileAtomic } from '../workpaper/file.js';
+import { saveWorkpaper } from '../workpaper/file.js';
+import { writeFileSafely } from '../io/write.js';
+import { xmlSafeDeep, type Removal } from '../io/text.js';
+import { zipXmlProblems } from '../io/xml.js';
 import type { MemoRecord, Workpaper } from '../workpaper/schema.js';
 import { buildModel, type MemoModel } from './model.js';
 import { buildDocument, packDocument } from './render.js';
@@ -29,6 +32,8 @@ export interface RenderMemoOptions {
   now?: Date;
   /** Draw the picture of the rates (default true). */
   chart?: boolean;
+  /** Add the appendix with each attribute's operating characteristic (default false). */
+  operatingCharacteristic?: boolean;
   /** Further reasons the memo is not final, listed under its DRAFT banner. */
   extraNotFinal?: string[];
 }
@@ -43,6 +48,8 @@ export interface WriteMemoOptions {
   template?: MemoTemplate;
   now?: Date;
   extraNotFinal?: string[];
+  /** Add the appendix with each attribute's operating characteristic. */
+  operatingCharacteristic?: boolean;
 }
 
 /** The default memo path for a workpaper file: `x/NAME.tolrate.json` -> `x/NAME.memo.docx`. */
@@ -65,12 +72,46 @@ function modelOptions(opts: RenderMemoOptions) {
   };
 }
 
-/** Render the memo of a workpaper to DOCX bytes. */
+/**
+ * The workpaper and the template with every character XML 1.0 forbids removed (src/io/text.ts),
+ * and the note for the memo's appendix saying how many and where, when there were any.
+ */
+export function cleanForMemo(workpaper: Workpaper, template: MemoTemplate): { workpaper: Workpaper; template: MemoTemplate; note: string | undefined } {
+  // The change log is not shown in the memo (only its last hash), so it is left as it is.
+  const { log, ...rest } = workpaper;
+  const w = xmlSafeDeep(rest, 'workpaper');
+  const { externalStyles, ...words } = template;
+  const t = xmlSafeDeep(words, 'template');
+  const removals: Removal[] = [...w.removals, ...t.removals];
+  let note: string | undefined;
+  if (removals.length) {
+    const n = removals.reduce((a, r) => a + r.count, 0);
+    const shown = removals.slice(0, 12).map((r) => `${r.where} (${r.count})`);
+    if (removals.length > 12) shown.push(`and ${removals.length - 12} more places`);
+    note = `${n} character(s) that a Word document cannot hold (control characters, U+FFFE, U+FFFF or broken surrogates) were left out of this memo: ${shown.join('; ')}. The workpaper file itself is unchanged.`;
+  }
+  return {
+    workpaper: { ...(w.value as Omit<Workpaper, 'log'>), log } as Workpaper,
+    template: { ...(t.value as Omit<MemoTemplate, 'externalStyles'>), ...(externalStyles !== undefined ? { externalStyles } : {}) } as MemoTemplate,
+    note,
+  };
+}
+
+/** Render the memo of a workpaper to DOCX bytes. Its XML is parsed (strictly) before it is returned. */
 export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions = {}): Promise<Buffer> {
-  const template = opts.template ?? (await loadTemplate(opts.templateDir));
-  const model = buildModel(workpaper, template, modelOptions(opts));
-  const doc = await buildDocument(model, template, { chart: opts.chart ?? true });
-  return packDocument(doc);
+  const loaded = opts.template ?? (await loadTemplate(opts.templateDir));
+  const clean = cleanForMemo(workpaper, loaded);
+  const template = clean.template;
+  const model = buildModel(clean.workpaper, template, modelOptions(opts));
+  if (clean.note) model.cleanedNote = clean.note;
+  const doc = await buildDocument(model, template, { chart: opts.chart ?? true, operatingCharacteristic: opts.operatingCharacteristic === true });
+  const buf = await packDocument(doc, opts.now ?? new Date());
+  const problems = await zipXmlProblems(buf);
+  if (problems.length) {
+    // The text was cleaned above, so this is tolrate's fault (or a firm's styles.docx that got past its check).
+    throw new Error(`the memo's XML does not parse, so it was not written: ${problems.slice(0, 3).join('; ')}`);
+  }
+  return buf;
 }
 
 /** Render the memo and write it (atomically) to `out` or beside the workpaper. */
@@ -92,16 +133,17 @@ export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string;
     ...(opts.template ? { template: opts.template } : {}),
     ...(opts.now ? { now: opts.now } : {}),
     ...(opts.extraNotFinal ? { extraNotFinal: opts.extraNotFinal } : {}),
+    ...(opts.operatingCharacteristic ? { operatingCharacteristic: true } : {}),
   });
-  writeFileAtomic(path, buf);
-  return { path, bytes: buf.length, sha256: createHash('sha256').update(buf).digest('hex') };
+  const written = writeFileSafely(path, buf, { what: 'the memo' });
+  return { path: written.path, bytes: buf.length, sha256: createHash('sha256').update(buf).digest('hex') };
 }
 
 /**
  * The record of a memo written from `workpaper` (as it was when written: the state its figures
  * show), to be kept in the workpaper so that a reviewer can tell which memo belongs to which state.
  */
-export function memoRecord(workpaper: Workpaper, workpaperPath: string, written: { path: string; sha256: string }, o: { at: Date; final: boolean; templateDir?: string }): MemoRecord {
+export function memoRecord(workpaper: Workpaper, workpaperPath: string, written: { path: string; sha256: string }, o: { at: Date; final: boolean; templateDir?: string; operatingCharacteristic?: boolean }): MemoRecord {
   const last = workpaper.log[workpaper.log.length - 1];
   const base = dirname(resolve(workpaperPath));
   const rel = relative(base, written.path);
@@ -114,6 +156,7 @@ export function memoRecord(workpaper: Workpaper, workpaperPath: string, written:
     logSeq: workpaper.log.length,
     logHash: last?.hash ?? '',
     final: o.final,
+    ...(o.operatingCharacteristic ? { operatingCharacteristic: true } : {}),
     ...(tpl !== undefined ? { template: tpl.split('\\').join('/') || '.' } : {}),
   };
 }
@@ -127,10 +170,15 @@ export function recordMemo(
   workpaper: Workpaper,
   workpaperPath: string,
   written: { path: string; sha256: string },
-  o: { at: Date; final: boolean; templateDir?: string },
+  o: { at: Date; final: boolean; templateDir?: string; operatingCharacteristic?: boolean; beforeWrite?: () => void },
 ): { record: MemoRecord; saved: Workpaper } {
   const record = memoRecord(workpaper, workpaperPath, written, o);
-  const saved = saveWorkpaper(workpaperPath, { ...workpaper, memos: [...(workpaper.memos ?? []), record] }, { by: workpaper.engagement?.preparer ?? 'tolrate', step: 'memo', at: o.at });
+  const saved = saveWorkpaper(workpaperPath, { ...workpaper, memos: [...(workpaper.memos ?? []), record] }, {
+    by: workpaper.engagement?.preparer ?? 'tolrate',
+    step: 'memo',
+    at: o.at,
+    ...(o.beforeWrite ? { beforeWrite: o.beforeWrite } : {}),
+  });
   return { record, saved };
 }
 

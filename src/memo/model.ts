@@ -102,6 +102,8 @@ export interface MemoModel {
   followUps: Array<FollowUp & { kindLabel: string }>;
   /** Names of the figures not yet available, for the command's summary. */
   missing: string[];
+  /** Said in the appendix when characters XML forbids were removed (see cleanForMemo). */
+  cleanedNote?: string;
 }
 
 /** Thousands separators for a decimal string, without going through a float: "-1234567.5" -> "-1,234,567.5". */
@@ -270,6 +272,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
         achievedRisk: ev ? pctUp(ev.achievedRisk) : undefined,
         decision,
         extension: ev?.extension != null ? int(ev.extension) : undefined,
+        extensionRisk: ev?.extensionRisk ? pctUp(ev.extensionRisk.procedure) : undefined,
+        extensionRepeatedRisk: ev?.extensionRisk ? pctUp(ev.extensionRisk.repeated) : undefined,
       },
     };
     if (ev) view.evaluation = ev;

@@ -30,7 +30,8 @@ import {
   type IParagraphOptions,
 } from 'docx';
 import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
-import { chartSvg, renderPng, type ChartRow } from './chart.js';
+import { chartSvg, ocSvg, renderPng, type ChartRow, type OcCurve } from './chart.js';
+import { acceptanceNumber, operatingCharacteristic } from '../stats/index.js';
 import { exact, type MemoModel } from './model.js';
 import { fill, type MemoTemplate } from './template.js';
 import { REVIEW_SECTION_LABELS } from '../control-test/index.js';
@@ -265,6 +266,17 @@ export function resultColumnWidth(words: readonly string[]): number {
 export interface RenderOptions {
   /** Whether to draw the chart (default true). */
   chart?: boolean;
+  /** Add the appendix with the operating characteristic of each attribute's plan (default false). */
+  operatingCharacteristic?: boolean;
+}
+
+/** A centred picture (a PNG drawn from SVG) with its text alternative. */
+function imageParagraph(png: Buffer, size: { width: number; height: number }, alt: { name: string; title: string; description: string }): Paragraph {
+  return new Paragraph({
+    alignment: AlignmentType.CENTER,
+    keepNext: true,
+    children: [new ImageRun({ type: 'png', data: png, transformation: { width: size.width, height: size.height }, altText: alt })],
+  });
 }
 
 /** What every section of the memo is written with. */
@@ -428,8 +440,16 @@ async function approachSection(c: Ctx): Promise<void> {
             { header: L.expectedDeviations, w: 1.4, align: 'right' },
             { header: L.sampleSize, w: 1.1, align: 'right' },
             { header: L.plannedRisk, w: 1.2, align: 'right' },
+            ...(a.sizes.some((s) => s.underrelianceRisk !== undefined) ? [{ header: L.underrelianceRisk, w: 1.3, align: 'right' as const }] : []),
           ],
-          a.sizes.map((s) => [{ text: s.attributeId, bold: true }, pct(s.tolerableRate), int(s.expectedDeviations), int(s.sampleSize), pctUp(s.achievedRisk)]),
+          a.sizes.map((s) => [
+            { text: s.attributeId, bold: true },
+            pct(s.tolerableRate),
+            int(s.expectedDeviations),
+            int(s.sampleSize),
+            pctUp(s.achievedRisk),
+            ...(a.sizes.some((x) => x.underrelianceRisk !== undefined) ? [s.underrelianceRisk !== undefined ? pctUp(s.underrelianceRisk) : L.notRecorded] : []),
+          ]),
         );
         b.ps(T.sizePlanned);
       }
@@ -547,27 +567,17 @@ async function resultsSection(c: Ctx): Promise<void> {
           sampleRateText: pct(x.evaluation!.sampleRate),
           upperLimitText: pctLimit(x.evaluation!.upperLimit, x.evaluation!.tolerableRate),
           tolerableRateText: pct(x.evaluation!.tolerableRate),
+          ...(x.evaluation!.illustrative ? {} : { exceeds: !x.evaluation!.supportedByRates }),
         }));
         const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
         const svg = chartSvg(rows, { sampleRate: L.legendSampleRate, upperLimit: L.legendUpperLimit, exceeds: L.legendExceeds, tolerable: L.legendTolerable, ...(m.illustrative ? { note: L.illustrative } : {}) }, chartW);
         const png = await renderPng(svg.svg, 2);
         if (png) {
           b.children.push(
-            new Paragraph({
-              alignment: AlignmentType.CENTER,
-              keepNext: true,
-              children: [
-                new ImageRun({
-                  type: 'png',
-                  data: png,
-                  transformation: { width: svg.width, height: svg.height },
-                  altText: {
-                    name: 'rates-chart',
-                    title: H.chart,
-                    description: rows.map((r) => `${r.id}: ${L.legendSampleRate} ${r.sampleRateText}, ${L.legendUpperLimit} ${r.upperLimitText}, ${L.legendTolerable} ${r.tolerableRateText}`).join('; '),
-                  },
-                }),
-              ],
+            imageParagraph(png, svg, {
+              name: 'rates-chart',
+              title: H.chart,
+              description: rows.map((r) => `${r.id}: ${L.legendSampleRate} ${r.sampleRateText}, ${L.legendUpperLimit} ${r.upperLimitText}, ${L.legendTolerable} ${r.tolerableRateText}`).join('; '),
             }),
           );
           b.p(b.f(T.chartCaption), { style: 'Caption' });
@@ -862,6 +872,7 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
     );
   }
   b.p(b.f(T.workpaperState), { style: 'MemoNote' });
+  if (m.cleanedNote) b.note(m.cleanedNote);
 
 }
 
@@ -953,6 +964,42 @@ async function appendixReviewSection(c: Ctx): Promise<void> {
   );
 }
 
+/** The operating characteristic of each attribute's plan: a table of rates and a picture. */
+async function appendixOcSection(c: Ctx): Promise<void> {
+  const { b, L, T, a, wp } = c;
+  if (!a || a.kind !== 'statistical' || a.sizes.length === 0) {
+    b.note(T.ocNotStatistical);
+    return;
+  }
+  b.ps(T.ocLead);
+  const N = a.model === 'hypergeometric' ? wp.population?.fingerprint.rowCount : undefined;
+  const curves: OcCurve[] = [];
+  const rates = Array.from({ length: 17 }, (_, i) => Math.round(((i * Math.max(...a.sizes.map((s) => s.tolerableRate)) * 2) / 16) * 1e6) / 1e6);
+  for (const s of a.sizes) {
+    // The plan as adopted: the sample size used, and the most deviations with which it supports
+    // reliance at this attribute's tolerable rate.
+    const n = a.sampleSize;
+    const acc = acceptanceNumber({ sampleSize: n, tolerableRate: s.tolerableRate, confidence: a.confidence, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) });
+    if (acc === null) continue;
+    const pts = operatingCharacteristic({ plan: { sampleSize: n, acceptanceNumber: acc }, rates, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) });
+    curves.push({ id: `${s.attributeId} (n = ${int(n)}, c = ${acc})`, points: pts, tolerableRate: s.tolerableRate, expectedRate: a.expectedRate });
+  }
+  b.table(
+    [{ header: L.trueRate, w: 1 }, ...curves.map((cv) => ({ header: cv.id, w: 1.4, align: 'right' as const }))],
+    rates.map((r, i) => [pct(r), ...curves.map((cv) => pct(cv.points[i]!.acceptanceProbability))]),
+    { size: 16 },
+  );
+  const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
+  if (curves.length === 0) {
+    b.note(T.ocNotStatistical);
+    return;
+  }
+  const svg = ocSvg(curves, { x: L.trueRate, y: L.chanceOfReliance, tolerable: `${L.legendTolerable} (${a.sizes[0]!.attributeId})`, expected: L.expectedRate }, chartW);
+  const png = await renderPng(svg.svg, 2);
+  if (png) b.children.push(imageParagraph(png, svg, { name: 'operating-characteristic', title: L.chanceOfReliance, description: curves.map((cv) => cv.id).join('; ') }));
+  b.p(b.f(T.ocCaption), { style: 'Caption' });
+}
+
 /**
  * The numbered sections of the memo, in order: a section's number is its place in this list, so
  * a section added or moved renumbers the rest (and the texts that point to one).
@@ -1009,6 +1056,10 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   for (const app of APPENDICES) {
     b.h1(W.headings[app.heading], { pageBreakBefore: true, numbered: false });
     await app.render(c);
+  }
+  if (o.operatingCharacteristic) {
+    b.h1(W.headings.appendixOc, { pageBreakBefore: true, numbered: false });
+    await appendixOcSection(c);
   }
   return assemble(b, m, t);
 }
@@ -1106,7 +1157,36 @@ function assemble(b: Builder, m: MemoModel, t: MemoTemplate): Document {
   });
 }
 
-export async function packDocument(doc: Document): Promise<Buffer> {
-  return Packer.toBuffer(doc);
+/**
+ * Pack the document. The DOCX library stamps the document properties (created, modified) and
+ * every zip entry with the clock at packing; they are set to `at`, the memo's own time (the one
+ * its footer shows), so the properties agree with the memo and the same workpaper and time give
+ * the same bytes.
+ */
+export async function packDocument(doc: Document, at: Date = new Date()): Promise<Buffer> {
+  const packed = await Packer.toBuffer(doc);
+  const { default: JSZip } = await import('jszip');
+  const zip = await JSZip.loadAsync(packed);
+  const stamp = at.toISOString().replace(/\.\d{3}Z$/, 'Z');
+  const core = zip.file('docProps/core.xml');
+  if (core) {
+    const xml = (await core.async('string')).replace(/(<dcterms:(created|modified)[^>]*>)[^<]*(<\/dcterms:\2>)/g, `$1${stamp}$3`);
+    zip.file('docProps/core.xml', xml);
+  }
+  // The library numbers drawings with a counter that runs on across documents: number them afresh.
+  const body = zip.file('word/document.xml');
+  if (body) {
+    let n = 0;
+    let m = 0;
+    const xml = (await body.async('string')).replace(/<wp:docPr id="\d+"/g, () => `<wp:docPr id="${++n}"`).replace(/<pic:cNvPr id="\d+"/g, () => `<pic:cNvPr id="${++m}"`);
+    zip.file('word/document.xml', xml);
+  }
+  const out = new JSZip();
+  for (const name of Object.keys(zip.files).sort()) {
+    const f = zip.files[name]!;
+    if (f.dir) continue;
+    out.file(name, await f.async('uint8array'), { date: at, createFolders: false });
+  }
+  return out.generateAsync({ type: 'nodebuffer', compression: 'DEFLATE', compressionOptions: { level: 6 } });
 }
 

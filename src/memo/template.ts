@@ -16,7 +16,10 @@
  * key), then every placeholder against the known list. A problem names the file, the key and the
  * placeholder, and is a TolrateInputError (exit 2).
  */
-import { existsSync, readFileSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
+import { readRegularFile, readRegularText } from '../io/read.js';
+import { jsonErrorWhere } from '../io/messages.js';
+import { xmlProblem } from '../io/xml.js';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
@@ -133,7 +136,9 @@ export const ATTRIBUTE_PLACEHOLDERS = {
   upperLimit: 'the upper deviation limit (rounded up)',
   achievedRisk: 'the risk of overreliance (rounded up)',
   decision: 'the decision label',
-  extension: 'the additional items an extension needs',
+  extension: 'the additional items an extension needs (the single-stage figure)',
+  extensionRisk: 'the exact risk of overreliance of extending by that figure after seeing the results (rounded up)',
+  extensionRepeatedRisk: 'the same when the sample is extended again after each failure (rounded up)',
 } as const;
 
 export type PlaceholderName = keyof typeof PLACEHOLDERS;
@@ -206,6 +211,7 @@ export const MemoFile = z.strictObject({
     appendixItemsList: para.default('A.1 Items and their results'),
     amendments: para.default('Amendments after sign-off'),
     appendixReview: para.default('Appendix C — Review notes'),
+    appendixOc: para.default('Appendix D — Operating characteristic'),
   }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
@@ -238,6 +244,9 @@ export const MemoFile = z.strictObject({
     noteReopened: para.default('re-opened'),
     noteCleared: para.default('cleared'),
     mustClear: para.default('must be cleared before sign-off'),
+    underrelianceRisk: para.default('Risk of underreliance'),
+    trueRate: para.default('True deviation rate'),
+    chanceOfReliance: para.default('Chance of relying on the control'),
     // Added with the evidence per item: a firm's copy without them gets these.
     testedBy: para.default('Tested by'),
     dateTested: para.default('Date tested'),
@@ -252,6 +261,9 @@ export const MemoFile = z.strictObject({
     amendmentsNone: para.default('No change was made to the record after a sign-off.'),
     amendmentsLead: para.default('Each change made to the record after a sign-off: who made it, in which role, when and why, and every value before and after. A change to the record clears both sign-offs; the test is signed again afterwards.'),
     reviewNone: para.default('No review notes were raised.'),
+    ocLead: para.default('For each attribute, the chance that the sample as adopted (n items, relying on the control with at most c deviations) leads to reliance, for each true deviation rate of the population (with a known population, the rate times N deviations, rounded up). At the tolerable rate this chance is the risk of overreliance; near the expected rate, one minus it is the risk of underreliance (which counts the expected deviations rounded down, so the two can differ slightly).'),
+    ocCaption: para.default('The chance of relying on the control against the true deviation rate (dashed: the tolerable rate; dotted: the expected rate).'),
+    ocNotStatistical: para.default('The sample is not statistical: it has no operating characteristic to show.'),
     appendixEvidence: para.default('For every item tested: who tested it, the date tested, the evidence inspected and the tester\'s note. An evidence file kept beside the workpaper is shown with the start of its SHA-256, which re-performance checks again.'),
     appendixEvidenceNone: para.default('No item has been tested yet.'),
     reviewLead: para.default('The reviewer\'s notes, each with its whole thread: raised, answered, re-opened and cleared, with who and when.'),
@@ -375,16 +387,16 @@ function readJson(dir: string, file: string, problems: TemplateProblem[]): unkno
   const path = join(dir, file);
   let raw: string;
   try {
-    raw = readFileSync(path, 'utf8');
+    raw = readRegularText(path, file);
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
+    const code = (e as { errno?: string }).errno;
     problems.push({ file, key: '(file)', message: code === 'ENOENT' ? 'is missing from the template folder (copy it from the default templates).' : `cannot be read: ${(e as Error).message}` });
     return undefined;
   }
   try {
-    return JSON.parse(raw.replace(/^\uFEFF/, '')) as unknown;
+    return JSON.parse(raw) as unknown;
   } catch (e) {
-    problems.push({ file, key: '(file)', message: `is not valid JSON: ${(e as Error).message}` });
+    problems.push({ file, key: '(file)', message: `is not valid JSON: ${jsonErrorWhere(e, raw)}.` });
     return undefined;
   }
 }
@@ -420,14 +432,23 @@ function checkShape<T>(file: string, schema: z.ZodType<T>, data: unknown, proble
 async function readStylesDocx(path: string): Promise<string> {
   const { default: JSZip } = await import('jszip');
   let zip: Awaited<ReturnType<typeof JSZip.loadAsync>>;
+  const data = readRegularFile(path, 'The styles file');
   try {
-    zip = await JSZip.loadAsync(readFileSync(path));
-  } catch (e) {
-    throw new FileInputError(path, `${path} is not a Word document (.docx): ${(e as Error).message}`);
+    zip = await JSZip.loadAsync(data);
+  } catch {
+    throw new FileInputError(path, `${path} is not a Word document (.docx): it is not a zip file. Save the styles from Word as a .docx.`);
   }
   const styles = zip.file('word/styles.xml');
   if (!styles) throw new FileInputError(path, `${path} has no styles (word/styles.xml is missing).`);
-  return styles.async('string');
+  let xml: string;
+  try {
+    xml = await styles.async('string');
+  } catch {
+    throw new FileInputError(path, `${path} is damaged: word/styles.xml cannot be unpacked. Save the styles from Word as a .docx again.`);
+  }
+  const problem = xmlProblem(xml, 'word/styles.xml');
+  if (problem) throw new FileInputError(path, `${path} is damaged: ${problem}. Save the styles from Word as a .docx again.`);
+  return xml;
 }
 
 const cache = new Map<string, MemoTemplate>();

@@ -1,8 +1,11 @@
 import { AmountTotal, parseAmount } from './amount.js';
 import { DateTracker, type DateSummary } from './date.js';
 import type { CsvTokenizer } from './csv-tokenizer.js';
-import { KeyHashes, hashBytes, hashString } from './key-index.js';
-import type { DateOrder, DuplicateKeyExample, PopulationValidation, ProblemCount, RowExample } from './types.js';
+import { confirmParts, DuplicateCollector, hashBytes, KeyHashes, mergeDuplicates, utf8Of, type DuplicateResult } from './key-index.js';
+
+export type { DuplicateResult } from './key-index.js';
+import type { DateOrder, PopulationValidation, ProblemCount, RowExample } from './types.js';
+import { hasControl, visible } from '../io/text.js';
 
 export const EXAMPLES = 5;
 export const DUPLICATE_EXAMPLES = 10;
@@ -45,6 +48,8 @@ export class RowChecker {
   lastKey = '';
   readonly hashes = new KeyHashes();
   readonly blankKeys = new Problems();
+  /** Keys holding control or escape characters (a terminal would act on them, not show them). */
+  readonly controlKeys = new Problems();
   readonly badRows = new Problems();
   readonly badAmounts = new Problems();
   readonly blankLines = new Problems();
@@ -78,12 +83,20 @@ export class RowChecker {
       const e = t.ends[key]!;
       const k = t.kinds[key]!;
       if (k <= 1 && e > s && plain(b[s]!) && plain(b[e - 1]!)) {
-        this.hashes.add(hashBytes(b, s, e));
+        hashBytes(b, s, e);
+        this.hashes.addCurrent(e - s);
         const len = e - s;
         if (len > this.scratch.length) this.scratch = new Uint8Array(len * 2);
         const sc = this.scratch;
-        for (let i = 0; i < len; i++) sc[i] = b[s + i]!;
+        let suspect = false;
+        for (let i = 0; i < len; i++) {
+          const c = b[s + i]!;
+          sc[i] = c;
+          // Controls, DEL, and the lead bytes of C1 controls (C2) and of bidirectional marks (E2).
+          if (c < 0x20 || c === 0x7f || c === 0xc2 || c === 0xe2) suspect = true;
+        }
         this.lastLen = len;
+        if (suspect) this.controlKey(b.toString('utf8', s, e), row);
         if (pos === 0) this.firstKey = b.toString('utf8', s, e);
       } else this.slowKey(t.field(key).trim(), row, pos);
     } else this.slowKey('', row, pos);
@@ -112,8 +125,15 @@ export class RowChecker {
       this.setLast('');
       return;
     }
-    this.hashes.add(hashString(k));
+    this.controlKey(k, row);
+    const [kb, n] = utf8Of(k);
+    hashBytes(kb, 0, n);
+    this.hashes.addCurrent(n);
     this.setLast(k);
+  }
+
+  private controlKey(k: string, row: number): void {
+    if (hasControl(k)) this.controlKeys.add(row, 'control characters in the key', visible(k));
   }
 
   private setLast(k: string): void {
@@ -142,60 +162,54 @@ export class RowChecker {
     return this.lastLen >= 0 ? Buffer.from(this.scratch.subarray(0, this.lastLen)).toString('utf8') : this.lastKey;
   }
 
-  /** Key hash of a CSV record's key field, or undefined when blank (for the confirming pass). */
-  static csvKey(t: CsvTokenizer, key: number): { hash: number; text: () => string } | undefined {
-    if (key >= t.count) return undefined;
+  /** Offer a CSV record's key (when not blank) to the confirming pass, as pass 1 hashed it. */
+  static offerCsvKey(t: CsvTokenizer, key: number, dc: DuplicateCollector, row: number): void {
+    if (key >= t.count) return;
     const b = t.buf;
     const s = t.starts[key]!;
     const e = t.ends[key]!;
     const k = t.kinds[key]!;
     if (k <= 1 && e > s && plain(b[s]!) && plain(b[e - 1]!)) {
-      return { hash: hashBytes(b, s, e), text: () => b.toString('utf8', s, e) };
+      hashBytes(b, s, e);
+      dc.offerCurrent(b, s, e, row);
+      return;
     }
-    const text = t.field(key).trim();
-    if (text === '') return undefined;
-    return { hash: hashString(text), text: () => text };
+    offerText(t.field(key).trim(), dc, row);
   }
+}
+
+/**
+ * The confirming pass: reads the file once per part of the candidates (`read` calls `offer`
+ * with each row's key) and merges the parts.
+ */
+export async function confirmDuplicates(
+  hashes: KeyHashes,
+  read: (dc: DuplicateCollector) => Promise<void>,
+): Promise<DuplicateResult> {
+  const candidates = hashes.candidates();
+  const parts = confirmParts(candidates, hashes);
+  if (parts === 0) return { count: 0, rows: 0, examples: [] };
+  const results: DuplicateResult[] = [];
+  const dc = new DuplicateCollector(candidates, 0, parts, DUPLICATE_EXAMPLES, EXAMPLES);
+  for (let part = 0; part < parts; part++) {
+    if (part > 0) dc.reset(part);
+    await read(dc);
+    results.push(dc.result());
+  }
+  return mergeDuplicates(results, DUPLICATE_EXAMPLES);
+}
+
+/** Offer a key given as text (trimmed; ignored when blank) to the confirming pass. */
+export function offerText(text: string, dc: DuplicateCollector, row: number): void {
+  if (text === '') return;
+  const [b, n] = utf8Of(text);
+  hashBytes(b, 0, n);
+  dc.offerCurrent(b, 0, n, row);
 }
 
 /** The key text of a CSV record (trimmed), '' when missing. */
 export function csvKeyText(t: CsvTokenizer, key: number): string {
   return key < t.count ? t.field(key).trim() : '';
-}
-
-/** Exact duplicates found in the confirming pass. */
-export interface DuplicateResult {
-  count: number;
-  rows: number;
-  examples: DuplicateKeyExample[];
-}
-
-/** Collects rows per key for the candidate hashes, then keeps the real duplicates. */
-export class DuplicateCollector {
-  private byKey = new Map<string, { n: number; rows: number[] }>();
-  constructor(readonly candidates: Set<number>) {}
-  offer(hash: number, text: () => string, row: number): void {
-    if (!this.candidates.has(hash)) return;
-    const k = text();
-    const e = this.byKey.get(k);
-    if (e) {
-      e.n++;
-      if (e.rows.length < EXAMPLES) e.rows.push(row);
-    } else this.byKey.set(k, { n: 1, rows: [row] });
-  }
-  result(): DuplicateResult {
-    let count = 0;
-    let rows = 0;
-    const examples: DuplicateKeyExample[] = [];
-    for (const [key, e] of this.byKey) {
-      if (e.n < 2) continue;
-      count++;
-      rows += e.n;
-      examples.push({ key, occurrences: e.n, rows: e.rows });
-    }
-    examples.sort((a, b) => a.rows[0]! - b.rows[0]!);
-    return { count, rows, examples: examples.slice(0, DUPLICATE_EXAMPLES) };
-  }
 }
 
 const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
@@ -210,6 +224,8 @@ export interface ReportInput {
   rowCount: number;
   duplicates: DuplicateResult;
   blankKeys: ProblemCount;
+  /** Keys with control or escape characters (shown escaped, e.g. ESC as \x1b). */
+  controlKeys?: ProblemCount;
   badRows: ProblemCount;
   badAmounts: ProblemCount;
   dates?: DateSummary;
@@ -238,6 +254,13 @@ export function buildValidation(r: ReportInput): PopulationValidation {
   const more = (p: ProblemCount) => (p.count > p.examples.length ? '; ...' : '');
   if (r.blankKeys.count > 0) {
     messages.push(`${plural(r.blankKeys.count, 'row')} ${r.blankKeys.count === 1 ? 'has' : 'have'} a blank key: ${w}s ${r.blankKeys.examples.map((e) => e.row).join(', ')}${more(r.blankKeys)}.`);
+  }
+  if (r.controlKeys && r.controlKeys.count > 0) {
+    const c = r.controlKeys;
+    messages.push(
+      `${plural(c.count, 'key')} ${c.count === 1 ? 'holds' : 'hold'} control or escape characters, which a screen or printout does not show as they are (shown here written out, e.g. ESC as \\x1b): ` +
+        `${c.examples.map((e) => `${w} ${e.row} "${e.value ?? ''}"`).join('; ')}${more(c)}. Check the export; such a key may hide or disguise text.`,
+    );
   }
   if (r.badRows.count > 0) {
     messages.push(`${plural(r.badRows.count, 'row')} ${r.badRows.count === 1 ? 'does' : 'do'} not match the header: ${exampleList(r.badRows.examples, false, w)}${more(r.badRows)}.`);

@@ -6,7 +6,7 @@ import { basename, resolve as resolvePath } from 'node:path';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { CsvTokenizer } from './csv-tokenizer.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
-import { buildValidation, csvKeyText, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
+import { buildValidation, confirmDuplicates, csvKeyText, Problems, RowChecker } from './checker.js';
 import { fileError, forEachChunk, openFile } from './file.js';
 import type { Reporter } from './progress.js';
 import type { CsvSource, KeyLookup, PopulationScan, ScanProgress } from './types.js';
@@ -313,24 +313,17 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
   }
   const r = resolved;
   const c = checker;
-  const candidates = c.hashes.candidates();
-  let duplicates: DuplicateResult = { count: 0, rows: 0, examples: [] };
-  if (candidates.size > 0) {
-    const dc = new DuplicateCollector(candidates);
+  const duplicates = await confirmDuplicates(c.hashes, async (dc) => {
     await walk(
       src.path,
       delimiter,
       {
-        row: (t) => {
-          const k = RowChecker.csvKey(t, r.key);
-          if (k) dc.offer(k.hash, k.text, t.line);
-        },
+        row: (t) => RowChecker.offerCsvKey(t, r.key, dc, t.line),
       },
       report,
       'checking duplicates',
     );
-    duplicates = dc.result();
-  }
+  });
   const badEncoding = new Problems();
   if (w.tok.badUtf8Records > 0) {
     badEncoding.count = w.tok.badUtf8Records;
@@ -345,6 +338,7 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
     rowCount: c.rows,
     duplicates,
     blankKeys: c.blankKeys.plain(),
+    controlKeys: c.controlKeys.plain(),
     badRows: c.badRows.plain(),
     badAmounts: c.badAmounts.plain(),
     dates,
@@ -375,6 +369,29 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
     },
     validation,
   };
+}
+
+/**
+ * The header of a CSV file as the population reader takes it: the first record that is not a
+ * blank line, read by the same tokenizer (so a quoted line break in a header name is read the
+ * same way everywhere). `undefined` when the file has no such record.
+ */
+export async function readCsvHeader(path: string, delimiterGiven?: string): Promise<{ fields: string[]; delimiter: string } | undefined> {
+  const { delimiter } = await sniff({ kind: 'csv', path, keyColumn: '-', ...(delimiterGiven !== undefined ? { delimiter: delimiterGiven } : {}) });
+  let fields: string[] | undefined;
+  await walk(
+    path,
+    delimiter,
+    {
+      header: (t) => {
+        fields = headerOf(t);
+      },
+      row: () => false,
+    },
+    { update() {}, done() {} },
+    'reading',
+  );
+  return fields ? { fields, delimiter } : undefined;
 }
 
 function rowValues(t: CsvTokenizer, names: string[]): Record<string, string> {

@@ -1,11 +1,14 @@
 import { open, type FileHandle } from 'node:fs/promises';
 import type { Stats } from 'node:fs';
-import { FileInputError } from '../errors.js';
+import { FileInputError, TolrateInputError } from '../errors.js';
+import { assertRegularFile } from '../io/read.js';
 
 /** Open a population file for reading, turning system errors into messages a user can act on. */
 export async function openFile(path: string, what = 'Population file'): Promise<{ fh: FileHandle; size: number; stats: Stats }> {
   let fh: FileHandle;
   try {
+    // A named pipe, device or socket is refused before it is opened (opening a pipe blocks).
+    assertRegularFile(path, what);
     fh = await open(path, 'r');
   } catch (e) {
     throw fileError(e, path, what);
@@ -21,7 +24,7 @@ export async function openFile(path: string, what = 'Population file'): Promise<
 }
 
 export function fileError(e: unknown, path: string, what = 'Population file'): Error {
-  if (e instanceof FileInputError) return e;
+  if (e instanceof TolrateInputError) return e;
   const code = (e as { code?: string }).code;
   if (code === 'ENOENT') return new FileInputError(path, `${what} not found: ${path}`);
   if (code === 'EISDIR') return new FileInputError(path, `${what} ${path} is a folder, not a file.`);

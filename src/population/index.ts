@@ -6,7 +6,7 @@ export { parseDate, ymdText } from './date.js';
 export { detectDelimiter, delimiterOption, delimiterName } from './csv.js';
 export { parseRanges, RANGES_COLUMN } from './ranges.js';
 export { parsePeriods, parseNonWorkingDays, describePeriods, PERIOD_FREQUENCIES, PERIOD_COLUMNS } from './periods.js';
-export { cellText } from './xlsx.js';
+export { cellText } from './cell-text.js';
 export { nearestColumn } from './columns.js';
 export { PROGRESS_DELAY_MS } from './progress.js';
 export type {

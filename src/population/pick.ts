@@ -30,6 +30,11 @@ export class RowPicker {
     return this.i >= this.want.length;
   }
 
+  /** The next position wanted, or -1 when none is left. */
+  get next(): number {
+    return this.i < this.want.length ? this.want[this.i]! : -1;
+  }
+
   /** Positions arrive in increasing order, one call per data row. */
   wants(position: number): boolean {
     return this.want[this.i] === position;

@@ -5,7 +5,9 @@ import { makeReporter } from './progress.js';
 import { rangesFindKeys, rangesRowsAt, scanRanges } from './ranges.js';
 import { periodsFindKeys, periodsRowsAt, scanPeriods } from './periods.js';
 import type { KeyLookup, PopulationRow, PopulationScan, PopulationSource, ReadOptions, ReadRowsOptions } from './types.js';
-import { findXlsxKeys, readXlsxRowsAt, scanXlsx } from './xlsx.js';
+
+/** The workbook reader, loaded only when a workbook is read (it is not needed for CSV). */
+const xlsx = () => import('./xlsx.js');
 
 function check(source: PopulationSource): void {
   if (!source || typeof source !== 'object') throw new TolrateInputError('No population source was given.', 'INVALID_SOURCE');
@@ -35,7 +37,7 @@ export async function scanPopulation(source: PopulationSource, opts: ReadOptions
   if (source.kind === 'periods') return scanPeriods(source);
   const report = makeReporter(opts);
   try {
-    return source.kind === 'csv' ? await scanCsv(source, report) : await scanXlsx(source, report);
+    return source.kind === 'csv' ? await scanCsv(source, report) : await (await xlsx()).scanXlsx(source, report);
   } finally {
     report.done();
   }
@@ -69,7 +71,7 @@ export async function readRowsAt(
   try {
     const verify = verifier(source.path, opts.expectSha256);
     const rows =
-      source.kind === 'csv' ? await readCsvRowsAt(source, picker, report, verify) : await readXlsxRowsAt(source, picker, report, verify);
+      source.kind === 'csv' ? await readCsvRowsAt(source, picker, report, verify) : await (await xlsx()).readXlsxRowsAt(source, picker, report, verify);
     return picker.result(rows);
   } finally {
     report.done();
@@ -87,7 +89,7 @@ export async function findKeys(source: PopulationSource, keys: readonly string[]
   const finder = new KeyFinder(keys);
   const report = makeReporter(opts);
   try {
-    return source.kind === 'csv' ? await findCsvKeys(source, finder, report) : await findXlsxKeys(source, finder, report);
+    return source.kind === 'csv' ? await findCsvKeys(source, finder, report) : await (await xlsx()).findXlsxKeys(source, finder, report);
   } finally {
     report.done();
   }

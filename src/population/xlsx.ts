@@ -1,75 +1,71 @@
-import { createReadStream } from 'node:fs';
 import { basename } from 'node:path';
-import { FileInputError } from '../errors.js';
-import { buildValidation, DuplicateCollector, Problems, RowChecker, type DuplicateResult } from './checker.js';
+import { buildValidation, confirmDuplicates, offerText, Problems, RowChecker } from './checker.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
-import { fileError, openFile } from './file.js';
-import { hashFileHere } from './hash.js';
-import { hashString } from './key-index.js';
+import { hashFileHere, type FileHash } from './hash.js';
 import type { KeyFinder, RowPicker } from './pick.js';
 import type { Reporter } from './progress.js';
 import type { KeyLookup, PopulationScan, ScanProgress, XlsxSource } from './types.js';
+import { Workbook } from './workbook.js';
+import type { SheetScanner } from './xlsx-scan.js';
+
+export { cellText } from './cell-text.js';
 
 /**
- * XLSX populations, read with exceljs's streaming reader so a big sheet is never held in memory.
- * The header is the first row with any value; rows follow by their worksheet row number.
- * Cell values become text as a user sees them: numbers to at most 15 significant digits (what a
- * spreadsheet shows; 1234.5599999999999 is 1234.56), dates as yyyy-mm-dd (with the time when
- * there is one), formulas as their last computed result, rich text as its plain text.
+ * XLSX populations, streamed from the zip by workbook.ts so a big sheet is never held in memory.
+ * The sheet read is the one named, else the first visible one. The header is the first row with
+ * any value; rows follow by their worksheet row number. Cell values become text as a user sees
+ * them (cell-text.ts): numbers to at most 15 significant digits, dates as yyyy-mm-dd (with the
+ * time when there is one), formulas as their last computed result, rich text as its plain text.
  */
-
-interface SheetReader {
-  name?: string;
-  iterator?: { destroy?: () => void };
-  [Symbol.asyncIterator](): AsyncGenerator<XRow>;
-}
-interface XRow {
-  number: number;
-  values: unknown;
-}
-interface BookReader {
-  model?: { sheets?: Array<{ name: string }> };
-  [Symbol.asyncIterator](): AsyncGenerator<SheetReader>;
-}
-
-function pad(n: number, w = 2): string {
-  return String(n).padStart(w, '0');
-}
-
-/** The text of a cell value as exceljs gives it. */
-export function cellText(v: unknown): string {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'string') return v;
-  if (typeof v === 'number') {
-    if (!Number.isFinite(v)) return String(v);
-    if (Number.isInteger(v) && Math.abs(v) < 1e21) return String(v);
-    return String(Number(v.toPrecision(15)));
-  }
-  if (typeof v === 'boolean') return v ? 'TRUE' : 'FALSE';
-  if (v instanceof Date) {
-    if (Number.isNaN(v.getTime())) return '';
-    const d = `${pad(v.getUTCFullYear(), 4)}-${pad(v.getUTCMonth() + 1)}-${pad(v.getUTCDate())}`;
-    const h = v.getUTCHours();
-    const m = v.getUTCMinutes();
-    const s = v.getUTCSeconds();
-    return h || m || s ? `${d} ${pad(h)}:${pad(m)}:${pad(s)}` : d;
-  }
-  if (typeof v === 'object') {
-    const o = v as Record<string, unknown>;
-    if (Array.isArray(o.richText)) return (o.richText as Array<{ text?: string }>).map((r) => r.text ?? '').join('');
-    if ('formula' in o || 'sharedFormula' in o) return cellText(o.result);
-    if ('hyperlink' in o) return cellText(o.text);
-    if ('error' in o) return String(o.error);
-    if ('text' in o) return cellText(o.text);
-  }
-  return String(v);
-}
 
 interface WalkHandlers {
   header?(values: string[], row: number): void;
-  /** A data row; `extra` when there are values beyond the last named column. */
+  /**
+   * A data row; `extra` when there are values beyond the last named column. `values` is only
+   * valid during the call and may be shorter than the header (missing cells are blank).
+   */
   row(values: string[], row: number, position: number, extra: boolean): boolean | void;
   blank?(row: number, count: number): void;
+  /**
+   * The columns (1-based mask) whose texts the data row at `position` needs; null for all.
+   * The other columns read as '' (they are still checked for being empty).
+   */
+  keep?(position: number): Uint8Array | null;
+}
+
+/** A column mask with the given 0-based columns kept. */
+function mask(width: number, cols: Array<number | undefined>): Uint8Array {
+  const m = new Uint8Array(width + 1);
+  for (const c of cols) if (c !== undefined) m[c + 1] = 1;
+  return m;
+}
+
+/**
+ * Row index kept from the last scan of a sheet: where every CHECKPOINT-th data row starts in the
+ * sheet's XML, and the row number before it. Pass 2 still unpacks the sheet from its start (a
+ * deflate stream cannot be entered in the middle) but parses only near the selected rows, which
+ * is most of the work. Used only while the file's size, modification time and inode are the ones
+ * scanned; one sheet is kept.
+ */
+const CHECKPOINT = 1024;
+interface SheetIndex {
+  key: string;
+  rows: number;
+  abs: number[];
+  prev: number[];
+}
+let lastIndex: SheetIndex | undefined;
+
+/** Forget the row index kept from the last scan (tests use it to compare both ways). */
+export function forgetSheetIndex(): void {
+  lastIndex = undefined;
+}
+
+interface WalkOptions {
+  /** Record a row index for the next pass. */
+  index?: boolean;
+  /** Use the row index: the next position wanted after each row (-1: none). */
+  seek?: () => number;
 }
 
 async function walk(
@@ -77,106 +73,89 @@ async function walk(
   h: WalkHandlers,
   report: Reporter,
   phase: ScanProgress['phase'],
+  opts: WalkOptions = {},
 ): Promise<{ rows: number; sheet: string; size: number }> {
-  const { fh, size } = await openFile(src.path);
-  await fh.close();
-  const ExcelJS = (await import('exceljs')).default;
+  const wb = await Workbook.open(src.path);
   let pos = 0;
-  const file = createReadStream(src.path, { highWaterMark: 1 << 20 });
-  let readError: unknown;
-  file.on('error', (e) => {
-    readError = e;
-  });
-  const reader = new ExcelJS.stream.xlsx.WorkbookReader(file, {
-    worksheets: 'emit',
-    sharedStrings: 'cache',
-    styles: 'cache',
-    hyperlinks: 'ignore',
-    entries: 'ignore',
-  }) as unknown as BookReader;
-  const seen: string[] = [];
-  let sheet: string | undefined;
-  let stopped = false;
   try {
-    for await (const ws of reader) {
-      const name = ws.name ?? `Sheet${seen.length + 1}`;
-      seen.push(name);
-      if (sheet !== undefined || stopped) {
-        ws.iterator?.destroy?.();
-        continue;
-      }
-      const target = src.sheet;
-      const isTarget =
-        target !== undefined
-          ? name === target || name.toLowerCase() === target.trim().toLowerCase()
-          : name === (reader.model?.sheets?.[0]?.name ?? name);
-      if (!isTarget) {
-        ws.iterator?.destroy?.();
-        continue;
-      }
-      sheet = name;
-      let width = 0;
-      let headerSeen = false;
-      let last = 0;
-      for await (const r of ws) {
-        const raw = r.values as unknown[];
-        const n = r.number;
-        let lastCol = 0;
-        for (let i = raw.length - 1; i >= 1; i--) {
-          if (cellText(raw[i]) !== '') {
-            lastCol = i;
-            break;
+    const sheet = wb.pick(src.sheet);
+    const key = `${wb.fileKey}\0${sheet.part}`;
+    const index: SheetIndex | undefined = opts.index ? { key, rows: 0, abs: [], prev: [] } : undefined;
+    const use = opts.seek && lastIndex?.key === key ? lastIndex : undefined;
+    let width = Infinity;
+    let headerSeen = false;
+    let last = 0;
+    let scanner: SheetScanner | undefined;
+    await wb.rows(
+      sheet,
+      {
+        row: (n, texts, lastCol) => {
+          if (n > last + 1) h.blank?.(last + 1, n - last - 1);
+          last = n;
+          if (lastCol === 0) {
+            h.blank?.(n, 1);
+            return;
           }
-        }
-        if (n > last + 1) h.blank?.(last + 1, n - last - 1);
-        last = n;
-        if (lastCol === 0) {
-          h.blank?.(n, 1);
-          continue;
-        }
-        if (!headerSeen) {
-          headerSeen = true;
-          width = lastCol;
-          const values: string[] = [];
-          for (let i = 1; i <= width; i++) values.push(cellText(raw[i]));
-          h.header?.(values, n);
-          continue;
-        }
-        const values: string[] = [];
-        for (let i = 1; i <= width; i++) values.push(cellText(raw[i]));
-        if ((pos & 1023) === 0) report.update({ phase, bytesDone: 0, bytesTotal: 0, rows: pos });
-        if (h.row(values, n, pos++, lastCol > width) === false) {
-          stopped = true;
-          break;
-        }
-      }
-      if (stopped) break;
-    }
-  } catch (e) {
-    if (e instanceof FileInputError) throw e;
-    const err = fileError(e, src.path);
-    if (err instanceof FileInputError) throw err;
-    throw new FileInputError(src.path, `${basename(src.path)} cannot be read as an XLSX workbook (${(e as Error).message}).`, [
-      'Open it in a spreadsheet program and save it again as .xlsx, or save the sheet as CSV UTF-8.',
-    ]);
-  } finally {
-    file.destroy();
-  }
-  if (readError) throw fileError(readError, src.path);
-  if (sheet === undefined) {
-    const names = reader.model?.sheets?.map((s) => s.name) ?? seen;
-    throw new FileInputError(
-      src.path,
-      src.sheet !== undefined ? `There is no sheet "${src.sheet}" in ${basename(src.path)}.` : `${basename(src.path)} has no worksheet.`,
-      names.length ? [`Sheets: ${names.map((s) => `"${s}"`).join(', ')}`] : [],
+          if (!headerSeen) {
+            headerSeen = true;
+            width = lastCol;
+            h.header?.(valuesUpTo(texts, width), n);
+          } else {
+            if ((pos & 1023) === 0) {
+              report.update({ phase, bytesDone: 0, bytesTotal: 0, rows: pos });
+              if (index && pos % CHECKPOINT === 0) {
+                index.abs.push(scanner!.rowAbs);
+                index.prev.push(scanner!.rowPrev);
+              }
+            }
+            // The scanner's own array (valid during the call; it may be shorter than the header).
+            if (h.row(texts, n, pos++, lastCol > width) === false) return false;
+          }
+          if (use) {
+            const next = opts.seek!();
+            const c = next >= 0 ? Math.floor(next / CHECKPOINT) : -1;
+            if (c >= 0 && c < use.abs.length && c * CHECKPOINT > pos) {
+              scanner!.skip(use.abs[c]!, use.prev[c]!);
+              pos = c * CHECKPOINT;
+              last = use.prev[c]!;
+            }
+          }
+        },
+      },
+      (sc) => {
+        scanner = sc;
+        sc.width = width;
+        sc.keep = headerSeen && h.keep ? h.keep(pos) : null;
+      },
     );
+    report.update({ phase, bytesDone: wb.size, bytesTotal: wb.size, rows: pos });
+    if (index) {
+      index.rows = pos;
+      lastIndex = index;
+    }
+    return { rows: use && pos < use.rows ? use.rows : pos, sheet: sheet.name, size: wb.size };
+  } finally {
+    await wb.close();
   }
-  report.update({ phase, bytesDone: size, bytesTotal: size, rows: pos });
-  return { rows: pos, sheet, size };
+}
+
+function valuesUpTo(texts: string[], width: number): string[] {
+  const out = new Array<string>(width);
+  for (let i = 0; i < width; i++) out[i] = texts[i] ?? '';
+  return out;
 }
 
 async function sha256File(path: string): Promise<string> {
-  return (await hashFileHere(path)).sha256;
+  return (await hashFile(path)).sha256;
+}
+
+/**
+ * The SHA-256 of a workbook, on this thread beside the first pass: a workbook is compressed, so
+ * hashing it is a small part of the work, and a worker thread would cost more memory (measured:
+ * 20-40 MiB of peak for a 28 MB workbook) than the time it saves.
+ */
+async function hashFile(path: string): Promise<FileHash> {
+  return hashFileHere(path);
 }
 
 
@@ -189,15 +168,18 @@ function valuesOf(names: string[], values: string[]): Record<string, string> {
 }
 
 export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<PopulationScan> {
-  const sha256 = await sha256File(src.path);
+  const hashing = hashFile(src.path);
+  hashing.catch(() => undefined);
   let r: ResolvedColumns | undefined;
   let c: RowChecker | undefined;
+  let keepMask: Uint8Array | undefined;
   const blankRows = new Problems();
   const w = await walk(
     src,
     {
       header: (values) => {
         r = resolveColumns(src, values);
+        keepMask = mask(values.length, [r.key, r.amount, r.date]);
         c = new RowChecker({
           width: r.names.length,
           key: r.key,
@@ -208,13 +190,16 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
         });
       },
       row: (values, row, _p, extra) => c!.textRow(values, row, extra),
+      keep: () => keepMask!,
       blank: (row, count) => {
         for (let i = 0; i < count; i++) blankRows.add(row + i, 'blank row');
       },
     },
     report,
     'reading',
+    { index: true },
   );
+  const sha256 = (await hashing).sha256;
   const file = basename(src.path);
   const base = { sha256, format: 'xlsx' as const, sheet: w.sheet, bytes: w.size, file };
   if (!r || !c) {
@@ -244,23 +229,18 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
   }
   const rr = r;
   const cc = c;
-  const candidates = cc.hashes.candidates();
-  let duplicates: DuplicateResult = { count: 0, rows: 0, examples: [] };
-  if (candidates.size > 0) {
-    const dc = new DuplicateCollector(candidates);
+  const keyOnly = mask(rr.names.length, [rr.key]);
+  const duplicates = await confirmDuplicates(cc.hashes, async (dc) => {
     await walk(
       { ...src, sheet: w.sheet },
       {
-        row: (values, row) => {
-          const k = (values[rr.key] ?? '').trim();
-          if (k !== '') dc.offer(hashString(k), () => k, row);
-        },
+        row: (values, row) => offerText((values[rr.key] ?? '').trim(), dc, row),
+        keep: () => keyOnly,
       },
       report,
       'checking duplicates',
     );
-    duplicates = dc.result();
-  }
+  });
   const dates = cc.dates?.summary();
   const amountColumn = rr.amount !== undefined ? rr.names[rr.amount] : undefined;
   const dateColumn = rr.date !== undefined ? rr.names[rr.date] : undefined;
@@ -282,7 +262,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
     validation: buildValidation({
       rowCount: cc.rows,
       duplicates,
-      blankKeys: cc.blankKeys.plain(),
+      blankKeys: cc.blankKeys.plain(), controlKeys: cc.controlKeys.plain(),
       badRows: cc.badRows.plain(),
       badAmounts: cc.badAmounts.plain(),
       dates,
@@ -304,6 +284,7 @@ export async function readXlsxRowsAt(
 ): Promise<number> {
   if (verify) verify(await sha256File(src.path));
   let r: ResolvedColumns | undefined;
+  const none = new Uint8Array(0);
   const w = await walk(
     src,
     {
@@ -316,9 +297,11 @@ export async function readXlsxRowsAt(
         }
         return picker.finished ? false : undefined;
       },
+      keep: (position) => (picker.wants(position) ? null : none),
     },
     report,
     'fetching rows',
+    { seek: () => picker.next },
   );
   return w.rows;
 }
@@ -340,4 +323,23 @@ export async function findXlsxKeys(src: XlsxSource, finder: KeyFinder, report: R
     'finding keys',
   );
   return finder.result(w.rows);
+}
+
+/** The header of a sheet (the named one, else the first visible one): the first row with any value. */
+export async function readXlsxHeader(path: string, sheet?: string): Promise<{ sheet: string; values: string[] | undefined }> {
+  const wb = await Workbook.open(path);
+  try {
+    const info = wb.pick(sheet);
+    let values: string[] | undefined;
+    await wb.rows(info, {
+      row: (_n, texts, lastCol) => {
+        if (lastCol === 0) return;
+        values = valuesUpTo(texts, lastCol);
+        return false;
+      },
+    });
+    return { sheet: info.name, values };
+  } finally {
+    await wb.close();
+  }
 }

@@ -17,7 +17,8 @@
  *  8. optionally the memo: it carries the same figures as the workpaper.
  */
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
-import { accessSync, constants, readFileSync } from 'node:fs';
+import { accessSync, constants } from 'node:fs';
+import { readRegularFile } from '../io/read.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
 import { conclusionProblems, evaluate, evaluationDifferences, evidenceDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
@@ -237,6 +238,10 @@ function checkSampleSize(wp: Workpaper): Check {
       if (p.recorded.sampleSize !== r.sampleSize) diffs.push(`${p.label}: recorded sample size ${p.recorded.sampleSize}, recomputed ${r.sampleSize}`);
       if (p.recorded.expectedDeviations !== r.expectedDeviations) diffs.push(`${p.label}: recorded expected deviations ${p.recorded.expectedDeviations}, recomputed ${r.expectedDeviations}`);
       if (!close(p.recorded.achievedRisk, r.achievedRisk)) diffs.push(`${p.label}: recorded planned risk ${p.recorded.achievedRisk}, recomputed ${r.achievedRisk}`);
+      if (p.recorded.acceptanceNumber !== undefined && p.recorded.acceptanceNumber !== r.acceptanceNumber) diffs.push(`${p.label}: recorded acceptance number ${p.recorded.acceptanceNumber}, recomputed ${r.acceptanceNumber}`);
+      if (p.recorded.underrelianceRisk !== undefined && !close(p.recorded.underrelianceRisk, r.underrelianceRisk)) {
+        diffs.push(`${p.label}: recorded risk of underreliance ${p.recorded.underrelianceRisk}, recomputed ${r.underrelianceRisk}`);
+      }
     }
     if (a.finitePopulationCorrection && r.finitePopulationCorrection && p === planned[0]) {
       const f = a.finitePopulationCorrection;
@@ -315,12 +320,7 @@ export function stateAt(wp: Workpaper, seq: number): Workpaper {
  * template, and the two compared section by section and table cell by table cell.
  */
 async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string, templateDir?: string, label = memoPath): Promise<Check> {
-  let data: Buffer;
-  try {
-    data = readFileSync(memoPath);
-  } catch {
-    throw new FileInputError(memoPath, `Cannot read the memo ${memoPath}.`);
-  }
+  const data = readRegularFile(memoPath, 'The memo');
   const diffs: string[] = [];
   const sha = createHash('sha256').update(data).digest('hex');
   const records = wp.memos ?? [];
@@ -346,7 +346,7 @@ async function checkMemo(wp: Workpaper, memoPath: string, workpaperPath: string,
   const state = against && against.logSeq <= wp.log.length ? stateAt(wp, against.logSeq) : wp;
   const { loadTemplate, renderMemo } = await import('../memo/index.js');
   const template = await loadTemplate(tpl);
-  const expected = await readMemoBlocks(await renderMemo(state, { workpaperPath, template }), 'the memo rendered from the workpaper');
+  const expected = await readMemoBlocks(await renderMemo(state, { workpaperPath, template, operatingCharacteristic: against?.operatingCharacteristic === true }), 'the memo rendered from the workpaper');
   const found = compareMemoBlocks(blocks, expected);
   for (const d of found.slice(0, 60)) diffs.push(`${d.section}, ${d.where}: the memo has "${d.memo}", the workpaper gives "${d.expected}"`);
   if (found.length > 60) diffs.push(`... and ${found.length - 60} more differences`);

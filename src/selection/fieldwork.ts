@@ -1,7 +1,9 @@
-import { randomBytes } from 'node:crypto';
-import { mkdir, rename, rm, writeFile } from 'node:fs/promises';
-import { basename, dirname, extname, join } from 'node:path';
-import { FileInputError, TolrateInputError } from '../errors.js';
+import { mkdir } from 'node:fs/promises';
+import { dirname, extname } from 'node:path';
+import { TolrateInputError } from '../errors.js';
+import { writeFileSafely } from '../io/write.js';
+import { xmlText } from '../io/text.js';
+import { zipXmlProblems } from '../io/xml.js';
 import type { PopulationRow } from '../population/types.js';
 import type { Selection } from './types.js';
 
@@ -19,7 +21,8 @@ import type { Selection } from './types.js';
  * typed), the header frozen and filtered, columns sized to their content, a pick list (data
  * validation) on every column given one in `pickLists`, and the notes, if any, on a second sheet
  * "Instructions".
- * Either is written to a temporary file beside the target and renamed over it.
+ * Either is written through the one writer (src/io/write.ts): a temporary file beside the target,
+ * every byte checked and flushed, then renamed over it.
  */
 
 export const SEQ_COLUMN = 'Seq';
@@ -102,7 +105,10 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
   const ExcelJS = (await import('exceljs')).default;
   const wb = new ExcelJS.Workbook();
   wb.creator = 'tolrate';
-  const { header, rows } = fieldworkTable(sheet);
+  // XLSX is XML: characters XML 1.0 forbids are dropped from every cell (src/io/text.ts).
+  const table = fieldworkTable(sheet);
+  const header = table.header.map(xmlText);
+  const rows = table.rows.map((r) => r.map(xmlText));
   // The columns to fill come after ours (Seq, Role, Row, Key) and the population's.
   const fill = 4 + sheet.columns.length;
   const ws = wb.addWorksheet(FIELDWORK_SHEET, { views: [{ state: 'frozen', ySplit: 1, xSplit: 4 }] });
@@ -112,7 +118,7 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
   for (const r of rows) ws.addRow(r);
   ws.autoFilter = { from: { row: 1, column: 1 }, to: { row: 1, column: header.length } };
   for (let c = fill; c < header.length; c++) {
-    const list = sheet.pickLists?.[header[c]!];
+    const list = sheet.pickLists?.[table.header[c]!];
     for (let r = 2; r <= rows.length + 1; r++) {
       const cell = ws.getCell(r, c + 1);
       cell.numFmt = '@';
@@ -130,7 +136,7 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
     }
   }
   ws.columns.forEach((col, i) => {
-    const list = sheet.pickLists?.[header[i]!];
+    const list = sheet.pickLists?.[table.header[i]!];
     // A code column is as wide as its longest code (its header wraps); others fit their content.
     const longest = list
       ? Math.max(...list.map((v) => v.length), ...header[i]!.split(/\s+/).map((w) => w.length))
@@ -140,28 +146,20 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
   if (sheet.notes?.length) {
     const about = wb.addWorksheet(INSTRUCTIONS_SHEET);
     about.getColumn(1).width = 110;
-    for (const line of sheet.notes) about.addRow([line]).alignment = { wrapText: true };
+    for (const line of sheet.notes) about.addRow([xmlText(line)]).alignment = { wrapText: true };
     about.getRow(1).font = { bold: true };
   }
-  return Buffer.from(await wb.xlsx.writeBuffer());
+  const buf = Buffer.from(await wb.xlsx.writeBuffer());
+  // The cells were cleaned above; a sheet whose XML does not parse would be tolrate's own fault.
+  const problems = await zipXmlProblems(buf);
+  if (problems.length) throw new Error(`the fieldwork sheet's XML does not parse, so it was not written: ${problems.slice(0, 3).join('; ')}`);
+  return buf;
 }
 
-/** Write a file by a temporary file in the same folder and a rename, so it is never half written. */
-export async function writeAtomic(path: string, data: string | Buffer): Promise<void> {
-  const dir = dirname(path);
-  await mkdir(dir, { recursive: true }).catch(() => undefined);
-  const tmp = join(dir, `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
-  try {
-    await writeFile(tmp, data);
-    await rename(tmp, path);
-  } catch (e) {
-    await rm(tmp, { force: true }).catch(() => undefined);
-    const code = (e as { code?: string }).code;
-    if (code === 'ENOENT' || code === 'EACCES' || code === 'EPERM' || code === 'EISDIR' || code === 'ENOTDIR' || code === 'EROFS') {
-      throw new FileInputError(path, `Cannot write ${path} (${code}).`);
-    }
-    throw e;
-  }
+/** Write a file through the one writer (src/io/write.ts), creating its folder first. */
+export async function writeAtomic(path: string, data: string | Buffer, what = 'the fieldwork sheet'): Promise<void> {
+  await mkdir(dirname(path), { recursive: true }).catch(() => undefined);
+  writeFileSafely(path, data, { what });
 }
 
 /** Write the fieldwork sheet (CSV, or XLSX when the path ends in .xlsx). */

@@ -1,4 +1,4 @@
-import { incompleteBetaPair } from './incomplete-beta-pair.js';
+import { incompleteBeta } from './incomplete-beta.js';
 import { logBinomialDensity } from './log-binomial-density.js';
 import { normalQuantile } from './normal-quantile.js';
 import { checkPositive, checkProbability } from './validate.js';
@@ -6,7 +6,7 @@ import { checkPositive, checkProbability } from './validate.js';
 /**
  * The quantile of the beta distribution: the x with I_x(a, b) = prob.
  *
- * Method: Newton's method on the regularized incomplete beta function ({@link incompleteBetaPair})
+ * Method: Newton's method on the regularized incomplete beta function ({@link incompleteBeta})
  * safeguarded by bisection on a bracket that always contains the root, from a normal-approximation
  * start; iterated until the step is below 1e-15 relative (about the last bit). For prob above ½
  * the complement 1 − I is matched against 1 − prob, so an upper tail such as 0.05 is solved with
@@ -23,7 +23,7 @@ export function betaInv(prob: number, a: number, b: number): number {
   const target = useUpper ? 1 - prob : prob;
   // g(x) increases with x and is 0 at the root.
   const g = (x: number): number => {
-    const [lower, upper] = incompleteBetaPair(x, a, b);
+    const [lower, upper] = incompleteBeta(x, a, b);
     return useUpper ? target - upper : lower - target;
   };
   const density = (x: number): number =>

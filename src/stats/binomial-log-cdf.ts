@@ -5,11 +5,11 @@ import { checkCount, checkInteger, checkProbability } from './validate.js';
  * log P(X ≤ k) for X ~ Binomial(n, p), in log space so that tails such as 1e-54 or 1e-300 keep
  * full relative precision.
  *
- * Method: the term at k by Loader's saddle-point expansion (C. Loader, 2000), then the lower
- * terms by the ratio P(i−1)/P(i) = i·q / ((n−i+1)·p), summed relative to the term at k until
- * they no longer change the sum; log CDF = log P(k) + log1p(Σ). When k lies above the mean the
- * tails are swapped (P(X ≤ k) = 1 − P(n − X ≤ n − k − 1)) so the summed terms always decrease.
- * The same scheme as phyper/pdhyper in R's nmath, applied to the binomial.
+ * Method: the term at k by Loader's expansion (C. Loader, 2000; {@link logBinomialDensity}), then
+ * the lower terms by the ratio of successive probabilities P(i−1)/P(i) = i·q / ((n−i+1)·p),
+ * summed relative to the term at k until they no longer change the sum; log CDF = log P(k) +
+ * log1p(Σ). When k lies above the mean the tails are swapped (P(X ≤ k) = 1 − P(n − X ≤ n − k − 1))
+ * so the summed terms always decrease (common practice, no single source).
  */
 export function binomialLogCdf(k: number, n: number, p: number): number {
   checkInteger('k', k);

@@ -39,3 +39,10 @@ export const DEFAULT_EXPECTED_RATES: readonly number[] = [
   0, 0.0025, 0.005, 0.0075, 0.01, 0.0125, 0.015, 0.0175, 0.02, 0.0225, 0.025, 0.0275, 0.03, 0.0325,
   0.035, 0.0375, 0.04, 0.05, 0.06, 0.07,
 ];
+
+/**
+ * Sample sizes above this get a remark: tests of controls rarely use more items (common
+ * practice, no single source; the published attribute sampling tables mark such cells as too
+ * large to be cost-effective for most audits).
+ */
+export const LARGE_SAMPLE_SIZE = 200;

@@ -4,7 +4,7 @@ import { withinRisk } from './within-risk.js';
 
 /**
  * The statistical decision for an attribute: the results support the planned reliance iff the
- * achieved risk of overreliance is at most β = 1 − confidence (DESIGN §3), compared with the
+ * achieved risk of overreliance is at most β = 1 − confidence (README, "How the figures are computed"), compared with the
  * relative tolerance 1e-12 ({@link withinRisk}) so that an exact tie counts as achieved.
  * Equivalently the upper deviation limit does not exceed the tolerable rate. Qualitative findings
  * (an intentional deviation, for one) can still override it; that judgement is the practitioner's.

@@ -1,23 +1,29 @@
 import { NoPracticalSizeError } from '../errors.js';
 import { MAX_SAMPLE_SIZE } from './constants.js';
-import { ceilGuarded } from './expected-deviations.js';
 import { resolveModel } from './resolve-model.js';
 import { riskFunction } from './risk-function.js';
-import type { ExtensionSizeOptions } from './types.js';
+import { tolerableCount } from './tolerable-count.js';
+import type { ExtensionSizeOptions, Model } from './types.js';
 import { asPercent, checkConfidence, checkOptions, checkRate, checkSampleCounts } from './validate.js';
 import { withinRisk } from './within-risk.js';
 
 /**
- * The extension of a sample: after k deviations in n items, the fewest additional items m ≥ 0
- * such that, if none of them deviates, the risk of overreliance at n + m items and k deviations
- * is at most β = 1 − confidence (DESIGN §3). 0 when the results already support the reliance.
+ * The single-stage extension figure: after k deviations in n items, the fewest additional items
+ * m ≥ 0 such that, if none of them deviates, the risk of overreliance at n + m items and k
+ * deviations is at most β = 1 − confidence (README, "How the figures are computed"). 0 when the
+ * results already support the reliance.
+ *
+ * This figure treats the extended sample as one sample planned in advance. It was not: the
+ * extension depends on the first look, and the exact risk of the procedure actually followed is
+ * higher ({@link extensionRisk} computes it). Show it only as a labelled figure beside that risk.
  *
  * Method: the risk at a fixed k falls as the sample grows, so the smallest total is found by
- * bisection on n + m, up to N for the hypergeometric model and up to {@link MAX_SAMPLE_SIZE}
- * (or N when known) otherwise.
+ * bisection on n + m. The total never exceeds the population when its size is known (whatever
+ * the model: the extension is at most the untested remainder N − n), and {@link MAX_SAMPLE_SIZE}
+ * otherwise. No extension is offered when every tested item deviated (k = n).
  *
  * @throws SamplingInputError for an out-of-range input (naming the parameter).
- * @throws NoPracticalSizeError when no extension within the cap is enough.
+ * @throws NoPracticalSizeError when no extension within the cap is enough, or k = n.
  */
 export function extensionSize(options: ExtensionSizeOptions): number {
   checkOptions(options, 'extensionSize');
@@ -28,28 +34,37 @@ export function extensionSize(options: ExtensionSizeOptions): number {
   checkSampleCounts(n, k, populationSize);
   const beta = 1 - confidence;
   const risk = riskFunction(model, tolerableRate, populationSize);
-  if (withinRisk(risk(n, k), beta)) return 0;
-  const cap =
-    model === 'hypergeometric'
-      ? populationSize!
-      : populationSize === undefined
-        ? MAX_SAMPLE_SIZE
-        : Math.min(MAX_SAMPLE_SIZE, populationSize);
-  if (cap <= n || !withinRisk(risk(cap, k), beta)) {
-    let why: string;
-    if (model === 'hypergeometric' && k >= Math.min(populationSize!, ceilGuarded(tolerableRate * populationSize!))) {
-      why = `${k} deviations already reach the tolerable number of deviations in the population (${Math.min(populationSize!, ceilGuarded(tolerableRate * populationSize!))} of ${populationSize})`;
-    } else if (model === 'hypergeometric') {
-      why = `even testing all ${populationSize} units would not be enough`;
-    } else {
-      why = `the sample would have to grow beyond ${cap.toLocaleString('en-US')} items`;
-    }
-    throw new NoPracticalSizeError(
-      `No practical extension: after ${k} deviation${k === 1 ? '' : 's'} in ${n} items, supporting a tolerable rate of ` +
-        `${asPercent(tolerableRate)} at ${asPercent(confidence)} confidence (${model} model) is not practical: ${why}. ` +
-        'Consider testing a compensating control or reducing the planned reliance.',
-    );
+  const cap = extensionCap(model, populationSize);
+  const m = extensionOf(risk, n, k, beta, cap);
+  if (m !== null) return m;
+  let why: string;
+  const tolerable = populationSize === undefined ? undefined : tolerableCount(populationSize, tolerableRate);
+  if (k === n) {
+    why = `every item tested deviated; an extension cannot show that the control operates (test a compensating control or do not rely on it)`;
+  } else if (model === 'hypergeometric' && k >= tolerable!) {
+    why = `${k} deviations already reach the tolerable number of deviations in the population (${tolerable} of ${populationSize})`;
+  } else if (populationSize !== undefined && cap === populationSize) {
+    why = `even testing all ${populationSize.toLocaleString('en-US')} units (${(populationSize - n).toLocaleString('en-US')} untested) would not be enough`;
+  } else {
+    why = `the sample would have to grow beyond ${cap.toLocaleString('en-US')} items`;
   }
+  throw new NoPracticalSizeError(
+    `No practical extension: after ${k} deviation${k === 1 ? '' : 's'} in ${n} items, supporting a tolerable rate of ` +
+      `${asPercent(tolerableRate)} at ${asPercent(confidence)} confidence (${model} model) is not practical: ${why}. ` +
+      'Consider testing a compensating control or reducing the planned reliance.',
+  );
+}
+
+/** The largest total an extension may reach: N when known (any model), else MAX_SAMPLE_SIZE. Internal. */
+export function extensionCap(model: Model, populationSize: number | undefined): number {
+  if (populationSize === undefined) return MAX_SAMPLE_SIZE;
+  return model === 'hypergeometric' ? populationSize : Math.min(MAX_SAMPLE_SIZE, populationSize);
+}
+
+/** The extension m (0 when already supported), or null when none within the cap (or k = n). Internal. */
+export function extensionOf(risk: (n: number, k: number) => number, n: number, k: number, beta: number, cap: number): number | null {
+  if (withinRisk(risk(n, k), beta)) return 0;
+  if (k >= n || cap <= n || !withinRisk(risk(cap, k), beta)) return null;
   let lo = n + 1;
   let hi = cap;
   while (lo < hi) {

@@ -1,4 +1,4 @@
-import { incompleteGammaPair } from './incomplete-gamma-pair.js';
+import { incompleteGamma } from './incomplete-gamma.js';
 import { logPoissonDensity } from './log-poisson-density.js';
 import { normalQuantile } from './normal-quantile.js';
 import { checkPositive, checkProbability } from './validate.js';
@@ -7,7 +7,7 @@ import { checkPositive, checkProbability } from './validate.js';
  * The quantile of the gamma distribution with shape a and scale 1: the x with P(a, x) = prob.
  *
  * Method: Newton's method on the regularized incomplete gamma function
- * ({@link incompleteGammaPair}) safeguarded by bisection on an expanding bracket, from the
+ * ({@link incompleteGamma}) safeguarded by bisection on an expanding bracket, from the
  * Wilson–Hilferty start x ≈ a·(1 − 1/(9a) + z/(3√a))³ (E. B. Wilson and M. M. Hilferty, PNAS 17
  * (1931)); iterated to about the last bit. Above ½ the upper tail Q is matched against 1 − prob.
  * The Poisson ("factor") upper limit is GammaInv(c; k + 1)/n; for k = 0 at 95% the factor is
@@ -21,7 +21,7 @@ export function gammaInv(prob: number, a: number): number {
   const useUpper = prob > 0.5;
   const target = useUpper ? 1 - prob : prob;
   const g = (x: number): number => {
-    const [lower, upper] = incompleteGammaPair(x, a);
+    const [lower, upper] = incompleteGamma(x, a);
     return useUpper ? target - upper : lower - target;
   };
   // density x^(a−1) e^(−x) / Γ(a) = (a/x) · xᵃ e^(−x) / Γ(a + 1)

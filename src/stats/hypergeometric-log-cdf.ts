@@ -4,9 +4,9 @@ import { checkHypergeometric, checkInteger } from './validate.js';
 /**
  * log P(X ≤ k) for X ~ Hypergeometric(N, M, n), exact for N up to 10,000,000 and beyond.
  *
- * Method: phyper/pdhyper of R's nmath — the term at k by Loader's density
- * ({@link hypergeometricLogPmf}), the lower terms by the ratio
- * P(i−1)/P(i) = i·(N−M−n+i) / ((n−i+1)·(M−i+1)), summed relative to the term at k until they no
+ * Method: the term at k by {@link hypergeometricLogPmf}, the lower terms by the ratio of
+ * successive probabilities P(i−1)/P(i) = i·(N−M−n+i) / ((n−i+1)·(M−i+1)) (it follows from the
+ * counting formula C(M, i)·C(N−M, n−i)/C(N, n); common practice, no single source), summed relative to the term at k until they no
  * longer change the sum. When k lies above the mean n·M/N the tails are swapped (deviations and
  * conforming units exchange roles) so the summed terms always decrease; the cost is a few times
  * the standard deviation of X, not k.

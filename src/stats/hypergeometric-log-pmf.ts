@@ -5,9 +5,11 @@ import { checkHypergeometric, checkInteger } from './validate.js';
  * log P(X = k) for X ~ Hypergeometric(N, M, n): k deviations in a sample of n drawn without
  * replacement from N units of which M are deviations.
  *
- * Method: the ratio of three binomial densities at p = n/N (C. Loader, "Fast and Accurate
- * Computation of Binomial Probabilities", 2000; dhyper in R's nmath):
- * P(k) = b(k; M, p)·b(n−k; N−M, p) / b(n; N, p), each by {@link logBinomialDensity}. Full
+ * Method: the ratio of three binomial densities (C. Loader, "Fast and Accurate Computation of
+ * Binomial Probabilities", 2000): for any 0 < p < 1,
+ * C(M, k)·C(N−M, n−k)/C(N, n) = b(k; M, p)·b(n−k; N−M, p) / b(n; N, p), because the powers of p
+ * and q = 1 − p cancel; p = n/N puts each density near its mode. Each is by
+ * {@link logBinomialDensity}. Full
  * relative precision for N in the tens of millions, where differences of log-factorials would
  * lose about eight digits.
  */

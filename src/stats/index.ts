@@ -1,7 +1,8 @@
 /**
  * The statistics engine of tolrate: exact attribute sampling — sample sizes, upper deviation
- * limits, risks of overreliance, sample extensions and planning tables — and the distribution
- * functions they rest on. Pure functions; rates are fractions (0.06 means 6%).
+ * limits, risks of overreliance and underreliance, single- and two-stage plans and their
+ * operating characteristics, sample extensions with the risk of the procedure followed, limits
+ * for a population tested in parts, planning tables — and the distribution functions they rest on. Pure functions; rates are fractions (0.06 means 6%).
  */
 export type {
   DecisionOptions,
@@ -18,12 +19,32 @@ export type {
   SampleSizeResult,
   UpperLimitOptions,
   UpperLimitResult,
+  AcceptanceNumberOptions,
+  BothRisksPlanOptions,
+  BothRisksPlanResult,
+  OperatingCharacteristicOptions,
+  OperatingCharacteristicPoint,
+  PlanRisks,
+  PlanRisksOptions,
+  SingleStagePlan,
+  TwoStagePlan,
+  TwoStagePlanOptions,
+  TwoStagePlanResult,
+  UnderrelianceRiskOptions,
+  ExtensionRiskOptions,
+  ExtensionRiskResult,
+  CombinedUpperLimitOptions,
+  CombinedUpperLimitResult,
+  PopulationPart,
+  LimitDecisionOptions,
+  LimitDecisionResult,
 } from './types.js';
 export { MODELS } from './types.js';
 export {
   CEIL_GUARD,
   DEFAULT_EXPECTED_RATES,
   DEFAULT_TOLERABLE_RATES,
+  LARGE_SAMPLE_SIZE,
   MAX_SAMPLE_SIZE,
   RISK_TOLERANCE,
 } from './constants.js';
@@ -38,6 +59,16 @@ export { withinRisk } from './within-risk.js';
 export { resolveModel } from './resolve-model.js';
 export { expectedDeviations } from './expected-deviations.js';
 export { tolerableDeviations } from './tolerable-deviations.js';
+export { acceptanceNumber } from './acceptance-number.js';
+export { underrelianceRisk } from './underreliance-risk.js';
+export { planRisks } from './plan-risks.js';
+export { operatingCharacteristic } from './operating-characteristic.js';
+export { twoStagePlan } from './two-stage-plan.js';
+export { extensionRisk } from './extension-risk.js';
+export { planForBothRisks } from './both-risks-plan.js';
+export { combinedUpperLimit } from './combined-upper-limit.js';
+export { limitDecision } from './limit-decision.js';
+export { sizeRemark } from './size-remark.js';
 
 export { binomialPmf } from './binomial-pmf.js';
 export { binomialLogPmf } from './binomial-log-pmf.js';

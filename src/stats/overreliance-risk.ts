@@ -5,7 +5,7 @@ import { checkOptions, checkRate, checkSampleCounts } from './validate.js';
 
 /**
  * The achieved risk of overreliance: the probability of finding k or fewer deviations in a
- * sample of n if the population deviation rate were the tolerable rate (DESIGN §3).
+ * sample of n if the population deviation rate were the tolerable rate (README, "How the figures are computed").
  *
  * Method: the model's CDF at k — binomial P(X ≤ k | n, TDR); hypergeometric
  * P(X ≤ k | N, ⌈TDR·N⌉, n); Poisson P(Y ≤ k | n·TDR) — each summed in log space from Loader's

@@ -2,6 +2,7 @@ import { SamplingInputError } from '../errors.js';
 import { DEFAULT_EXPECTED_RATES, DEFAULT_TOLERABLE_RATES, MAX_SAMPLE_SIZE } from './constants.js';
 import { resolveModel } from './resolve-model.js';
 import { searchSize } from './sample-size.js';
+import { sizeRemark } from './size-remark.js';
 import type { PlanningTableCell, PlanningTableOptions, PlanningTableResult, PlanningTableRow } from './types.js';
 import { checkConfidence, checkOptions, checkRate } from './validate.js';
 
@@ -48,7 +49,10 @@ export function planningTable(options: PlanningTableOptions): PlanningTableResul
           note: `not practical: no sample size within ${cap}`,
         };
       }
-      return { tolerableRate, expectedRate, sampleSize: found.sampleSize, expectedDeviations: found.expectedDeviations };
+      const cell: PlanningTableCell = { tolerableRate, expectedRate, sampleSize: found.sampleSize, expectedDeviations: found.expectedDeviations };
+      const remark = sizeRemark(found.sampleSize);
+      if (remark) cell.sizeRemark = remark;
+      return cell;
     }),
   }));
   const result: PlanningTableResult = { confidence, model, tolerableRates, expectedRates, rows };

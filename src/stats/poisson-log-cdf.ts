@@ -7,7 +7,8 @@ import { checkInteger, checkNumber } from './validate.js';
  *
  * Method: the term at k by Loader's expansion (C. Loader, 2000), then the lower terms by the
  * ratio P(i−1)/P(i) = i/λ, summed relative to the term at k until they no longer change the sum.
- * Above the mean, 1 − the upper tail, whose terms P(i+1)/P(i) = λ/(i+1) decrease from k + 1.
+ * Above the mean, 1 − the upper tail, whose terms P(i+1)/P(i) = λ/(i+1) decrease from k + 1
+ * (summing by the ratio of successive terms: common practice, no single source).
  */
 export function poissonLogCdf(k: number, lambda: number): number {
   checkInteger('k', k);

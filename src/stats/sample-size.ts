@@ -1,7 +1,11 @@
 import { NoPracticalSizeError } from '../errors.js';
 import { MAX_SAMPLE_SIZE } from './constants.js';
 import { ceilGuarded } from './expected-deviations.js';
+import { tolerableCount } from './tolerable-count.js';
+import { acceptanceNumberOf } from './acceptance-number.js';
+import { cdfAt, drawAt } from './plan-draw.js';
 import { resolveModel } from './resolve-model.js';
+import { sizeRemark } from './size-remark.js';
 import { riskFunction } from './risk-function.js';
 import { smallestSampleSize } from './smallest-sample-size.js';
 import type { Model, SampleSizeOptions, SampleSizeResult } from './types.js';
@@ -15,7 +19,7 @@ import {
 
 /**
  * The statistical sample size for a test of controls: the smallest n whose risk of overreliance
- * at k_e = ⌈n·EDR⌉ deviations is at most β = 1 − confidence (DESIGN §3; the convention of the
+ * at k_e = ⌈n·EDR⌉ deviations is at most β = 1 − confidence (README, "How the figures are computed"; the convention of the
  * AICPA Audit Sampling guide's attribute sampling tables).
  *
  * Method: exact search over n ({@link smallestSampleSize}) with the model's CDF — binomial
@@ -23,6 +27,9 @@ import {
  * P(Y ≤ k_e | n·TDR). Binomial and Poisson sizes are searched up to {@link MAX_SAMPLE_SIZE}
  * (and N when known). When N is known the textbook finite population correction
  * n' = ⌈n / (1 + n/N)⌉ of the binomial size is reported beside the result, never in its place.
+ * The result also gives the plan's acceptance number (the most deviations that still support
+ * reliance at n, ≥ k_e), its risk of underreliance at the expected rate
+ * ({@link underrelianceRisk}) and, above 200 items, a remark on the size ({@link sizeRemark}).
  *
  * @throws SamplingInputError for an out-of-range input (naming the parameter).
  * @throws NoPracticalSizeError when no size within the cap achieves the planned risk.
@@ -45,7 +52,17 @@ export function sampleSize(options: SampleSizeOptions): SampleSizeResult {
     confidence,
     tolerableRate,
     expectedRate,
+    acceptanceNumber: found.expectedDeviations,
+    underrelianceRisk: 0,
   };
+  const risk = riskFunction(model, tolerableRate, populationSize);
+  result.acceptanceNumber = acceptanceNumberOf(risk, found.sampleSize, 1 - confidence) ?? found.expectedDeviations;
+  result.underrelianceRisk = Math.max(
+    0,
+    1 - cdfAt(drawAt(model, expectedRate, populationSize, 'floor'), found.sampleSize, result.acceptanceNumber),
+  );
+  const remark = sizeRemark(found.sampleSize);
+  if (remark) result.sizeRemark = remark;
   if (populationSize !== undefined) {
     result.populationSize = populationSize;
     const binomial =
@@ -75,11 +92,11 @@ export function searchSize(
   const risk = riskFunction(model, tolerableRate, populationSize);
   if (model === 'hypergeometric') {
     const N = populationSize!;
-    const tolerable = Math.min(N, ceilGuarded(tolerableRate * N));
-    return smallestSampleSize(risk, expectedRate, beta, N, tolerable);
+    const tolerable = tolerableCount(N, tolerableRate);
+    return smallestSampleSize(risk, expectedRate, beta, N, tolerable, { kind: 'hypergeometric', N, M: tolerable });
   }
   const cap = populationSize === undefined ? MAX_SAMPLE_SIZE : Math.min(MAX_SAMPLE_SIZE, populationSize);
-  return smallestSampleSize(risk, expectedRate, beta, cap);
+  return smallestSampleSize(risk, expectedRate, beta, cap, Infinity, model === 'binomial' ? { kind: 'binomial', p: tolerableRate } : undefined);
 }
 
 function noSizeMessage(

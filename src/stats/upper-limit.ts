@@ -8,7 +8,7 @@ import { withinRisk } from './within-risk.js';
 
 /**
  * The upper deviation limit at the given confidence after k deviations in a sample of n
- * (DESIGN §3).
+ * (convention: README, "How the figures are computed").
  *
  * Method:
  * - binomial: the one-sided Clopper–Pearson limit p_U with P(X ≤ k | n, p_U) = 1 − c, i.e.

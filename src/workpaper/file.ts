@@ -4,9 +4,10 @@
  * file, never half of one. Every save appends a change-log entry (see log.ts).
  */
 import { randomUUID } from 'node:crypto';
-import { closeSync, fsyncSync, openSync, readFileSync, renameSync, unlinkSync, writeSync } from 'node:fs';
-import { basename, dirname, join } from 'node:path';
 import { FileInputError } from '../errors.js';
+import { readRegularText } from '../io/read.js';
+import { jsonErrorWhere } from '../io/messages.js';
+import { writeFileSafely } from '../io/write.js';
 import { SCHEMA_VERSION, Workpaper } from './schema.js';
 import { nextEntry, replay } from './log.js';
 
@@ -48,44 +49,36 @@ export function parseWorkpaper(data: unknown, source = 'workpaper'): Workpaper {
   return r.data;
 }
 
-/** Read and validate a workpaper file. */
+/** Read and validate a workpaper file (a regular file only: a pipe or device is refused). */
 export function loadWorkpaper(path: string): Workpaper {
+  return loadWorkpaperText(path).wp;
+}
+
+/** The workpaper and the exact text it was read from (for the check before a save). */
+export function loadWorkpaperText(path: string): { wp: Workpaper; text: string } {
   let raw: string;
   try {
-    raw = readFileSync(path, 'utf8');
+    raw = readRegularText(path, 'The workpaper');
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new FileInputError(path, code === 'ENOENT' ? `No workpaper file at ${path}.` : `Cannot read ${path}: ${(e as Error).message}`);
+    const code = (e as { errno?: string }).errno;
+    if (code === 'ENOENT') throw new FileInputError(path, `No workpaper file at ${path}.`);
+    throw e;
   }
   let data: unknown;
   try {
-    data = JSON.parse(raw.replace(/^\uFEFF/, ''));
+    data = JSON.parse(raw);
   } catch (e) {
-    throw new FileInputError(path, `${path} is not valid JSON: ${(e as Error).message}`);
+    throw new FileInputError(path, `${path} is not a workpaper file: ${jsonErrorWhere(e, raw)}.`);
   }
-  return parseWorkpaper(data, path);
+  return { wp: parseWorkpaper(data, path), text: raw };
 }
 
-/** Write text to `path` atomically. */
-export function writeFileAtomic(path: string, text: string | Uint8Array): void {
-  const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.${randomUUID().slice(0, 8)}.tmp`);
-  const fd = openSync(tmp, 'w');
-  try {
-    writeSync(fd, typeof text === 'string' ? Buffer.from(text, 'utf8') : text);
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
-  }
-  try {
-    renameSync(tmp, path);
-  } catch (e) {
-    try {
-      unlinkSync(tmp);
-    } catch {
-      // nothing to clean
-    }
-    throw new FileInputError(path, `Cannot write ${path}: ${(e as Error).message}`);
-  }
+/**
+ * Write text to `path` atomically (the one writer, src/io/write.ts: every byte checked, flushed,
+ * mode and symbolic link kept, nothing left behind on failure).
+ */
+export function writeFileAtomic(path: string, text: string | Uint8Array, what = 'the file'): void {
+  writeFileSafely(path, text, { what });
 }
 
 export interface SaveMeta {
@@ -98,6 +91,15 @@ export interface SaveMeta {
   /** Required by the interview when a signed-off workpaper is edited. */
   reason?: string;
   at?: Date;
+  /** Called just before the file is written (the interview checks the file on disk there). */
+  beforeWrite?: () => void;
+  /** Called with the text written. */
+  afterWrite?: (text: string) => void;
+}
+
+/** The text of a workpaper file. */
+export function workpaperText(wp: Workpaper): string {
+  return `${JSON.stringify(wp, null, 2)}\n`;
 }
 
 /**
@@ -113,7 +115,10 @@ export function saveWorkpaper(path: string, wp: Workpaper, meta: SaveMeta): Work
   // Nothing but the time of saving would change: write nothing (the first save always writes).
   if (!entry || (wp.log.length > 0 && entry.changes.every((c) => c.path.length === 1 && c.path[0] === 'updatedAt'))) return wp;
   const saved: Workpaper = { ...checked, log: [...wp.log, entry] };
-  writeFileAtomic(path, `${JSON.stringify(saved, null, 2)}\n`);
+  const text = workpaperText(saved);
+  if (meta.beforeWrite) meta.beforeWrite();
+  writeFileSafely(path, text, { what: 'the workpaper' });
+  if (meta.afterWrite) meta.afterWrite(text);
   return saved;
 }
 

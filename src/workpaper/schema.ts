@@ -165,6 +165,10 @@ export const SizeForAttribute = z.object({
   sampleSize: positive,
   expectedDeviations: count,
   achievedRisk: z.number().min(0).max(1),
+  /** The most deviations with which the sample still supports reliance. */
+  acceptanceNumber: count.optional(),
+  /** The risk of underreliance: the chance that a control working at the expected rate shows more deviations than that. */
+  underrelianceRisk: z.number().min(0).max(1).optional(),
 });
 
 export const Approach = z.object({
@@ -285,8 +289,17 @@ export const AttributeEvaluation = z.object({
   supportedByRates: z.boolean(),
   /** True when the figures cannot support a statistical conclusion (non-statistical or haphazard). */
   illustrative: z.boolean(),
-  /** Additional items needed if none of them deviates; null when not practical or not applicable. */
+  /**
+   * The single-stage extension figure: additional items needed if none of them deviates, as if the
+   * larger sample had been planned in advance; null when not practical or not applicable.
+   */
   extension: count.nullable(),
+  /**
+   * The exact risk of overreliance of extending by that figure after seeing these results and
+   * relying only if none of the added items deviates (the second look depends on the first), and
+   * of repeating the extension after each failure. Absent when no extension is offered.
+   */
+  extensionRisk: z.object({ procedure: z.number().min(0).max(1), repeated: z.number().min(0).max(1) }).optional(),
 });
 
 export const Evaluation = z.object({
@@ -385,6 +398,8 @@ export const MemoRecord = z.object({
   logSeq: count,
   logHash: z.string(),
   final: z.boolean(),
+  /** Written with the appendix of the operating characteristic. */
+  operatingCharacteristic: z.boolean().optional(),
   /** The memo template folder, when not the shipped one. */
   template: z.string().optional(),
 });

@@ -33,7 +33,7 @@ async function recorded(devs: Record<number, 'no' | 'suspected' | 'yes'>) {
   return t;
 }
 
-/** The largest M with HyperCDF(k; N, M, n) > β, from @stdlib (DESIGN §3, hypergeometric limit). */
+/** The largest M with HyperCDF(k; N, M, n) > β, from @stdlib (the hypergeometric limit of README, "How the figures are computed"). */
 function refLimitCount(k: number, N: number, n: number, beta: number): number {
   let m = k;
   while (m < N && stdHyperCdf(k, N, m + 1, n) > beta) m++;
@@ -115,7 +115,7 @@ describe('tolrate conclude', () => {
     await conclude(['t1.tolrate.json'], ctx, asker, { now: fixedClock() });
     const wp = loadWorkpaper(file);
     const ev = wp.evaluation!.attributes.find((a) => a.attributeId === 'A1')!;
-    // One deviation in the planned sample: k = k_e, so the rates alone support reliance (DESIGN §3).
+    // One deviation in the planned sample: k = k_e, so the rates alone support reliance (README, "How the figures are computed").
     expect(ev.deviations).toBe(1);
     expect(ev.supportedByRates).toBe(true);
     expect(wp.conclusion!.attributes.find((a) => a.attributeId === 'A1')!.supportsReliance).toBe(false);

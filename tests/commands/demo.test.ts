@@ -14,7 +14,7 @@ import { captureContext, tempDir } from '../fixtures/interview.js';
 
 const BETA = 0.05;
 
-/** Smallest n with CDF(ceil(n·edr); n) ≤ β (DESIGN §3 sample size, k_e = ⌈n·EDR⌉). */
+/** Smallest n with CDF(ceil(n·edr); n) ≤ β (README, "How the figures are computed": k_e = ⌈n·EDR⌉). */
 function smallest(cdf: (k: number, n: number) => number, edr: number, max: number): number {
   for (let n = 1; n <= max; n++) if (cdf(Math.ceil(n * edr - 1e-9), n) <= BETA) return n;
   return -1;
@@ -149,5 +149,35 @@ describe('tolrate demo', () => {
     const bad = captureContext(cwd, false);
     expect(await runCli(['demo', '--scenario', 'smal'], bad)).toBe(2);
     expect(bad.err.join('')).toContain('there is no scenario "smal". Did you mean "small"?');
+  });
+});
+
+describe('the demo memo after the scripted review', () => {
+  it('shows the reviewer in the sign-off table, the changed cause as an amendment, and both notes with their threads', async () => {
+    const cwd = tempDir();
+    expect(await runCli(['demo', '--out', 'out'], captureContext(cwd, false))).toBe(0);
+    const { readMemoBlocks } = await import('../../src/memo/read.js');
+    const { readFileSync } = await import('node:fs');
+    const blocks = await readMemoBlocks(readFileSync(join(cwd, 'out', 'supplier-invoice-approval.memo.docx')));
+    const tables = blocks.filter((b): b is Extract<typeof b, { kind: 'table' }> => b.kind === 'table');
+    const signoff = tables.find((t) => t.rows[0]?.join('|') === 'Role|Name|Signature|Date')!;
+    expect(signoff.rows.find((r) => r[0] === 'Reviewed by')).toEqual(['Reviewed by', 'C. Lindqvist', '', '2026-01-30']);
+    const amend = tables.find((t) => t.rows[0]?.join('|') === 'Field|Before|After')!;
+    expect(amend.rows).toContainEqual(['results.items[64] (PI-253141).attributes.A1.cause', 'wrong-performer', 'system']);
+    const notes = tables.find((t) => t.rows[0]?.join('|') === 'Note|On|Thread')!;
+    expect(notes.rows.map((r) => r[0])).toEqual(['Note', 'N1', 'N2']);
+    expect(notes.rows[1]![1]).toMatch(/^Population and completeness/);
+    expect(notes.rows[2]![1]).toMatch(/^Results\nPI-253141/);
+    expect(notes.rows[2]![2]).toMatch(/answered, with a change to the record — N\. Oduya \(preparer\)/);
+    expect(notes.rows[2]![2]).toMatch(/cleared — C\. Lindqvist \(reviewer\)/);
+    const text = blocks.filter((b) => b.kind === 'paragraph').map((b) => (b as { text: string }).text).join('\n');
+    expect(text).not.toMatch(/DRAFT/);
+    // The content hash printed beside the last log hash.
+    const { loadWorkpaper: load } = await import('../../src/workpaper/file.js');
+    const { stateHash } = await import('../../src/workpaper/log.js');
+    const wp = load(join(cwd, 'out', 'supplier-invoice-approval.tolrate.json'));
+    const rec = wp.memos!.at(-1)!;
+    expect(text).toContain(`hash of the file's content: ${rec.stateHash}`);
+    expect(rec.stateHash).not.toBe(stateHash(wp)); // the memo record itself came after
   });
 });

@@ -76,7 +76,7 @@ describe('tolrate plan', () => {
     expect(wp.population!.tieOut).toMatchObject({ ledgerCount: 240, countDifference: 0, ledgerTotal: total, totalDifference: '0.00' });
 
     // Each attribute's size, then the largest adopted. Reference: @stdlib's hypergeometric CDF,
-    // with M_t = ceil(TDR x N) tolerable deviations and k_e = ceil(n x EDR) (DESIGN §3).
+    // with M_t = ceil(TDR x N) tolerable deviations and k_e = ceil(n x EDR) (README, "How the figures are computed").
     const N = 240;
     const ref = (tdr: number) => smallest((k, n) => stdHyperCdf(k, N, Math.ceil(tdr * N - 1e-9), n), 0.95, 0.01, N);
     const a = wp.approach!;
@@ -137,6 +137,21 @@ describe('tolrate plan', () => {
     expect(v.messages.join(' ')).toMatch(/PV-1004/);
     expect(v.acceptedReason).toMatch(/keyed twice/);
     expect(asker.refusals.map((r) => r.message)).toEqual(['The reason must not be empty.']);
+  });
+
+  it('a tolerable rate of 0.06 without % is confirmed first; "no" asks again and 6 is taken', async () => {
+    const dir = tempDir();
+    const { total } = writePopulation(dir);
+    const answers: ScriptAnswers = {
+      ...planAnswers(total),
+      'plan.approach.tolerableRate': ['0.06', '6'],
+      'plan.approach.tolerableRate.belowOnePercent': false,
+    };
+    const asker = new ScriptedAsker(answers);
+    expect(await plan(['t1'], captureContext(dir), asker, { now: fixedClock() })).toBe(0);
+    const ids = asker.ids.filter((i) => i.startsWith('plan.approach.tolerableRate'));
+    expect(ids).toEqual(['plan.approach.tolerableRate', 'plan.approach.tolerableRate.belowOnePercent', 'plan.approach.tolerableRate']);
+    expect(loadWorkpaper(join(dir, 't1.tolrate.json')).approach).toMatchObject({ tolerableRate: 0.06 });
   });
 
   it('a tie-out difference is shown and needs an explanation', async () => {
@@ -240,7 +255,7 @@ describe('tolrate plan', () => {
       expect(asker.refusals[0]!.message).toBe(`Random starts: ${n} is not a multiple of 4.`);
       expect(wp.selection!.method).toBe('systematic');
       expect(wp.selection!.starts).toHaveLength(2);
-      // Interval r·N/n (DESIGN: systematic selection with random starts).
+      // Interval r·N/n: with r random starts each start covers every (r·N/n)-th item (common practice, no single source).
       expect(wp.selection!.interval).toBeCloseTo((2 * 240) / n, 10);
     }
     {

@@ -49,7 +49,7 @@ function fixtureFor(n: number, k: number): Workpaper {
 describe('evaluation', () => {
   it('2 deviations in 78 at 95% / 6%: rate 2.6%, limit above 6%, not supported, extension 25', () => {
     const ev = evaluate(workpaper({ n: 78, devs: [{}, {}], voids: 1 })).attributes[0]!;
-    // Sample rate 2/78 = 2.56%: DESIGN.md section 7 check value (common practice).
+    // Sample rate 2/78 = 0.025641 (arithmetic).
     expect(ev.sampleSize).toBe(78);
     expect(ev.deviations).toBe(2);
     expect(ev.sampleRate).toBeCloseTo(0.02564, 5);

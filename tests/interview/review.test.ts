@@ -68,6 +68,9 @@ describe('the review loop', () => {
       ['N2', 'results', item, false],
     ]);
     expect(reviewStatus(got).label).toBe('in review (2 open notes)');
+    // The step list shows it too.
+    const { statusLines } = await import('../../src/interview/flow.js');
+    expect(statusLines(got).at(-1)).toBe('  Review: in review (2 open notes)');
     // Every review save is the reviewer's, in the log.
     expect(got.log.filter((e) => e.step.startsWith('review.')).every((e) => e.by === 'C. Lindqvist' && e.role === 'reviewer')).toBe(true);
 

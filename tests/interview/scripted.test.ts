@@ -50,3 +50,27 @@ describe('the scripted answerer', () => {
     expect((e as Error).name).toBe('ExitPromptError');
   });
 });
+
+describe('a rate below 1 typed without a % sign', () => {
+  it('is confirmed before it is used; "no" asks the rate again', async () => {
+    const { askRate } = await import('../../src/interview/rate-question.js');
+    const a = new ScriptedAsker({ tdr: ['0.05', '5'], 'tdr.belowOnePercent': false });
+    expect(await askRate(a, { id: 'tdr', message: 'Tolerable rate (%)', parse: rate('Tolerable rate') })).toBe(0.05);
+    expect(a.ids).toEqual(['tdr', 'tdr.belowOnePercent', 'tdr']);
+    expect(a.asked[1]!.message).toBe('0.05 is read as 0.05%, not 5%. Keep 0.05%?');
+    const b = new ScriptedAsker({ edr: '0,5', 'edr.belowOnePercent': true });
+    expect(await askRate(b, { id: 'edr', message: 'Expected rate (%)', parse: rate('Expected rate', { allowZero: true }) })).toBe(0.005);
+    // a % sign, a rate of 1 or more, or Enter on the default is not asked again
+    const c = new ScriptedAsker({ x: '0.5%', y: '6', z: '' });
+    expect(await askRate(c, { id: 'x', message: 'm', parse: rate('R') })).toBe(0.005);
+    expect(await askRate(c, { id: 'y', message: 'm', parse: rate('R') })).toBe(0.06);
+    expect(await askRate(c, { id: 'z', message: 'm', default: '0.5', parse: rate('R') })).toBe(0.005);
+    expect(c.ids).toEqual(['x', 'y', 'z']);
+  });
+
+  it('a confidence such as 0.95 is refused with the reading that was probably meant', async () => {
+    const a = new ScriptedAsker({ c: ['0.95', '95'] });
+    expect(await a.text({ id: 'c', message: 'Confidence', parse: rate('Confidence', { atLeast: 0.5 }) })).toBe(0.95);
+    expect(a.refusals[0]!.message).toBe('Confidence: 0.95 is read as 0.95%; write 95 for 95%.');
+  });
+});

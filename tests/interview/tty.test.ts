@@ -1,20 +1,36 @@
 /**
- * One run in a real pseudo-terminal: `node dist/cli.js plan` inside tmux, answered with keys,
- * including a wrong answer, then stopped with Ctrl-C at the approach step. Needs tmux and a
- * build (`npm run build`); skipped, with the reason, when either is missing.
+ * One run in a real pseudo-terminal: the CLI's `plan` inside tmux, answered with keys, including
+ * a wrong answer, then stopped with Ctrl-C at the approach step. The test compiles the sources it
+ * runs into a temporary folder first (TypeScript's own compiler, without type checking, which
+ * `npm test` does anyway), so it never runs a stale dist/. Needs tmux; skipped, with the reason
+ * in the test's name, when it is missing.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, symlinkSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import { afterAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';
 import { tempDir, writePopulation } from '../fixtures/interview.js';
 
-const CLI = resolve(__dirname, '..', '..', 'dist', 'cli.js');
+const ROOT = resolve(__dirname, '..', '..');
 const hasTmux = spawnSync('tmux', ['-V']).status === 0;
-const hasBuild = existsSync(CLI);
-const reason = !hasTmux ? 'tmux is not installed' : !hasBuild ? 'dist/cli.js is missing: run `npm run build` first' : '';
+const reason = !hasTmux ? 'tmux is not installed' : '';
+let built = '';
+let CLI = '';
+
+/** Compile src/ into a fresh folder laid out like the package (dist/ beside templates/ and samples/). */
+function buildSources(): void {
+  built = mkdtempSync(join(tmpdir(), 'tolrate-tty-build-'));
+  const tsc = join(ROOT, 'node_modules', 'typescript', 'bin', 'tsc');
+  const r = spawnSync(process.execPath, [tsc, '-p', join(ROOT, 'tsconfig.build.json'), '--outDir', join(built, 'dist'), '--noCheck', '--declaration', 'false'], {
+    encoding: 'utf8',
+  });
+  if (r.status !== 0) throw new Error(`compiling the sources failed:\n${r.stdout}${r.stderr}`);
+  for (const name of ['templates', 'samples', 'node_modules', 'package.json']) symlinkSync(join(ROOT, name), join(built, name));
+  CLI = join(built, 'dist', 'cli.js');
+}
 const session = `tolrate-test-${process.pid}`;
 
 function tmux(...args: string[]): string {
@@ -36,8 +52,10 @@ async function answer(prompt: string | RegExp, ...keys: string[]): Promise<void>
 }
 
 describe.skipIf(reason !== '')(`a real terminal (tmux)${reason ? `: skipped, ${reason}` : ''}`, () => {
+  beforeAll(buildSources, 120_000);
   afterAll(() => {
     spawnSync('tmux', ['kill-session', '-t', session]);
+    if (built) rmSync(built, { recursive: true, force: true });
   });
 
   it('plan in a pseudo-terminal: typed answers, a refusal shown, Ctrl-C keeps the answered steps', async () => {

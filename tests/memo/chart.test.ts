@@ -83,3 +83,20 @@ describe('the rates chart', () => {
     expect(niceAxis(0)).toEqual({ max: 0.01, step: 0.002 });
   });
 });
+
+describe('the colour follows the decision', () => {
+  it('a hypergeometric limit equal to the tolerable rate is drawn as not supporting reliance', async () => {
+    const { chartSvg } = await import('../../src/memo/chart.js');
+    const { upperLimit, limitDecision } = await import('../../src/stats/index.js');
+    // 1 deviation in 88 from N = 1,000 at 95%: the exact limit is 50/1,000 = 5% exactly, which the
+    // count rule does not support (issue check value, re-derived here by the engine's own rule).
+    const lim = upperLimit({ sampleSize: 88, deviations: 1, confidence: 0.95, populationSize: 1000 });
+    expect(lim.rate).toBe(0.05);
+    const dec = limitDecision({ sampleSize: 88, deviations: 1, confidence: 0.95, tolerableRate: 0.05, populationSize: 1000 });
+    expect(dec.supported).toBe(false);
+    const labels = { sampleRate: 's', upperLimit: 'u', exceeds: 'x', tolerable: 't' };
+    const row = { id: 'A1', sampleRate: 1 / 88, upperLimit: lim.rate, tolerableRate: 0.05, sampleRateText: '1.1%', upperLimitText: '5.0%', tolerableRateText: '5%' };
+    expect(chartSvg([row], labels, 600).geometry[0]!.exceeds).toBe(false);
+    expect(chartSvg([{ ...row, exceeds: !dec.supported }], labels, 600).geometry[0]!.exceeds).toBe(true);
+  });
+});

@@ -159,7 +159,7 @@ describe('other records', () => {
     expect(doc.text).toContain('The upper deviation limit is the Poisson factor for k deviations at 95% confidence divided by n.');
     expect(doc.text).toContain('Upper deviation limit = GammaInv(confidence; k + 1) / n.');
     // k = 0 for A1 in 78 items: the factor −ln(0.05) = 2.9957, the "3.00/n for k = 0 at 95%" of common
-    // practice (DESIGN §3); 2.9957 / 78 = 3.841%, rounded up to 3.9%.
+    // practice, no single source; 2.9957 / 78 = 3.841%, rounded up to 3.9%.
     const a1 = wp.evaluation.attributes.find((x) => x.attributeId === 'A1')!;
     expect(a1.deviations).toBe(0);
     expect(a1.upperLimit * 78).toBeCloseTo(2.9957, 3);

@@ -11,6 +11,7 @@
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_EXPECTED_RATES, DEFAULT_TOLERABLE_RATES, planningTable, sampleSize, upperLimit } from '../../src/stats/index.js';
 import { pctUp } from '../../src/util/format.js';
+import { mpBetaQuantile } from '../fixtures/reference-table.js';
 
 type Cell = { n: number; k: number } | null;
 function parseRow(text: string): Cell[] {
@@ -120,7 +121,7 @@ describe('sample sizes: AICPA Audit Sampling guide attribute tables (from memory
     }
   });
 
-  it('95% / 6% / 1% gives 78 with 1 expected deviation (DESIGN §7; common practice)', () => {
+  it('95% / 6% / 1% gives 78 with 1 expected deviation (AICPA Audit Sampling guide, 95% sample size table, from memory)', () => {
     const r = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 });
     expect(r.sampleSize).toBe(78);
     expect(r.expectedDeviations).toBe(1);
@@ -233,9 +234,11 @@ describe('upper deviation limits: AICPA Audit Sampling guide tables (from memory
     }
   });
 
-  it('75 items with 2 deviations at 95%: 8.2% in the table, 8.16% exact, above 6% (DESIGN §7)', () => {
+  it('75 items with 2 deviations at 95%: 8.2% in the table (from memory), 8.16% exact (mpmath, committed table), above 6%', () => {
     const r = upperLimit({ sampleSize: 75, deviations: 2, confidence: 0.95 });
     expect(pctUp(r.rate)).toBe('8.2%');
+    expect(pctUp(mpBetaQuantile(0.95, 3, 73))).toBe('8.2%');
+    expect(Math.abs(r.rate / mpBetaQuantile(0.95, 3, 73) - 1)).toBeLessThan(1e-14);
     expect(r.rate).toBeCloseTo(0.0816, 4);
     expect(r.rate).toBeGreaterThan(0.06);
   });

@@ -2,7 +2,9 @@
  * The engine against an independent reference library from the registry: @stdlib's distribution
  * packages (binomial, hypergeometric and Poisson CDFs; beta and gamma quantiles), over wide grids
  * including N up to 10,000,000 and n up to 10,000. Tolerances are stated beside each check; they
- * reflect the reference's own precision where it is the weaker side (noted).
+ * reflect the reference's own precision where it is the weaker side (noted). Where @stdlib itself
+ * drifts (Poisson means and gamma shapes above about 1,000, populations of 100,000 and more), the
+ * arbitrary-precision table of special-functions.test.ts (mpmath) is the second reference.
  */
 import stdBetaQuantile from '@stdlib/stats-base-dists-beta-quantile';
 import stdBinomialCdf from '@stdlib/stats-base-dists-binomial-cdf';

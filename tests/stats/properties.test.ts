@@ -1,6 +1,7 @@
 /**
  * Properties of the engine checked on random inputs with fast-check. Each property is a fact of
- * the sampling theory behind DESIGN §3 (common practice, no single source).
+ * attribute sampling theory as set out in README, "How the figures are computed" (common practice,
+ * no single source).
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';

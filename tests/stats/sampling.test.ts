@@ -18,9 +18,10 @@ import {
   tolerableDeviations,
   upperLimit,
 } from '../../src/stats/index.js';
+import { mpBetaQuantile, mpBinomialCdf } from '../fixtures/reference-table.js';
 
 describe('sampleSize', () => {
-  it('95% / 6% / 1% → 78 with k_e = 1, binomial by default (DESIGN §7; AICPA table, from memory)', () => {
+  it('95% / 6% / 1% → 78 with k_e = 1, binomial by default (AICPA Audit Sampling guide, 95% sample size table, from memory)', () => {
     const r = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 });
     expect(r).toMatchObject({ sampleSize: 78, expectedDeviations: 1, model: 'binomial', confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01 });
     expect(r.achievedRisk).toBeCloseTo(binomialCdf(1, 78, 0.06), 15);
@@ -30,7 +31,7 @@ describe('sampleSize', () => {
     expect(binomialCdf(expectedDeviations(77, 0.01), 77, 0.06)).toBeGreaterThan(0.05);
   });
 
-  it('a known population switches to the exact hypergeometric size and reports the textbook FPC beside it (DESIGN §3)', () => {
+  it('a known population switches to the exact hypergeometric size and reports the textbook FPC beside it (README, "How the figures are computed")', () => {
     const r = sampleSize({ confidence: 0.95, tolerableRate: 0.06, expectedRate: 0.01, populationSize: 800 });
     expect(r.model).toBe('hypergeometric');
     expect(r.populationSize).toBe(800);
@@ -105,8 +106,11 @@ describe('sampleSize', () => {
 });
 
 describe('upperLimit', () => {
-  it('2 deviations in 78 at 95%: 7.85% binomial; 75 items: 8.16% (DESIGN §7)', () => {
+  it('2 deviations in 78 at 95%: 7.85% binomial; 75 items: 8.16% (Clopper–Pearson limits computed with mpmath, committed table)', () => {
+    // BetaInv(0.95; 3, 76) = 0.0785210890738215 and BetaInv(0.95; 3, 73) = 0.0815718704532479 (mpmath, 50 digits).
     expect(upperLimit({ sampleSize: 78, deviations: 2, confidence: 0.95 }).rate).toBeCloseTo(0.07852, 5);
+    expect(Math.abs(upperLimit({ sampleSize: 78, deviations: 2, confidence: 0.95 }).rate / mpBetaQuantile(0.95, 3, 76) - 1)).toBeLessThan(1e-14);
+    expect(Math.abs(upperLimit({ sampleSize: 75, deviations: 2, confidence: 0.95 }).rate / mpBetaQuantile(0.95, 3, 73) - 1)).toBeLessThan(1e-14);
     const r = upperLimit({ sampleSize: 75, deviations: 2, confidence: 0.95 });
     expect(r).toMatchObject({ model: 'binomial', sampleSize: 75, deviations: 2, confidence: 0.95 });
     expect(r.rate).toBeCloseTo(0.08157, 5);
@@ -131,8 +135,10 @@ describe('upperLimit', () => {
 });
 
 describe('overrelianceRisk, extensionSize, decision', () => {
-  it('75 items, 2 deviations, 6% tolerable at 95%: risk above 5%, not supported, and the limit agrees (DESIGN §7)', () => {
+  it('75 items, 2 deviations, 6% tolerable at 95%: risk above 5%, not supported, and the limit agrees (risk computed with mpmath, committed table)', () => {
     const risk = overrelianceRisk({ sampleSize: 75, deviations: 2, tolerableRate: 0.06 });
+    // BinomCDF(2; 75, 0.06) = 0.16497334799710447 (mpmath, 50 digits).
+    expect(Math.abs(risk / mpBinomialCdf(2, 75, 0.06) - 1)).toBeLessThan(1e-13);
     expect(risk).toBeCloseTo(binomialCdf(2, 75, 0.06), 15);
     const d = decision({ achievedRisk: risk, confidence: 0.95 });
     expect(d.supported).toBe(false);

@@ -1,6 +1,6 @@
 /**
  * Every public function rejects bad input with a SamplingInputError that names the parameter
- * (DESIGN §5: "Invalid input throws a typed error with a message a user can act on").
+ * (DEVELOPERS.md, "Conventions": errors a user can fix are typed and carry a message they can act on).
  */
 import { describe, expect, it } from 'vitest';
 import { SamplingInputError, TolrateInputError } from '../../src/errors.js';

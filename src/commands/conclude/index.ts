@@ -25,6 +25,10 @@ The tool computes; the conclusion and the severity of a deficiency are the pract
 judgement under the applicable standards (e.g. AU-C 530, ISA 530, AS 2315) and the firm's
 methodology.
 
+While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a second session
+on the same file is told who has it and may look at it read-only. A save that fails (disk
+full, read-only) keeps the answer and asks: try again, save a copy elsewhere, or stop.
+
 Example:
   tolrate conclude supplier-invoices.tolrate.json
 `;

@@ -21,6 +21,10 @@ The interview saves after every answered step: stop at any question (Ctrl-C) and
 \`tolrate plan FILE\` again to go on. It needs a terminal; \`tolrate demo\` runs a whole test
 with scripted answers.
 
+While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a second session
+on the same file is told who has it and may look at it read-only. A save that fails (disk
+full, read-only) keeps the answer and asks: try again, save a copy elsewhere, or stop.
+
 Example:
   tolrate plan supplier-invoices
 `;

@@ -40,6 +40,10 @@ Typed, each item asks the same: tester (default: the preparer), date tested (def
 the evidence inspected and a note.
 Every cell that cannot be read is listed (sheet, row, column, value, why); nothing is guessed.
 
+While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a second session
+on the same file is told who has it and may look at it read-only. A save that fails (disk
+full, read-only) keeps the answer and asks: try again, save a copy elsewhere, or stop.
+
 Example:
   tolrate record supplier-invoices.tolrate.json
 `;

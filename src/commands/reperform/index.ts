@@ -1,6 +1,7 @@
 import { parseFlags, str } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
+import { visible } from '../../io/text.js';
 
 const HELP = `tolrate reperform — re-derive a test from its workpaper file and report any difference
 
@@ -14,14 +15,15 @@ It checks:
   - the results against the selection: every result is for an item of the worklist (the
     sample items, and a spare for each voided item, in draw order), and none is missing;
   - the conclusion against the recomputed figures and recorded causes;
-  - with --memo, the memo: which recorded state of the workpaper it shows (by its SHA-256),
-    and its text against the memo rendered afresh from that state, section by section and
-    table cell by table cell (every difference named with its section, row and both texts).
+  - with --memo, the memo: that its XML parses (strict XML 1.0; a memo that does not parse
+    is a difference), which recorded state of the workpaper it shows (by its SHA-256), and its
+    text against the memo rendered afresh from that state, section by section and table cell
+    by table cell (every difference named with its section, row and both texts).
 
 Options:
   --population PATH  the population file, when it has moved (default: the path recorded in the
                      workpaper, relative to the workpaper file's folder)
-  --memo PATH        also check this DOCX memo
+  --memo PATH        also check this DOCX memo (its XML and its text)
   --template DIR     the memo template folder it was written with (default: the one recorded
                      with the memo, else the shipped one)
   --json             print the report as JSON
@@ -61,6 +63,6 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     ...(ctx.isTTY ? { progress: process.stderr } : {}),
   });
   if (p.values.json) ctx.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
-  else ctx.stdout.write(formatReport({ ...report, workpaperPath: file }));
+  else ctx.stdout.write(visible(formatReport({ ...report, workpaperPath: file }), { keepLines: true }));
   return report.ok ? 0 : 1;
 }

@@ -29,6 +29,10 @@ the preparer's sign-off or after today. A change to the record after a sign-off 
 recorded as an amendment (who, role, when, why, every old -> new value) and clears both
 sign-offs; answering a note clears neither.
 
+While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a second session
+on the same file is told who has it and may look at it read-only. A save that fails (disk
+full, read-only) keeps the answer and asks: try again, save a copy elsewhere, or stop.
+
 Example:
   tolrate review supplier-invoices.tolrate.json
 

@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { extname, isAbsolute, relative, resolve } from 'node:path';
 import { parseFlags, str, type FlagSpec, type ParsedArgs } from '../args.js';
 import { FileInputError, UsageError } from '../../errors.js';
@@ -15,6 +15,8 @@ import {
 } from '../../selection/index.js';
 import { parseCount } from '../../util/percent.js';
 import type { CommandContext } from '../types.js';
+import { readRegularText } from '../../io/read.js';
+import { visible } from '../../io/text.js';
 import { itemsText, populationText, selectionText, shellWord, validationText } from './report.js';
 
 const SPEC: FlagSpec = {
@@ -63,7 +65,9 @@ population, seed, sizes and algorithm always give the same items in the same ord
 Population:
   --population FILE     a CSV file, or an XLSX workbook (a name ending in .xlsx)
   --key COLUMN          the column that identifies each sampling unit (needed with --population)
-  --sheet NAME          XLSX: the worksheet to read (default: the first)
+  --sheet NAME          XLSX: the worksheet to read; needed when the workbook has more than one
+                        visible sheet (default: the only visible one; hidden sheets are
+                        read only when named)
   --amount COLUMN       amounts to total exactly, for the completeness tie-out
   --date COLUMN         dates to check; the earliest and latest are shown
   --delimiter C         CSV: the delimiter (default: found from the first lines); "tab" for TAB
@@ -111,8 +115,8 @@ ${CAUTION}
 `;
 }
 
-function usage(message: string): UsageError {
-  return new UsageError(`tolrate select: ${message}`, ['See: tolrate select --help']);
+function usage(message: string, details: string[] = []): UsageError {
+  return new UsageError(`tolrate select: ${message}`, [...details, 'See: tolrate select --help']);
 }
 
 function stderrStream(ctx: CommandContext): ProgressStream | false {
@@ -196,13 +200,8 @@ function haphazardKeys(p: ParsedArgs, ctx: CommandContext): string[] {
   if (list !== undefined) keys.push(...splitList(list));
   if (file !== undefined) {
     const path = resolve(ctx.cwd, file);
-    let text: string;
-    try {
-      text = readFileSync(path, 'utf8');
-    } catch {
-      throw new FileInputError(path, `The keys file cannot be read: ${path}`);
-    }
-    keys.push(...text.replace(/^\uFEFF/, '').split(/\r\n|\r|\n/).map((s) => s.trim()).filter((s) => s !== ''));
+    const text = readRegularText(path, 'The keys file');
+    keys.push(...text.split(/\r\n|\r|\n/).map((s) => s.trim()).filter((s) => s !== ''));
   }
   return keys;
 }
@@ -268,9 +267,22 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const progress = stderrStream(ctx);
   const out: string[] = [];
   const flush = () => {
-    if (!json && out.length) ctx.stdout.write(`${out.join('\n')}\n`);
+    // Keys and values come from the file: their control characters are shown, not sent (src/io/text.ts).
+    if (!json && out.length) ctx.stdout.write(`${visible(out.join('\n'), { keepLines: true })}\n`);
     out.length = 0;
   };
+
+  if (plan.source.kind === 'xlsx' && plan.source.sheet === undefined) {
+    // A hidden sheet is never read by default, and with several visible sheets the user names one.
+    const { listSheets, sheetLabel } = await import('../../population/workbook.js');
+    const sheets = await listSheets(plan.source.path);
+    const visible = sheets.filter((x) => !x.hidden);
+    if (visible.length > 1) {
+      throw usage(`${plan.label} has ${visible.length} visible sheets; name the one to read with --sheet NAME.`, [
+        `Sheets: ${sheets.map(sheetLabel).join(', ')}`,
+      ]);
+    }
+  }
 
   // Pass 1: fingerprint and validation.
   const scan: PopulationScan = await scanPopulation(plan.source, { progress });

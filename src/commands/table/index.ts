@@ -1,14 +1,15 @@
 import { parseFlags, required, str, type FlagSpec } from '../args.js';
-import { UsageError } from '../../errors.js';
+import { TolrateInputError, UsageError } from '../../errors.js';
 import {
   DEFAULT_EXPECTED_RATES,
   DEFAULT_TOLERABLE_RATES,
+  LARGE_SAMPLE_SIZE,
   MAX_SAMPLE_SIZE,
   planningTable,
   type PlanningTableResult,
 } from '../../stats/index.js';
 import { int, pctPlain } from '../../util/format.js';
-import { parsePercent } from '../../util/percent.js';
+import { isBareFraction, parsePercent } from '../../util/percent.js';
 import type { CommandContext } from '../types.js';
 import { CAUTION, modelFlag, modelNote, populationFlag, wrap } from '../size/common.js';
 import { printResult } from '../output.js';
@@ -41,10 +42,15 @@ Options:
   --json             print the table object instead of the text
   -h, --help         show this help
 
+Rates are percentages with a decimal point (the comma separates them). A list whose rates are
+all below 1 needs % signs (0.25%,0.5%): typed bare, 0.02,0.05 is refused, since it may have
+meant 2% and 5%.
+
 Each cell is "size (k_e)": the smallest sample size whose risk of overreliance at k_e
 expected deviations does not exceed 100% - confidence. A dash marks a cell where no practical
 size exists (the expected rate is not below the tolerable rate, or more than
 ${int(MAX_SAMPLE_SIZE)} items would be needed; for a known population, more than the population).
+A star marks sizes above ${LARGE_SAMPLE_SIZE}, far more than tests of controls usually use (common practice).
 
 Example:
   tolrate table --confidence 95
@@ -61,7 +67,18 @@ function rateList(command: string, text: string, flag: string, allowZero: boolea
       `See: tolrate ${command} --help`,
     ]);
   }
-  return parts.map((s) => parsePercent(s, flag, { allowZero }));
+  const rates = parts.map((s) => parsePercent(s, flag, { allowZero }));
+  // A list whose every rate is between 0 and 1 with no % sign may be fractions (0.02,0.05 meant
+  // as 2% and 5%); a list with any rate of 1 or more, or any % sign, reads plainly as percentages.
+  const bare = parts.filter((s) => isBareFraction(s));
+  if (bare.length > 0 && !parts.some((s) => s.endsWith('%')) && rates.every((r) => r < 0.01)) {
+    const as = (t: string): string => String(Number((Number(t) * 100).toPrecision(12)));
+    throw new TolrateInputError(
+      `${flag}: ${bare.join(', ')} ${bare.length === 1 ? 'is' : 'are'} read as ${bare.map((t) => `${t}%`).join(', ')}; write ${bare.map(as).join(',')} for ${bare.map((t) => `${as(t)}%`).join(', ')}, or add a % sign (${bare[0]}%) if you mean percentages below 1.`,
+      'AMBIGUOUS_RATE',
+    );
+  }
+  return rates;
 }
 
 export async function run(args: string[], ctx: CommandContext): Promise<number> {
@@ -70,7 +87,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     ctx.stdout.write(help());
     return 0;
   }
-  const confidence = parsePercent(required('table', p, 'confidence'), '--confidence');
+  const confidence = parsePercent(required('table', p, 'confidence'), '--confidence', { refuseBareFraction: true });
   const tol = str(p, 'tolerable');
   const exp = str(p, 'expected');
   const populationSize = populationFlag(p);
@@ -95,7 +112,7 @@ function render(t: PlanningTableResult): string {
   const header = ['Expected', ...t.tolerableRates.map((r) => pctPlain(r))];
   const body = t.rows.map((row) => [
     pctPlain(row.expectedRate),
-    ...row.cells.map((c) => (c.sampleSize === null ? '-' : `${int(c.sampleSize)} (${c.expectedDeviations})`)),
+    ...row.cells.map((c) => (c.sampleSize === null ? '-' : `${int(c.sampleSize)} (${c.expectedDeviations})${c.sizeRemark ? '*' : ''}`)),
   ]);
   const widths = header.map((h, i) => Math.max(h.length, ...body.map((r) => r[i]!.length)));
   const fmt = (cells: string[]): string =>
@@ -106,6 +123,9 @@ function render(t: PlanningTableResult): string {
   lines.push('');
   const cap = t.model === 'hypergeometric' ? 'the population' : `${int(MAX_SAMPLE_SIZE)} items`;
   lines.push(...wrap(`-  no practical size: the expected rate is not below the tolerable rate, or more than ${cap} would be needed.`));
+  if (t.rows.some((r) => r.cells.some((c) => c.sizeRemark))) {
+    lines.push(...wrap(`*  more than ${LARGE_SAMPLE_SIZE} items: far more than tests of controls usually use (common practice); the test may not be cost-effective.`));
+  }
   lines.push('');
   lines.push(CAUTION);
   return lines.join('\n') + '\n';

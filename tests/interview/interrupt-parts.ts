@@ -1,6 +1,8 @@
 /**
  * Stopping at any question leaves the last answered step on file, and continuing the workpaper
- * finishes the test with the same result as a run that was never stopped.
+ * finishes the test with the same result as a run that was never stopped. Every question is
+ * tried; the questions are shared out over the files tests/interview/interrupt-N.test.ts (N =
+ * 1..PARTS, question i in part i mod PARTS) so that vitest runs the parts side by side.
  */
 import { describe, expect, it } from 'vitest';
 import { existsSync } from 'node:fs';
@@ -52,30 +54,40 @@ async function run(dir: string, answers: ScriptAnswers, stopAt?: number): Promis
   return asker;
 }
 
-describe('interruption at every question', () => {
-  it('resuming after a stop at question i gives the same workpaper as an uninterrupted run, for every i', async () => {
-    const base = tempDir();
-    const { total } = writePopulation(base);
-    const answers = script(total);
-    const whole = await run(base, answers);
-    const reference = loadWorkpaper(join(base, 't.tolrate.json'));
-    expect(reference.signoffs?.preparer).toBeDefined();
-    const count = whole.questionCount;
-    expect(count).toBeGreaterThan(60);
-    for (let i = 0; i < count; i++) {
-      const dir = tempDir();
-      writePopulation(dir);
-      const stopped = await run(dir, answers, i).then(
-        () => undefined,
-        (e: unknown) => e,
-      );
-      expect(isStop(stopped), `question ${i} (${whole.ids[i]})`).toBe(true);
-      const path = join(dir, 't.tolrate.json');
-      if (existsSync(path)) expect(verifyLog(loadWorkpaper(path)), `log after a stop at ${i}`).toEqual([]);
-      await run(dir, answers);
-      const wp = loadWorkpaper(path);
-      expect(verifyLog(wp)).toEqual([]);
-      expect(comparable(wp), `resumed after a stop at question ${i} (${whole.ids[i]})`).toEqual(comparable(reference));
-    }
-  }, 180_000);
-});
+export const PARTS = 3;
+
+/** The test of the questions i with i mod PARTS = part. */
+export function interruptPart(part: number): void {
+  describe(`interruption at every question (part ${part + 1} of ${PARTS})`, () => {
+    it('resuming after a stop at question i gives the same workpaper as an uninterrupted run, for every i of this part', async () => {
+      const base = tempDir();
+      const { total } = writePopulation(base);
+      const answers = script(total);
+      const whole = await run(base, answers);
+      const reference = loadWorkpaper(join(base, 't.tolrate.json'));
+      expect(reference.signoffs?.preparer).toBeDefined();
+      const count = whole.questionCount;
+      expect(count).toBeGreaterThan(60);
+      let tried = 0;
+      for (let i = part; i < count; i += PARTS) {
+        tried++;
+        const dir = tempDir();
+        writePopulation(dir);
+        const stopped = await run(dir, answers, i).then(
+          () => undefined,
+          (e: unknown) => e,
+        );
+        expect(isStop(stopped), `question ${i} (${whole.ids[i]})`).toBe(true);
+        const path = join(dir, 't.tolrate.json');
+        if (existsSync(path)) expect(verifyLog(loadWorkpaper(path)), `log after a stop at ${i}`).toEqual([]);
+        await run(dir, answers);
+        const wp = loadWorkpaper(path);
+        expect(verifyLog(wp)).toEqual([]);
+        expect(comparable(wp), `resumed after a stop at question ${i} (${whole.ids[i]})`).toEqual(comparable(reference));
+      }
+      expect(tried).toBeGreaterThan(count / PARTS - 1);
+      // Every part has its file, so together they try every question.
+      for (let k = 1; k <= PARTS; k++) expect(existsSync(join(__dirname, `interrupt-${k}.test.ts`)), `interrupt-${k}.test.ts`).toBe(true);
+    }, 180_000);
+  });
+}
