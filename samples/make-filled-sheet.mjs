@@ -85,6 +85,28 @@ set(over, {
   'A1 pattern': 'unclear',
 });
 
+// Who tested each item, when, and the evidence inspected: the items were split between the
+// preparer (odd items) and a second tester (even items), tested between 19 and 23 January 2026.
+const testers = ['N. Oduya', 'P. Haverkamp'];
+for (const [seq, r] of bySeq) {
+  const result = value(r, 'A1 result');
+  if (result !== 'C' && result !== 'D') continue;
+  const key = r[3];
+  const evidence = [`invoice ${key}`, `approval trail ${key} (purchasing system)`];
+  if (value(r, 'A2 result') === 'C') evidence.push(`goods received note for ${value(r, 'supplier_ref')}`);
+  set(seq, {
+    'Tested by': testers[(seq + 1) % 2],
+    'Date tested': `2026-01-${String(19 + (seq % 5)).padStart(2, '0')}`,
+    Evidence: evidence.join('; '),
+  });
+}
+set(23, { Note: 'Payment run report of the day seen; the approver confirmed the late approval by e-mail.' });
+// The authority matrix is kept beside the workpaper: it is fingerprinted when the sheet is read.
+set(over, {
+  Evidence: `${value(o, 'Evidence')}; evidence-authority-matrix-2025.txt`,
+  Note: 'Authority matrix 2025, version approved by the board in December 2024, seen.',
+});
+
 const field = (t) => (/[",\r\n]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t);
 const target = join(here, 'supplier-invoice-approval.filled.csv');
 writeFileSync(target, '\uFEFF' + rows.map((r) => r.map(field).join(',')).join('\r\n') + '\r\n');

@@ -13,3 +13,4 @@ export * from './steps.js';
 export * from './labels.js';
 export * from './state.js';
 export * from './review.js';
+export * from './evidence.js';

@@ -104,14 +104,18 @@ function arranged(wp: Workpaper, items: readonly ItemResult[]): ItemResult[] {
 export function withResult(
   wp: Workpaper,
   r: ItemResult,
-  o: { source: 'interview' | 'sheet'; sheetPath?: string; at: Date },
+  o: { source: 'interview' | 'sheet'; sheetPath?: string | readonly string[]; at: Date },
 ): Workpaper {
   const prev = wp.results;
   const items = arranged(wp, [...(prev?.items ?? []).filter((x) => x.key !== r.key), r]);
   if (!items.some((x) => x.key === r.key)) throw new Error(`internal: ${r.key} is not on the worklist`);
   const src = prev?.source === 'sheet' || o.source === 'sheet' ? 'sheet' : 'interview';
-  const path = o.sheetPath ?? prev?.sheetPath;
-  return { ...wp, results: { source: src, ...(path ? { sheetPath: path } : {}), items, recordedAt: o.at.toISOString() } };
+  // Several sheets (one per tester): every one kept, the first also as sheetPath.
+  const paths = o.sheetPath === undefined ? (prev?.sheetPaths ?? (prev?.sheetPath ? [prev.sheetPath] : [])) : typeof o.sheetPath === 'string' ? [o.sheetPath] : [...o.sheetPath];
+  return {
+    ...wp,
+    results: { source: src, ...(paths[0] ? { sheetPath: paths[0] } : {}), ...(paths.length > 1 ? { sheetPaths: paths } : {}), items, recordedAt: o.at.toISOString() },
+  };
 }
 
 /** The result of voiding an item: it is replaced by the next unused spare (or the sample is one short). */

@@ -136,7 +136,8 @@ async function runLocked(ctx: CommandContext, o: DemoOptions, sc: ScenarioFile, 
       throw new FileInputError(src, `The demo scenario needs ${src}, which is missing.`);
     }
     writeFileSafely(join(out, f), readRegularFile(src, 'The demo file'), { what: 'the demo copy' });
-    files.push({ what: f.includes('filled') ? 'filled fieldwork sheet (the tester\'s results)' : 'population', path: join(out, f) });
+    const what = f.includes('filled') ? 'filled fieldwork sheet (the tester\'s results)' : f.startsWith('evidence') ? 'evidence file (fingerprinted when recorded)' : 'population';
+    files.push({ what, path: join(out, f) });
   }
   const wpPath = join(out, sc.workpaper);
   const sheetPath = join(out, defaultSheetName(wpPath));

@@ -5,7 +5,7 @@
  * completeness tie-out against the ledger figures the user enters.
  */
 import { basename, relative, resolve, sep } from 'node:path';
-import { groupDigits, parseRanges, scanPopulation, type PopulationScan, type PopulationSource as ReadSource } from '../population/index.js';
+import { groupDigits, parseNonWorkingDays, parseRanges, PERIOD_FREQUENCIES, scanPopulation, type PopulationScan, type PopulationSource as ReadSource } from '../population/index.js';
 import { TolrateInputError } from '../errors.js';
 import type { Population, PopulationSource } from '../workpaper/schema.js';
 import { int } from '../util/format.js';
@@ -37,6 +37,7 @@ export function isZeroDecimal(d: string): boolean {
 /** Where the population is read from, with the path resolved against the workpaper's folder. */
 export function readSource(src: PopulationSource, workpaperDir: string): ReadSource {
   if (src.kind === 'ranges') return { kind: 'ranges', ranges: src.ranges, exclusions: src.exclusions };
+  if (src.kind === 'periods') return { ...src };
   return { ...src, path: resolve(workpaperDir, src.path) } as ReadSource;
 }
 
@@ -65,6 +66,54 @@ function guessColumn(columns: readonly string[], re: RegExp): string | undefined
   return columns.find((c) => re.test(c));
 }
 
+/**
+ * A periodic control's population: the period's months, quarters, weeks or working days, made
+ * from the engagement's period and the control's frequency (no file to make by hand).
+ */
+async function askPeriods(s: Session, old: Extract<PopulationSource, { kind: 'periods' }> | undefined): Promise<SourceTry> {
+  const a = s.asker;
+  const e = s.wp.engagement!;
+  const fromControl = s.wp.control?.frequency;
+  const frequency = await a.select({
+    id: 'plan.population.frequency',
+    message: `One sampling unit for each (period ${e.periodStart} to ${e.periodEnd})`,
+    choices: [
+      { value: 'monthly' as const, name: 'Month (a monthly control)' },
+      { value: 'quarterly' as const, name: 'Quarter (a quarterly control)' },
+      { value: 'weekly' as const, name: 'Week, Monday to Sunday (a weekly control)' },
+      { value: 'daily' as const, name: 'Working day, Monday to Friday (a daily control)' },
+    ],
+    default: old?.frequency ?? (fromControl && (PERIOD_FREQUENCIES as readonly string[]).includes(fromControl) ? (fromControl as (typeof PERIOD_FREQUENCIES)[number]) : 'monthly'),
+  });
+  const nonWorkingDays =
+    frequency === 'daily'
+      ? await a.text({
+          id: 'plan.population.nonWorkingDays',
+          message: 'Non-working days besides Saturdays and Sundays (YYYY-MM-DD, separated by commas), blank = none',
+          help: 'Public holidays and closures on which the control does not run, e.g. 2025-12-25, 2025-12-26',
+          default: old?.nonWorkingDays.join(', ') ?? '',
+          parse: (t) => {
+            try {
+              return parseNonWorkingDays(t);
+            } catch (err) {
+              throw new AnswerError(err instanceof Error ? err.message : String(err));
+            }
+          },
+        })
+      : [];
+  const source: PopulationSource = { kind: 'periods', frequency, start: e.periodStart, end: e.periodEnd, nonWorkingDays };
+  const read = readSource(source, s.dir);
+  try {
+    return { ok: true, source, read, scan: await scanPopulation(read) };
+  } catch (err) {
+    if (err instanceof TolrateInputError) {
+      s.print(`  ${err.message}`, ...err.details.map((d) => `    ${d}`));
+      return { ok: false, tried: source };
+    }
+    throw err;
+  }
+}
+
 /** One try at the population: what was read, or the answers given so far (the defaults of the next try). */
 type SourceTry = { ok: true; source: PopulationSource; read: ReadSource; scan: PopulationScan } | { ok: false; tried: PopulationSource };
 
@@ -82,9 +131,11 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
     choices: [
       { value: 'file', name: 'A file listing the items (CSV or XLSX)' },
       { value: 'ranges', name: 'Document-number ranges (e.g. 40001-52650), less voided numbers' },
+      { value: 'periods', name: 'The occurrences of a periodic control: each month, quarter, week or working day of the period' },
     ],
-    default: old?.kind === 'ranges' ? 'ranges' : 'file',
+    default: old?.kind === 'ranges' ? 'ranges' : old?.kind === 'periods' ? 'periods' : 'file',
   });
+  if (kind === 'periods') return askPeriods(s, old?.kind === 'periods' ? old : undefined);
   if (kind === 'ranges') {
     const ranges = await a.text({
       id: 'plan.population.ranges',
@@ -119,7 +170,7 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
       throw e;
     }
   }
-  const oldAbs = old && old.kind !== 'ranges' ? resolve(s.dir, old.path) : undefined;
+  const oldAbs = old && (old.kind === 'csv' || old.kind === 'xlsx') ? resolve(s.dir, old.path) : undefined;
   const abs = await a.text({
     id: 'plan.population.file',
     message: 'Population file (CSV or XLSX)',
@@ -130,7 +181,7 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
   const isXlsx = abs.toLowerCase().endsWith('.xlsx');
   const rel = relative(s.dir, abs).split(sep).join('/') || abs;
   // What a failed try keeps for the next one: the file (and sheet), and the columns chosen before.
-  const sameFile = old !== undefined && old.kind !== 'ranges' && resolve(s.dir, old.path) === abs;
+  const sameFile = old !== undefined && (old.kind === 'csv' || old.kind === 'xlsx') && resolve(s.dir, old.path) === abs;
   const keep = (extra: { sheet?: string }): PopulationSource => {
     const base = { path: rel, keyColumn: sameFile ? old.keyColumn : '', ...(sameFile && old.amountColumn ? { amountColumn: old.amountColumn } : {}), ...(sameFile && old.dateColumn ? { dateColumn: old.dateColumn } : {}) };
     return isXlsx ? { kind: 'xlsx', ...base, ...(extra.sheet ? { sheet: extra.sheet } : {}) } : { kind: 'csv', ...base };
@@ -177,7 +228,7 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
     throw e;
   }
   s.print(`  Columns found: ${columns.join(', ')}`);
-  const prevKey = old && old.kind !== 'ranges' && columns.includes(old.keyColumn) ? old.keyColumn : undefined;
+  const prevKey = old && (old.kind === 'csv' || old.kind === 'xlsx') && columns.includes(old.keyColumn) ? old.keyColumn : undefined;
   const keyColumn = await a.select({
     id: 'plan.population.keyColumn',
     message: 'Key column (identifies each sampling unit, e.g. the document number)',
@@ -186,14 +237,14 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
   });
   const NONE = '(none)';
   const optChoices = [{ value: NONE, name: 'None' }, ...columns.filter((c) => c !== keyColumn).map((c) => ({ value: c, name: c }))];
-  const prevAmount = old && old.kind !== 'ranges' ? old.amountColumn : undefined;
+  const prevAmount = old && (old.kind === 'csv' || old.kind === 'xlsx') ? old.amountColumn : undefined;
   const amount = await a.select({
     id: 'plan.population.amountColumn',
     message: 'Amount column (totalled for the tie-out), if any',
     choices: optChoices,
     default: prevAmount && columns.includes(prevAmount) ? prevAmount : (guessColumn(columns, /amount|value|total|gross/i) ?? NONE),
   });
-  const prevDate = old && old.kind !== 'ranges' ? old.dateColumn : undefined;
+  const prevDate = old && (old.kind === 'csv' || old.kind === 'xlsx') ? old.dateColumn : undefined;
   const dateCol = await a.select({
     id: 'plan.population.dateColumn',
     message: 'Date column (checked against the period), if any',

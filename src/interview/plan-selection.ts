@@ -22,9 +22,8 @@ import { int } from '../util/format.js';
 import type { Session } from './session.js';
 import { AnswerError, count, requiredText } from './parse.js';
 import { readSource } from './plan-population.js';
-import { resultColumns, SHEET_CONVENTIONS } from './sheet-results.js';
+import { FIELDWORK_COLUMNS, pickLists, resultColumns, SHEET_CONVENTIONS } from './sheet-results.js';
 import { table, wrap } from './show.js';
-import { XLSX_SHEET_NOTE } from './record.js';
 
 /** The default fieldwork sheet for a workpaper: `NAME.fieldwork.csv` beside `NAME.tolrate.json`. */
 export function defaultSheetName(workpaperPath: string): string {
@@ -231,7 +230,8 @@ export async function askSelection(s: Session): Promise<Selection> {
   await writeFieldworkSheet(sheetAbs, {
     columns,
     items,
-    resultColumns: resultColumns(s.wp.attributes),
+    resultColumns: [...resultColumns(s.wp.attributes), ...FIELDWORK_COLUMNS],
+    pickLists: pickLists(s.wp.attributes),
     notes: [
       `${s.wp.engagement?.entity ?? ''} ${s.wp.control?.id ?? ''}: fieldwork sheet`,
       `Selection ${drawn.algorithm}`,
@@ -242,7 +242,6 @@ export async function askSelection(s: Session): Promise<Selection> {
   });
   const rel = relative(s.dir, sheetAbs).split(sep).join('/') || sheetAbs;
   s.print(`  Fieldwork sheet written: ${rel}`, ...SHEET_CONVENTIONS.flatMap((l) => wrap(l, 92, '    ')));
-  if (extname(sheetAbs).toLowerCase() === '.xlsx') s.print(...wrap(`Note: ${XLSX_SHEET_NOTE}`, 92, '  '));
   return {
     method: drawn.method,
     algorithm: drawn.algorithm,

@@ -6,13 +6,13 @@
  */
 import { isAbsolute, relative, resolve } from 'node:path';
 import { CAUSES, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
-import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
+import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, evidenceRefs, fieldworkGaps, sameFinding, fingerprintEvidence, isoDay, testedOnProblem, withFieldwork, type ItemFieldwork, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
 
 export { worklist, isRecorded, progress, recordingComplete } from '../control-test/index.js';
-import { AnswerError, existingFile, requiredText } from './parse.js';
-import { readResultsSheet, SHEET_CONVENTIONS, type SheetItem, type SheetProblem } from './sheet-results.js';
+import { AnswerError, existingFile, NONE_ANSWER, optionalText, requiredText } from './parse.js';
+import { readResultsSheets, SHEET_CONVENTIONS, type SheetItem, type SheetOptions, type SheetProblem } from './sheet-results.js';
 import { table, wrap } from './show.js';
 import { canonicalJson } from '../workpaper/log.js';
 
@@ -24,15 +24,16 @@ function describe(item: SelectedItem, max = 6): string {
 /**
  * Store one item's result (and save, unless `save` is false). An evaluation or conclusion made
  * from the old results no longer holds: they are cleared in the same save, and the conclusion's
- * answers are kept as the defaults for concluding again.
+ * answers are kept as the defaults for concluding again. A change to the item's tester, date,
+ * evidence or note alone keeps them.
  */
-export async function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string, save = true): Promise<void> {
+export async function storeResult(s: Session, r: ItemResult, source: 'interview' | 'sheet', sheetPath?: string | readonly string[], save = true): Promise<void> {
   const before = s.wp.results?.items.find((x) => x.key === r.key);
   if (before && canonicalJson(before) === canonicalJson(r)) {
     s.print(`  ${r.key}: unchanged.`);
     return;
   }
-  if (s.wp.evaluation || s.wp.conclusion) {
+  if ((s.wp.evaluation || s.wp.conclusion) && !sameFinding(before, r)) {
     s.wp = clearSteps(s.wp, ['conclude']);
     s.print(...wrap('The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).', 92, '  '));
   }
@@ -47,11 +48,6 @@ function voidItem(s: Session, item: SelectedItem, replaces: string | undefined, 
   else s.print(`  ${item.key} is void and no spare is left: the sample will be one item short unless more items are selected.`);
   return result;
 }
-
-/** Results are read back from a CSV sheet only: an XLSX fieldwork sheet is saved as CSV first. */
-export const XLSX_SHEET_NOTE =
-  'Results are read from a CSV sheet only. In the spreadsheet program, save the filled XLSX sheet as CSV ' +
-  '(keep every column and its header as written) and give that file here, or type the results instead.';
 
 export const RESULT_HELP =
   'Conforms: the attribute is met. Deviation: it is not met; a document that cannot be found is a deviation, not a void.\n' +
@@ -98,7 +94,58 @@ export async function askItem(s: Session, item: SelectedItem, replaces: string |
     const before = previous?.attributes[attr.id];
     out.attributes[attr.id] = await askDeviation(s, id, before?.result === 'deviation' ? before : undefined);
   }
-  return out;
+  return withFieldwork(out, await askFieldwork(s, item, previous));
+}
+
+export const EVIDENCE_HELP =
+  'The evidence inspected: document numbers, report names or file names, separated by ";". ' +
+  'A file in the workpaper\'s folder (e.g. evidence/PI-253098.pdf) is fingerprinted (SHA-256) so re-performance can check it is unchanged.';
+
+/** Who tested the item, when, the evidence inspected and a note (defaults: the preparer, today). */
+async function askFieldwork(s: Session, item: SelectedItem, previous?: ItemResult): Promise<ItemFieldwork> {
+  const a = s.asker;
+  const id = `record.item.${item.seq}`;
+  const today = isoDay(s.now());
+  const periodStart = s.wp.engagement?.periodStart;
+  const testedBy = await a.text({
+    id: `${id}.testedBy`,
+    message: 'Tested by',
+    default: previous?.testedBy ?? s.wp.engagement?.preparer ?? s.by,
+    parse: requiredText('Who tested the item'),
+  });
+  const testedOn = await a.text({
+    id: `${id}.testedOn`,
+    message: 'Date tested (YYYY-MM-DD)',
+    default: previous?.testedOn ?? today,
+    parse: (t) => {
+      const why = testedOnProblem(t, { today, ...(periodStart ? { periodStart } : {}) });
+      if (why) throw new AnswerError(`The date tested: ${why}.`);
+      return t.trim();
+    },
+  });
+  const prevRefs = (previous?.evidence ?? []).map((e) => e.ref).join('; ');
+  const refs = await a.text({
+    id: `${id}.evidence`,
+    message: 'Evidence inspected (references separated by ";")',
+    help: EVIDENCE_HELP,
+    ...(prevRefs ? { default: prevRefs, editable: true } : {}),
+    parse: (t) => {
+      const list = evidenceRefs(t);
+      if (list.length === 0) throw new AnswerError('Name at least one piece of evidence inspected: a document number, a report or a file name.');
+      return list;
+    },
+  });
+  const note = await a.text({
+    id: `${id}.note`,
+    message: `Note (optional${previous?.note ? `; ${NONE_ANSWER} for none` : ''})`,
+    default: previous?.note ?? '',
+    ...(previous?.note ? { editable: true } : {}),
+    parse: (t) => (t.trim() === NONE_ANSWER ? undefined : optionalText(t)),
+  });
+  const evidence = fingerprintEvidence(s.dir, refs);
+  const files = evidence.filter((e) => e.sha256);
+  if (files.length > 0) s.print(`  Fingerprinted: ${files.map((e) => `${e.ref} (SHA-256 ${e.sha256!.slice(0, 12)}…)`).join(', ')}`);
+  return { testedBy, testedOn, evidence, ...(note ? { note } : {}) };
 }
 
 async function askDeviation(s: Session, id: string, before?: Extract<AttributeResult, { result: 'deviation' }>): Promise<AttributeResult> {
@@ -139,36 +186,52 @@ async function askDeviation(s: Session, id: string, before?: Extract<AttributeRe
   return { result: 'deviation', found, cause, ...(causeDetail ? { causeDetail } : {}), intentional, pattern };
 }
 
-function sheetRecord(sheet: SheetItem, item: SelectedItem, replaces: string | undefined): ItemResult | 'void' | undefined {
+function sheetRecord(s: Session, sheet: SheetItem, item: SelectedItem, replaces: string | undefined): ItemResult | 'void' | undefined {
   if (sheet.blank || sheet.problems.length > 0) return undefined;
   if (sheet.void) return 'void';
-  return { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: sheet.attributes };
+  const f = sheet.fieldwork;
+  return withFieldwork(
+    { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: sheet.attributes },
+    { ...f, evidence: fingerprintEvidence(s.dir, f.evidence) },
+  );
 }
 
 export function problemLines(problems: readonly SheetProblem[], max = 40): string[] {
   // "Sheet row" as the spreadsheet numbers it (header = 1), not the population row in the sheet's own Row column.
-  const lines = table(['Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why]));
+  // The sheet is named when there are several, or when it is a workbook's sheet.
+  const sheets = new Set(problems.map((p) => p.sheet).filter((x): x is string => x !== undefined));
+  const named = sheets.size > 1 || [...sheets].some((x) => x.includes(', sheet '));
+  const cells = (p: SheetProblem) => [String(p.row), p.column, p.value === '' ? '(blank)' : p.value, p.why];
+  const lines = named
+    ? table(['Sheet', 'Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map((p) => [p.sheet ?? '', ...cells(p)]))
+    : table(['Sheet row', 'Column', 'Value', 'Why'], problems.slice(0, max).map(cells));
   if (problems.length > max) lines.push(`  ... and ${problems.length - max} more`);
   return lines;
+}
+
+function sheetOptions(s: Session): SheetOptions {
+  const start = s.wp.engagement?.periodStart;
+  return { today: isoDay(s.now()), ...(start ? { periodStart: start } : {}) };
 }
 
 /**
  * Apply the sheet from the next unrecorded item on, item by item, until one has no readable
  * result. Returns the problems that stop it (empty when everything is recorded).
  */
-async function applySheet(s: Session, sheetAbs: string, sheetRel: string): Promise<SheetProblem[]> {
+async function applySheet(s: Session, sheetsAbs: readonly string[], sheetsRel: readonly string[]): Promise<SheetProblem[]> {
   const sel = s.wp.selection!;
-  const read = readResultsSheet(sheetAbs, sel.items, s.wp.attributes!);
+  const read = await readResultsSheets(sheetsAbs, sel.items, s.wp.attributes!, sheetOptions(s));
+  const sheetRel = sheetsRel.join('; ');
   let applied = 0;
   for (;;) {
     const wl = worklist(s.wp);
     if (!wl.next) break;
     const { item, replaces } = wl.next;
     const row = read.items.get(item.seq);
-    const rec = row ? sheetRecord(row, item, replaces) : undefined;
+    const rec = row ? sheetRecord(s, row, item, replaces) : undefined;
     if (rec === undefined) break;
     const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
-    await storeResult(s, result, 'sheet', sheetRel, false);
+    await storeResult(s, result, 'sheet', sheetsRel, false);
     applied++;
   }
   if (applied > 0) await s.save('record');
@@ -208,21 +271,26 @@ async function applySheet(s: Session, sheetAbs: string, sheetRel: string): Promi
 async function recordFromSheet(s: Session): Promise<'done' | 'stopped'> {
   const a = s.asker;
   // Stored relative to the workpaper's folder; typed (and suggested) relative to the working folder.
-  const stored = s.wp.results?.sheetPath ?? s.wp.selection!.fieldworkSheet;
-  const suggested = stored ? relative(s.cwd, resolve(s.dir, stored)) || stored : undefined;
+  const r = s.wp.results;
+  const stored = r?.sheetPaths ?? (r?.sheetPath ? [r.sheetPath] : s.wp.selection!.fieldworkSheet ? [s.wp.selection!.fieldworkSheet] : []);
+  const suggested = stored.length ? stored.map((p) => relative(s.cwd, resolve(s.dir, p)) || p).join('; ') : undefined;
   const abs = await a.text({
     id: 'record.sheet.path',
-    message: 'Filled fieldwork sheet (CSV)',
+    message: 'Filled fieldwork sheet (CSV or XLSX; several, one per tester, separated by ";")',
     help: SHEET_CONVENTIONS.join('\n'),
     ...(suggested ? { default: suggested } : {}),
     parse: (t) => {
-      if (/\.xlsx["']?\s*$/i.test(t.trim())) throw new AnswerError(XLSX_SHEET_NOTE);
-      return existingFile('The sheet', s.cwd, ['.csv'])(t);
+      const list = t.split(';').map((x) => x.trim()).filter((x) => x !== '');
+      if (list.length === 0) throw new AnswerError('Name the filled sheet (or several, separated by ";").');
+      const files = list.map((x) => existingFile('The sheet', s.cwd, ['.csv', '.xlsx'])(x));
+      const twice = files.find((f, i) => files.indexOf(f) !== i);
+      if (twice) throw new AnswerError(`${relative(s.cwd, twice) || twice} is named twice.`);
+      return files;
     },
   });
-  const rel = isAbsolute(abs) ? relative(s.dir, abs) || abs : abs;
+  const rel = abs.map((p) => (isAbsolute(p) ? relative(s.dir, p) || p : p).split('\\').join('/'));
   for (let round = 1; ; round++) {
-    const problems = await applySheet(s, abs, rel.split('\\').join('/'));
+    const problems = await applySheet(s, abs, rel);
     if (problems.length === 0) return 'done';
     const wl = worklist(s.wp);
     s.print('', `  The sheet cannot be read for the items still to record (${problems.length} problem(s)); nothing was guessed:`);
@@ -289,6 +357,11 @@ export async function runRecordStep(s: Session): Promise<'done' | 'stopped'> {
     s.print(...recordSummary(s.wp));
     const short = worklist(s.wp).shortBy;
     if (short > 0) s.print(`  The sample is ${short} item(s) short: voided items without a spare left.`);
+    const gaps = fieldworkGaps(s.wp);
+    if (gaps.length > 0) {
+      const shown = gaps.slice(0, 5).map((g) => `${g.key} (${g.missing.join(', ')})`).join('; ');
+      s.print(...wrap(`${gaps.length} tested item(s) have no record of who tested them, when, or on what evidence (a sheet without those columns): ${shown}${gaps.length > 5 ? '; ...' : ''}. Change the item's result to add them.`, 92, '  '));
+    }
   }
   return got;
 }

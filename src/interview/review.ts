@@ -23,7 +23,7 @@ import {
 } from '../control-test/index.js';
 import { REVIEW_SECTIONS, type ReviewNote, type ReviewSection, type Workpaper } from '../workpaper/schema.js';
 import { formatReport, reperform } from '../reperform/index.js';
-import { groupDigits } from '../population/index.js';
+import { describePeriods, groupDigits } from '../population/index.js';
 import { int, pct, pctPlain } from '../util/format.js';
 import type { Session } from './session.js';
 import { date, requiredText, today } from './parse.js';
@@ -66,7 +66,7 @@ export function sectionLines(wp: Workpaper, section: ReviewSection): string[] {
       const p = wp.population;
       if (!p) break;
       kv('Population', `${p.description}; sampling unit: ${p.samplingUnit}`);
-      kv('Source', p.source.kind === 'ranges' ? `ranges ${p.source.ranges}` : p.source.path);
+      kv('Source', p.source.kind === 'ranges' ? `ranges ${p.source.ranges}` : p.source.kind === 'periods' ? describePeriods(p.source) : p.source.path);
       kv('Count', `${int(p.fingerprint.rowCount)} (ledger ${p.tieOut.ledgerCount !== undefined ? int(p.tieOut.ledgerCount) : 'not given'}, difference ${p.tieOut.countDifference !== undefined ? int(p.tieOut.countDifference) : 'n/a'})`);
       kv('Total', p.fingerprint.amountTotal !== undefined ? `${groupDigits(p.fingerprint.amountTotal)} (ledger ${p.tieOut.ledgerTotal !== undefined ? groupDigits(p.tieOut.ledgerTotal) : 'not given'}, difference ${p.tieOut.totalDifference !== undefined ? groupDigits(p.tieOut.totalDifference) : 'n/a'})` : undefined);
       kv('Ledger source', p.tieOut.ledgerSource);

@@ -14,20 +14,32 @@
  *   A1 intent [no/suspected/yes]        for a D (required: it is never assumed)
  *   A1 pattern [isolated/systemic/unclear]  for a D (required)
  *   Void reason           for a V (required)
+ *   Tested by             who tested the item           } for every tested item, when the
+ *   Date tested           YYYY-MM-DD                    } sheet has these columns (a sheet
+ *   Evidence              references, separated by ;    } written before them has not)
+ *   Note                  optional
  *
  * A row is matched to the selected item by its `Seq` and `Key` columns. Nothing is guessed:
  * every cell that cannot be read is reported with its row, column, value and why.
  */
+import { basename, extname } from 'node:path';
 import { readRegularFile } from '../io/read.js';
 import { withoutQuotes } from '../io/messages.js';
 import { parse } from 'csv-parse/sync';
 import { FileInputError } from '../errors.js';
-import { KEY_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
-import { CAUSE_LABELS } from '../control-test/index.js';
+import { FIELDWORK_SHEET, INSTRUCTIONS_SHEET, KEY_COLUMN, NOTE_COLUMN, restoreCell, SEQ_COLUMN } from '../selection/index.js';
+import { cellText } from '../population/index.js';
+import { CAUSE_LABELS, evidenceRefs, testedOnProblem } from '../control-test/index.js';
 import { CAUSES, INTENT, PATTERNS, type Attribute, type AttributeResult, type Cause, type SelectedItem } from '../workpaper/schema.js';
 
 export { SEQ_COLUMN, KEY_COLUMN };
 export const VOID_COLUMN = 'Void reason';
+export const TESTED_BY_COLUMN = 'Tested by';
+export const TESTED_ON_COLUMN = 'Date tested [YYYY-MM-DD]';
+export const EVIDENCE_COLUMN = 'Evidence [references; separated by ;]';
+
+/** The fieldwork columns after the results (the Note column follows them, last). */
+export const FIELDWORK_COLUMNS: readonly string[] = [TESTED_BY_COLUMN, TESTED_ON_COLUMN, EVIDENCE_COLUMN];
 
 /** The result columns for one attribute, as written in the header. */
 export function attributeColumns(id: string): { result: string; found: string; cause: string; intent: string; pattern: string } {
@@ -45,15 +57,32 @@ export function resultColumns(attributes: readonly Pick<Attribute, 'id'>[]): str
   return [...attributes.flatMap((a) => Object.values(attributeColumns(a.id))), VOID_COLUMN];
 }
 
+/** The pick lists of the XLSX sheet, by column: result codes, causes, intent and pattern. */
+export function pickLists(attributes: readonly Pick<Attribute, 'id'>[]): Record<string, readonly string[]> {
+  const out: Record<string, readonly string[]> = {};
+  for (const a of attributes) {
+    const c = attributeColumns(a.id);
+    out[c.result] = ['C', 'D', 'V'];
+    out[c.cause] = CAUSES;
+    out[c.intent] = INTENT;
+    out[c.pattern] = PATTERNS;
+  }
+  return out;
+}
+
 /** The conventions as short lines (for the sheet's notes and the interview's help). */
 export const SHEET_CONVENTIONS: readonly string[] = [
   'Result: C = conforms, D = deviation, V = void (properly cancelled document, replaced by the next spare).',
   'A document that cannot be found is a deviation (D), not a void.',
   `For a D fill found, cause (${CAUSES.join(', ')}), intent (no/suspected/yes) and pattern (isolated/systemic/unclear).`,
   'For a V fill the void reason. Leave the rows of unused spares blank.',
+  'For every tested item fill who tested it, the date tested (YYYY-MM-DD) and the evidence inspected (references separated by ;); the note is optional.',
+  'A piece of evidence that is a file in the workpaper\'s folder (e.g. evidence/PI-253098.pdf) is fingerprinted (SHA-256) when the sheet is read.',
 ];
 
 export interface SheetProblem {
+  /** The file (and, for a workbook, its sheet) the problem is in, when more than one may be read. */
+  sheet?: string;
   /** Row in the sheet as a spreadsheet shows it (header = 1). */
   row: number;
   column: string;
@@ -69,7 +98,18 @@ export interface SheetItem {
   blank: boolean;
   void?: { reason: string };
   attributes: Record<string, AttributeResult>;
+  /** Tester, date tested, evidence references and note, as read (evidence not yet fingerprinted). */
+  fieldwork: { testedBy?: string; testedOn?: string; evidence: string[]; note?: string };
   problems: SheetProblem[];
+}
+
+export interface SheetOptions {
+  /** Today (YYYY-MM-DD): a date tested after it is refused. */
+  today?: string;
+  /** The period's start: a date tested before it is refused. */
+  periodStart?: string;
+  /** Named in every problem (file, and sheet of a workbook). */
+  sheet?: string;
 }
 
 export interface SheetRead {
@@ -77,6 +117,12 @@ export interface SheetRead {
   items: Map<number, SheetItem>;
   /** Problems not tied to one item (missing columns, unknown rows). */
   problems: SheetProblem[];
+}
+
+/** The file (and sheet) an item was read from. */
+const SOURCE = new WeakMap<SheetItem, string>();
+function sheetOf(it: SheetItem): string {
+  return SOURCE.get(it) ?? '';
 }
 
 /** Header text as compared: lower case, bracketed reminder removed, spaces collapsed. */
@@ -106,14 +152,31 @@ function choice<T extends string>(list: readonly T[], t: string): T | undefined 
   return list.find((x) => x === w);
 }
 
-/** Parse the filled sheet text against the selection and the attributes. */
-export function parseResultsSheet(text: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
+/** Parse the filled sheet text (CSV) against the selection and the attributes. */
+export function parseResultsSheet(text: string, items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): SheetRead {
   let records: string[][];
   try {
     records = parse(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true }) as string[][];
   } catch (e) {
-    throw new FileInputError('sheet', `The sheet is not a readable CSV file: ${withoutQuotes((e as Error).message)}`);
+    throw new FileInputError(o.sheet ?? 'sheet', `The sheet is not a readable CSV file: ${withoutQuotes((e as Error).message)}`);
   }
+  return parseResultsRows(records, items, attributes, o);
+}
+
+/** Parse the filled sheet's rows (header first, every cell as text) against the selection and the attributes. */
+export function parseResultsRows(records: readonly string[][], items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): SheetRead {
+  const read = parseRows(records, items, attributes, o);
+  if (o.sheet) {
+    for (const p of read.problems) p.sheet = o.sheet;
+    for (const it of read.items.values()) {
+      SOURCE.set(it, o.sheet);
+      for (const p of it.problems) p.sheet = o.sheet;
+    }
+  }
+  return read;
+}
+
+function parseRows(records: readonly string[][], items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions): SheetRead {
   const problems: SheetProblem[] = [];
   const out: SheetRead = { items: new Map(), problems };
   const header = records[0];
@@ -151,7 +214,7 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
       problems.push({ row, column: SEQ_COLUMN, value: seqText, why: `item ${seq} appears twice (first at row ${out.items.get(seq)!.row})` });
       return;
     }
-    const item: SheetItem = { seq, key: sel.key, row, blank: true, attributes: {}, problems: [] };
+    const item: SheetItem = { seq, key: sel.key, row, blank: true, attributes: {}, fieldwork: { evidence: [] }, problems: [] };
     out.items.set(seq, item);
     // Problems name the column as the sheet's header writes it.
     const bad = (column: string, value: string, why: string) => item.problems.push({ row, column: shownName(column), value, why });
@@ -175,7 +238,15 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
     }
     const voidReason = cell(r, VOID_COLUMN);
     if (voidReason !== '') item.blank = false;
+    const has = (name: string) => col(name) !== undefined;
+    const opt = (name: string) => (has(name) ? cell(r, name) : '');
+    const testedBy = opt(TESTED_BY_COLUMN);
+    const testedOn = opt(TESTED_ON_COLUMN);
+    const evidence = evidenceRefs(opt(EVIDENCE_COLUMN));
+    const note = opt(NOTE_COLUMN);
+    if (testedBy !== '' || testedOn !== '' || evidence.length > 0) item.blank = false;
     if (item.blank) return;
+    item.fieldwork = { ...(testedBy ? { testedBy } : {}), ...(testedOn ? { testedOn } : {}), evidence, ...(note ? { note } : {}) };
     const isVoid = kinds.some(([, k]) => k === 'void');
     if (isVoid) {
       const tested = kinds.filter(([, k]) => k === 'conforms' || k === 'deviation');
@@ -187,6 +258,13 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
       return;
     }
     if (voidReason !== '') bad(VOID_COLUMN, voidReason, 'a void reason is given but no result is V');
+    // A tested item says who tested it, when, and on what evidence (when the sheet has the columns).
+    if (has(TESTED_BY_COLUMN) && testedBy === '') bad(TESTED_BY_COLUMN, '', 'a tested item needs who tested it');
+    if (has(TESTED_ON_COLUMN)) {
+      const why = testedOn === '' ? 'a tested item needs the date it was tested (YYYY-MM-DD)' : testedOnProblem(testedOn, { today: o.today ?? '9999-12-31', ...(o.periodStart ? { periodStart: o.periodStart } : {}) });
+      if (why) bad(TESTED_ON_COLUMN, testedOn, why);
+    }
+    if (has(EVIDENCE_COLUMN) && evidence.length === 0) bad(EVIDENCE_COLUMN, '', 'a tested item needs the evidence inspected: document numbers or file names, separated by ;');
     for (const [a, k] of kinds) {
       const c = attributeColumns(a.id);
       if (k === undefined) {
@@ -224,14 +302,105 @@ export function parseResultsSheet(text: string, items: readonly SelectedItem[], 
   return out;
 }
 
-export function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[]): SheetRead {
-  let text: string;
+/** The sheet's rows as text: a CSV file, or the "Fieldwork" sheet (else the first) of an XLSX workbook. */
+async function sheetRecords(path: string): Promise<{ records: string[][] | undefined; text?: string; label: string }> {
+  const name = basename(path);
+  let data: Buffer;
   try {
-    // Read as it was (with its byte order mark, which the parser expects to handle itself).
-    text = readRegularFile(path, 'The filled fieldwork sheet').toString('utf8');
+    data = readRegularFile(path, 'The filled fieldwork sheet');
   } catch (e) {
     if ((e as { errno?: string }).errno === 'ENOENT') throw new FileInputError(path, `No sheet at ${path}.`);
     throw e;
   }
-  return parseResultsSheet(text, items, attributes);
+  if (extname(path).toLowerCase() !== '.xlsx') return { records: undefined, text: data.toString('utf8'), label: name };
+  const ExcelJS = (await import('exceljs')).default;
+  const wb = new ExcelJS.Workbook();
+  try {
+    await wb.xlsx.load(data as unknown as ArrayBuffer);
+  } catch (e) {
+    throw new FileInputError(path, `${name} is not a readable XLSX workbook: ${(e as Error).message}`);
+  }
+  const ws = wb.getWorksheet(FIELDWORK_SHEET) ?? wb.worksheets.find((w) => w.name !== INSTRUCTIONS_SHEET) ?? wb.worksheets[0];
+  if (!ws) throw new FileInputError(path, `${name} has no sheets.`);
+  const records: string[][] = [];
+  const width = ws.columnCount;
+  for (let r = 1; r <= ws.rowCount; r++) {
+    const row = ws.getRow(r);
+    const cells: string[] = [];
+    for (let c = 1; c <= width; c++) {
+      const v = row.getCell(c).value as unknown;
+      // A formula is shown as typed (=...): it is never taken for the value it computes.
+      const f = v && typeof v === 'object' && ('formula' in v || 'sharedFormula' in v) ? `=${String((v as { formula?: string; sharedFormula?: string }).formula ?? (v as { sharedFormula?: string }).sharedFormula)}` : undefined;
+      cells.push(f ?? cellText(v));
+    }
+    if (cells.some((c) => c.trim() !== '')) records.push(cells);
+    else if (records.length > 0) records.push(cells.map(() => ''));
+  }
+  // Rows as the spreadsheet numbers them: blank rows count; trailing blank rows are dropped.
+  while (records.length > 0 && records[records.length - 1]!.every((c) => c.trim() === '')) records.pop();
+  return { records, label: `${name}, sheet ${ws.name}` };
+}
+
+/** Read one filled sheet (CSV or XLSX); every problem names the file (and the workbook's sheet). */
+export async function readResultsSheet(path: string, items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): Promise<SheetRead> {
+  const got = await sheetRecords(path);
+  const opts = { ...o, sheet: o.sheet ?? got.label };
+  return got.records ? parseResultsRows(got.records, items, attributes, opts) : parseResultsSheet(got.text!, items, attributes, opts);
+}
+
+/**
+ * Read several filled sheets (one per tester) and merge them. An item filled on more than one
+ * sheet must say the same on each; when it does not, it is refused with both values and both
+ * files named, and nothing is taken for it. Blank rows (items another tester has) are ignored.
+ */
+export async function readResultsSheets(paths: readonly string[], items: readonly SelectedItem[], attributes: readonly Attribute[], o: SheetOptions = {}): Promise<SheetRead> {
+  const reads = [];
+  for (const p of paths) reads.push(await readResultsSheet(p, items, attributes, o));
+  if (reads.length === 1) return reads[0]!;
+  const out: SheetRead = { items: new Map(), problems: reads.flatMap((r) => r.problems) };
+  const from = new Map<number, SheetItem>();
+  for (const read of reads) {
+    for (const [seq, it] of read.items) {
+      const had = from.get(seq);
+      if (!had || had.blank) {
+        from.set(seq, it);
+        continue;
+      }
+      if (it.blank) continue;
+      const conflict = sheetConflict(had, it, attributes);
+      const problems = [...had.problems, ...it.problems, ...conflict];
+      if (problems.length > had.problems.length) {
+        const merged: SheetItem = { ...had, problems };
+        SOURCE.set(merged, sheetOf(had));
+        from.set(seq, merged);
+      }
+    }
+  }
+  out.items = from;
+  return out;
+}
+
+function shownResult(it: SheetItem, id: string): string {
+  if (it.void) return `V (${it.void.reason})`;
+  const r = it.attributes[id];
+  if (!r) return '(no readable result)';
+  return r.result === 'conforms' ? 'C' : `D (${r.found}; ${r.cause}; ${r.intentional}; ${r.pattern})`;
+}
+
+/** The ways two sheets' rows of one item differ, each as a problem naming both values and both files. */
+function sheetConflict(a: SheetItem, b: SheetItem, attributes: readonly Attribute[]): SheetProblem[] {
+  const where = (x: SheetItem) => `${sheetOf(x)} row ${x.row}`;
+  const out: SheetProblem[] = [];
+  const add = (column: string, va: string, vb: string) =>
+    out.push({ sheet: sheetOf(b), row: b.row, column, value: vb, why: `item ${b.seq} (${b.key}) differs between two sheets in ${column}: "${va}" in ${where(a)}, "${vb}" in ${where(b)}; nothing is taken for it until one is corrected` });
+  for (const attr of attributes) {
+    const va = shownResult(a, attr.id);
+    const vb = shownResult(b, attr.id);
+    if (va !== vb) add(`${attr.id} result`, va, vb);
+    if (a.void || b.void) break;
+  }
+  const f = (x: SheetItem) => x.fieldwork;
+  if ((f(a).testedBy ?? '') !== (f(b).testedBy ?? '')) add('Tested by', f(a).testedBy ?? '', f(b).testedBy ?? '');
+  if ((f(a).testedOn ?? '') !== (f(b).testedOn ?? '')) add('Date tested', f(a).testedOn ?? '', f(b).testedOn ?? '');
+  return out;
 }

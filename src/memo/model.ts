@@ -5,6 +5,7 @@
  * Percentages use src/util/format.ts: rates to one decimal place, upper limits and risks rounded up,
  * exact values (4 decimal places of a percent) for the appendix.
  */
+import { describePeriods } from '../population/index.js';
 import { basename } from 'node:path';
 import { int, pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import type {
@@ -50,6 +51,9 @@ export interface DeviationView {
   pattern: string;
   intentionalCode: string;
   patternCode: string;
+  /** The item's date and amount from the population (its date and amount columns), when known. */
+  date: string;
+  amount: string;
 }
 
 export interface ItemView {
@@ -60,6 +64,13 @@ export interface ItemView {
   /** One per attribute, in attribute order. */
   results: string[];
   note: string;
+  /** Who tested it, when, the evidence inspected and the tester's note ('' when not recorded). */
+  testedBy: string;
+  testedOn: string;
+  evidence: string;
+  itemNote: string;
+  /** The item was tested (not void, not an unused spare). */
+  tested: boolean;
 }
 
 export interface SpareView {
@@ -171,6 +182,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   if (p) {
     const src = p.source;
     if (src.kind === 'ranges') populationSource = `${src.ranges}${src.exclusions.length ? ` (excluding ${src.exclusions.join(', ')})` : ''}`;
+    else if (src.kind === 'periods') populationSource = describePeriods(src);
     else populationSource = `${src.path}${src.kind === 'xlsx' && src.sheet ? `, sheet ${src.sheet}` : ''}`;
   }
 
@@ -184,6 +196,9 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   const counts = countResults(wp);
   const bySeq = new Map(resultItems.map((i) => [i.seq, i]));
 
+  const selByKey = new Map((s?.items ?? []).map((x) => [x.key, x]));
+  const srcCols = p && (p.source.kind === 'csv' || p.source.kind === 'xlsx') ? p.source : undefined;
+  const valueOf = (key: string, column: string | undefined): string => (column ? (selByKey.get(key)?.values[column] ?? '') : '');
   const deviations: DeviationView[] = [];
   for (const attr of attrs) {
     for (const it of tested) {
@@ -199,6 +214,8 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
           pattern: L.patterns[r.pattern],
           intentionalCode: r.intentional,
           patternCode: r.pattern,
+          date: valueOf(it.key, srcCols?.dateColumn),
+          amount: formatAmount(valueOf(it.key, srcCols?.amountColumn)) ?? '',
         });
       }
     }
@@ -284,7 +301,12 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
       results = attrs.map(() => L.resultMissing);
       if (si.role === 'spare' && wp.results) role = L.spareUnused;
     }
-    items.push({ seq: si.seq, key: si.key, row: si.row, role, results, note });
+    const evidence = (r?.evidence ?? []).map((x) => (x.sha256 ? `${x.ref} (${L.sha256} ${x.sha256.slice(0, 12)}…)` : x.ref)).join('; ');
+    items.push({
+      seq: si.seq, key: si.key, row: si.row, role, results, note,
+      testedBy: r?.testedBy ?? '', testedOn: r?.testedOn ?? '', evidence, itemNote: r?.note ?? '',
+      tested: r !== undefined && !r.void && Object.keys(r.attributes).length > 0,
+    });
   }
 
   const notSupported = (wp.conclusion?.attributes ?? []).filter((x) => !x.supportsReliance).map((x) => x.attributeId);

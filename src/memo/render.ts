@@ -374,8 +374,8 @@ async function populationSection(c: Ctx): Promise<void> {
       [L.populationDescription, pop.description],
       [L.samplingUnit, pop.samplingUnit],
       [L.source, b.v(values.populationSource)],
-      [L.keyColumn, src.kind !== 'ranges' ? src.keyColumn : undefined],
-      [L.amountColumn, src.kind !== 'ranges' ? src.amountColumn : undefined],
+      [L.keyColumn, src.kind === 'csv' || src.kind === 'xlsx' ? src.keyColumn : undefined],
+      [L.amountColumn, src.kind === 'csv' || src.kind === 'xlsx' ? src.amountColumn : undefined],
       [L.scannedAt, pop.scannedAt.replace('T', ' ').replace(/:\d\d(\.\d+)?Z$/, ' UTC')],
     ]);
     b.h2(H.tieOut);
@@ -596,14 +596,17 @@ async function deviationsSection(c: Ctx): Promise<void> {
     b.ps(T.deviationsLead);
     b.table(
       [
-        { header: L.itemKey, w: 1.0 },
-        { header: L.attribute, w: 0.75 },
-        { header: L.found, w: 2.2 },
-        { header: L.cause, w: 1.5 },
+        { header: L.itemKey, w: 1.05 },
+        { header: L.itemDate, w: 0.95 },
+        { header: L.amount, w: 1.0, align: 'right' },
+        { header: L.attribute, w: 0.85 },
+        { header: L.found, w: 2.0 },
+        { header: L.cause, w: 1.15 },
         { header: L.intentional, w: 1.0 },
         { header: L.pattern, w: 0.9 },
       ],
-      m.deviations.map((d) => [{ text: d.key, bold: true }, d.attributeId, d.found, d.cause, d.intentional, d.pattern]),
+      m.deviations.map((d) => [{ text: d.key, bold: true }, d.date, d.amount, d.attributeId, d.found, d.cause, d.intentional, d.pattern]),
+      { size: 16 },
     );
   }
 
@@ -794,6 +797,27 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
           it.note,
         ]),
         { size: 16 },
+      );
+    }
+  }
+  // Who tested each item, when, and the evidence: every tested item, conforming or not.
+  const tested = m.items.filter((it) => it.tested);
+  if (m.items.length > 0) {
+    b.p(L.evidencePerItem, { bold: true, keepNext: true });
+    if (tested.length === 0) b.note(b.f(T.appendixEvidenceNone));
+    else {
+      b.ps(T.appendixEvidence);
+      b.table(
+        [
+          { header: L.seq, w: 520, align: 'right' },
+          { header: L.itemKey, w: 1400 },
+          { header: L.testedBy, w: 1300 },
+          { header: L.dateTested, w: 1100 },
+          { header: L.evidence, w: Math.max(1500, b.width - 520 - 1400 - 1300 - 1100 - 2000) },
+          { header: L.note, w: 2000 },
+        ],
+        tested.map((it) => [String(it.seq), it.key, it.testedBy || L.notRecorded, it.testedOn || L.notRecorded, it.evidence || L.notRecorded, it.itemNote]),
+        { size: 16, total: b.width },
       );
     }
   }

@@ -247,6 +247,13 @@ export const MemoFile = z.strictObject({
     underrelianceRisk: para.default('Risk of underreliance'),
     trueRate: para.default('True deviation rate'),
     chanceOfReliance: para.default('Chance of relying on the control'),
+    // Added with the evidence per item: a firm's copy without them gets these.
+    testedBy: para.default('Tested by'),
+    dateTested: para.default('Date tested'),
+    evidence: para.default('Evidence inspected'),
+    itemDate: para.default('Date'),
+    amount: para.default('Amount'),
+    evidencePerItem: para.default('Who tested each item, when, and on what evidence'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
@@ -257,6 +264,8 @@ export const MemoFile = z.strictObject({
     ocLead: para.default('For each attribute, the chance that the sample as adopted (n items, relying on the control with at most c deviations) leads to reliance, for each true deviation rate of the population (with a known population, the rate times N deviations, rounded up). At the tolerable rate this chance is the risk of overreliance; near the expected rate, one minus it is the risk of underreliance (which counts the expected deviations rounded down, so the two can differ slightly).'),
     ocCaption: para.default('The chance of relying on the control against the true deviation rate (dashed: the tolerable rate; dotted: the expected rate).'),
     ocNotStatistical: para.default('The sample is not statistical: it has no operating characteristic to show.'),
+    appendixEvidence: para.default('For every item tested: who tested it, the date tested, the evidence inspected and the tester\'s note. An evidence file kept beside the workpaper is shown with the start of its SHA-256, which re-performance checks again.'),
+    appendixEvidenceNone: para.default('No item has been tested yet.'),
     reviewLead: para.default('The reviewer\'s notes, each with its whole thread: raised, answered, re-opened and cleared, with who and when.'),
   }),
 });

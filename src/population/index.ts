@@ -5,6 +5,7 @@ export type { ParsedAmount, AmountOptions } from './amount.js';
 export { parseDate, ymdText } from './date.js';
 export { detectDelimiter, delimiterOption, delimiterName } from './csv.js';
 export { parseRanges, RANGES_COLUMN } from './ranges.js';
+export { parsePeriods, parseNonWorkingDays, describePeriods, PERIOD_FREQUENCIES, PERIOD_COLUMNS } from './periods.js';
 export { cellText } from './cell-text.js';
 export { nearestColumn } from './columns.js';
 export { PROGRESS_DELAY_MS } from './progress.js';
@@ -13,6 +14,7 @@ export type {
   CsvSource,
   XlsxSource,
   RangesSource,
+  PeriodsSource,
   DateOrder,
   PopulationScan,
   PopulationFingerprint,

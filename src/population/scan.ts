@@ -3,6 +3,7 @@ import { findCsvKeys, readCsvRowsAt, scanCsv } from './csv.js';
 import { KeyFinder, RowPicker } from './pick.js';
 import { makeReporter } from './progress.js';
 import { rangesFindKeys, rangesRowsAt, scanRanges } from './ranges.js';
+import { periodsFindKeys, periodsRowsAt, scanPeriods } from './periods.js';
 import type { KeyLookup, PopulationRow, PopulationScan, PopulationSource, ReadOptions, ReadRowsOptions } from './types.js';
 
 /** The workbook reader, loaded only when a workbook is read (it is not needed for CSV). */
@@ -11,9 +12,9 @@ const xlsx = () => import('./xlsx.js');
 function check(source: PopulationSource): void {
   if (!source || typeof source !== 'object') throw new TolrateInputError('No population source was given.', 'INVALID_SOURCE');
   const kind = (source as { kind?: unknown }).kind;
-  if (kind === 'ranges') return;
+  if (kind === 'ranges' || kind === 'periods') return;
   if (kind !== 'csv' && kind !== 'xlsx') {
-    throw new TolrateInputError(`Unknown population source kind ${JSON.stringify(kind)}; use csv, xlsx or ranges.`, 'INVALID_SOURCE');
+    throw new TolrateInputError(`Unknown population source kind ${JSON.stringify(kind)}; use csv, xlsx, ranges or periods.`, 'INVALID_SOURCE');
   }
   const s = source as { path?: unknown; keyColumn?: unknown };
   if (typeof s.path !== 'string' || s.path.trim() === '') {
@@ -33,6 +34,7 @@ function check(source: PopulationSource): void {
 export async function scanPopulation(source: PopulationSource, opts: ReadOptions = {}): Promise<PopulationScan> {
   check(source);
   if (source.kind === 'ranges') return scanRanges(source);
+  if (source.kind === 'periods') return scanPeriods(source);
   const report = makeReporter(opts);
   try {
     return source.kind === 'csv' ? await scanCsv(source, report) : await (await xlsx()).scanXlsx(source, report);
@@ -62,6 +64,7 @@ export async function readRowsAt(
 ): Promise<PopulationRow[]> {
   check(source);
   if (source.kind === 'ranges') return rangesRowsAt(source, positions);
+  if (source.kind === 'periods') return periodsRowsAt(source, positions);
   const picker = new RowPicker(positions);
   if (picker.sorted.length === 0 && opts.expectSha256 === undefined) return [];
   const report = makeReporter(opts);
@@ -82,6 +85,7 @@ export async function readRowsAt(
 export async function findKeys(source: PopulationSource, keys: readonly string[], opts: ReadOptions = {}): Promise<KeyLookup> {
   check(source);
   if (source.kind === 'ranges') return rangesFindKeys(source, keys);
+  if (source.kind === 'periods') return periodsFindKeys(source, keys);
   const finder = new KeyFinder(keys);
   const report = makeReporter(opts);
   try {

@@ -38,7 +38,18 @@ export interface RangesSource {
   exclusions?: string[];
 }
 
-export type PopulationSource = CsvSource | XlsxSource | RangesSource;
+/** The occurrences of a periodic control: each month, quarter, week or working day of the period (periods.ts). */
+export interface PeriodsSource {
+  kind: 'periods';
+  frequency: 'monthly' | 'quarterly' | 'weekly' | 'daily';
+  /** The period, YYYY-MM-DD. */
+  start: string;
+  end: string;
+  /** Daily: days that are not working days besides Saturdays and Sundays (public holidays, closures). */
+  nonWorkingDays?: string[];
+}
+
+export type PopulationSource = CsvSource | XlsxSource | RangesSource | PeriodsSource;
 
 /** What a reviewer needs to see that the population read is the one tested, and complete. */
 export interface PopulationFingerprint {
@@ -55,7 +66,7 @@ export interface PopulationFingerprint {
   amountTotal?: string;
   /** Number of amounts that could be read and added to the total. */
   amountCount?: number;
-  format: 'csv' | 'xlsx' | 'ranges';
+  format: 'csv' | 'xlsx' | 'ranges' | 'periods';
   /** Worksheet read (xlsx). */
   sheet?: string;
   /** Delimiter used (csv), as a character ('\t' for TAB). */

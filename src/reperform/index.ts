@@ -9,18 +9,19 @@
  *  3. the selection: drawn again from the recorded method, seed and algorithm and compared item
  *     by item (position, key, source row); a haphazard list is checked against the population;
  *  4. the sample size: recomputed from the recorded confidence, rates and model;
- *  5. the evaluation: every rate, limit, risk, decision and extension recomputed from the
+ *  5. the evidence: every evidence file fingerprinted when its item was recorded is unchanged;
+ *  6. the evaluation: every rate, limit, risk, decision and extension recomputed from the
  *     recorded results;
- *  6. the conclusion: no attribute concluded as supporting reliance that the figures or the
+ *  7. the conclusion: no attribute concluded as supporting reliance that the figures or the
  *     qualitative review do not support;
- *  7. optionally the memo: it carries the same figures as the workpaper.
+ *  8. optionally the memo: it carries the same figures as the workpaper.
  */
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { accessSync, constants } from 'node:fs';
 import { readRegularFile } from '../io/read.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { sampleSize as computeSampleSize } from '../stats/index.js';
-import { conclusionProblems, evaluate, evaluationDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
+import { conclusionProblems, evaluate, evaluationDifferences, evidenceDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
 import { parseWorkpaper, verifyLog, type Workpaper } from '../workpaper/index.js';
 import { replay } from '../workpaper/log.js';
 import { compareMemoBlocks, readMemoBlocks } from '../memo/read.js';
@@ -29,7 +30,7 @@ import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js
 import { pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { wrap } from '../util/text.js';
 
-export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'results' | 'evaluation' | 'conclusion' | 'memo';
+export type Area = 'integrity' | 'population' | 'selection' | 'sample size' | 'results' | 'evidence' | 'evaluation' | 'conclusion' | 'memo';
 
 export interface Check {
   area: Area;
@@ -74,6 +75,7 @@ function close(a: number, b: number, tol = LIMIT_TOLERANCE): boolean {
 export function resolveSource(wp: Workpaper, workpaperPath: string, override?: string): { source: import('../population/index.js').PopulationSource; path?: string } {
   const s = wp.population!.source as WorkpaperSource;
   if (s.kind === 'ranges') return { source: { kind: 'ranges', ranges: s.ranges, exclusions: s.exclusions } };
+  if (s.kind === 'periods') return { source: { ...s } };
   const base = dirname(resolve(workpaperPath));
   const path = override ? resolve(override) : isAbsolute(s.path) ? s.path : resolve(base, s.path);
   const cols = {
@@ -114,7 +116,8 @@ async function checkPopulation(wp: Workpaper, opts: ReperformOptions): Promise<{
     diffs.push(`amount total differs: recorded ${rec.amountTotal}, file has ${got.amountTotal ?? '(none)'}`);
   }
   const rel = path ? relative(dirname(resolve(opts.workpaperPath)), path) : undefined;
-  const where = path ? (rel && !rel.startsWith('..') ? rel : path) : `ranges ${(wp.population.source as { ranges: string }).ranges}`;
+  const ws = wp.population.source;
+  const where = path ? (rel && !rel.startsWith('..') ? rel : path) : ws.kind === 'periods' ? `periods: ${pop.describePeriods(ws)}` : `ranges ${(ws as { ranges: string }).ranges}`;
   const summary = diffs.length === 0
     ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${groupDigits(got.amountTotal)}` : ''} — as recorded`
     : `${where}: ${diffs.length} difference(s)`;
@@ -268,6 +271,17 @@ function checkResults(wp: Workpaper): Check {
   return { area: 'results', summary, differences: diffs };
 }
 
+/** Every evidence file fingerprinted when it was recorded is read again: missing or changed is a difference. */
+function checkEvidence(wp: Workpaper, workpaperPath: string): Check {
+  if (!wp.results) return { area: 'evidence', summary: 'no results recorded yet', differences: [], skipped: true };
+  const { checked, differences } = evidenceDifferences(wp, dirname(resolve(workpaperPath)));
+  if (checked === 0) return { area: 'evidence', summary: 'no evidence file was fingerprinted (the references name no file beside the workpaper)', differences: [], skipped: true };
+  const summary = differences.length === 0
+    ? `${checked} evidence file(s) beside the workpaper read again: every SHA-256 as recorded`
+    : `${differences.length} of ${checked} evidence file(s) missing or changed since they were recorded`;
+  return { area: 'evidence', summary, differences };
+}
+
 function checkEvaluation(wp: Workpaper): Check {
   if (!wp.results) return { area: 'evaluation', summary: 'no results recorded yet', differences: [], skipped: true };
   if (!wp.evaluation) return { area: 'evaluation', summary: 'results recorded but not evaluated yet', differences: [], skipped: true };
@@ -372,6 +386,7 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
   checks.push(checkSampleSize(wp));
   checks.push(await checkSelection(wp, source, rowCount));
   checks.push(checkResults(wp));
+  checks.push(checkEvidence(wp, opts.workpaperPath));
   checks.push(checkEvaluation(wp));
   checks.push(checkConclusion(wp));
   if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath, opts.workpaperPath, opts.templateDir, opts.memoLabel));

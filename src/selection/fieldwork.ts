@@ -17,7 +17,10 @@ import type { Selection } from './types.js';
  * quoted when needed. A cell that a spreadsheet would run as a formula (it starts with = + - @,
  * TAB or CR) gets a leading single quote; `restoreCell` undoes that when the sheet is read back.
  * XLSX (a path ending in .xlsx): the same table in a sheet "Fieldwork" (cells are text, never
- * formulas), and the notes, if any, in a sheet "About".
+ * formulas; the columns to fill are formatted as text so a spreadsheet keeps a date or a code as
+ * typed), the header frozen and filtered, columns sized to their content, a pick list (data
+ * validation) on every column given one in `pickLists`, and the notes, if any, on a second sheet
+ * "Instructions".
  * Either is written through the one writer (src/io/write.ts): a temporary file beside the target,
  * every byte checked and flushed, then renamed over it.
  */
@@ -45,9 +48,15 @@ export interface FieldworkSheet {
   attributes?: Array<{ id: string; description?: string }>;
   /** Use these result columns instead (e.g. the interview's own set); the Note column follows. */
   resultColumns?: string[];
-  /** Lines for the XLSX "About" sheet (seed, algorithm, fingerprint...). Not written to CSV. */
+  /** Lines for the XLSX "Instructions" sheet (how to fill it, seed, algorithm, fingerprint...). Not written to CSV. */
   notes?: string[];
+  /** XLSX: the values offered in a column's pick list, by the column's header (e.g. "A1 result [C/D/V]": C, D, V). */
+  pickLists?: Record<string, readonly string[]>;
 }
+
+/** The name of the fieldwork table's sheet in a workbook. */
+export const FIELDWORK_SHEET = 'Fieldwork';
+export const INSTRUCTIONS_SHEET = 'Instructions';
 
 const RISKY = /^[=+\-@\t\r]/;
 
@@ -96,22 +105,49 @@ async function fieldworkXlsx(sheet: FieldworkSheet): Promise<Buffer> {
   const ExcelJS = (await import('exceljs')).default;
   const wb = new ExcelJS.Workbook();
   wb.creator = 'tolrate';
-  const ws = wb.addWorksheet('Fieldwork', { views: [{ state: 'frozen', ySplit: 1 }] });
   // XLSX is XML: characters XML 1.0 forbids are dropped from every cell (src/io/text.ts).
   const table = fieldworkTable(sheet);
   const header = table.header.map(xmlText);
   const rows = table.rows.map((r) => r.map(xmlText));
-  ws.addRow(header).font = { bold: true };
+  // The columns to fill come after ours (Seq, Role, Row, Key) and the population's.
+  const fill = 4 + sheet.columns.length;
+  const ws = wb.addWorksheet(FIELDWORK_SHEET, { views: [{ state: 'frozen', ySplit: 1, xSplit: 4 }] });
+  const head = ws.addRow(header);
+  head.font = { bold: true };
+  head.alignment = { wrapText: true, vertical: 'bottom' };
   for (const r of rows) ws.addRow(r);
-  ws.columns.forEach((col, i) => {
-    const longest = Math.max(header[i]!.length, ...rows.slice(0, 200).map((r) => (r[i] ?? '').length));
-    col.width = Math.min(50, Math.max(6, longest + 2));
-  });
   ws.autoFilter = { from: { row: 1, column: 1 }, to: { row: 1, column: header.length } };
+  for (let c = fill; c < header.length; c++) {
+    const list = sheet.pickLists?.[table.header[c]!];
+    for (let r = 2; r <= rows.length + 1; r++) {
+      const cell = ws.getCell(r, c + 1);
+      cell.numFmt = '@';
+      if (list) {
+        cell.dataValidation = {
+          type: 'list',
+          allowBlank: true,
+          formulae: [`"${list.join(',')}"`],
+          showErrorMessage: true,
+          errorStyle: 'warning',
+          errorTitle: header[c]!,
+          error: `Pick one of: ${list.join(', ')}`,
+        };
+      }
+    }
+  }
+  ws.columns.forEach((col, i) => {
+    const list = sheet.pickLists?.[table.header[i]!];
+    // A code column is as wide as its longest code (its header wraps); others fit their content.
+    const longest = list
+      ? Math.max(...list.map((v) => v.length), ...header[i]!.split(/\s+/).map((w) => w.length))
+      : Math.max(header[i]!.length, ...rows.slice(0, 200).map((r) => (r[i] ?? '').length));
+    col.width = Math.min(i >= fill ? 40 : 50, Math.max(list ? 10 : 6, longest + 2));
+  });
   if (sheet.notes?.length) {
-    const about = wb.addWorksheet('About');
-    about.getColumn(1).width = 100;
-    for (const line of sheet.notes) about.addRow([xmlText(line)]);
+    const about = wb.addWorksheet(INSTRUCTIONS_SHEET);
+    about.getColumn(1).width = 110;
+    for (const line of sheet.notes) about.addRow([xmlText(line)]).alignment = { wrapText: true };
+    about.getRow(1).font = { bold: true };
   }
   const buf = Buffer.from(await wb.xlsx.writeBuffer());
   // The cells were cleaned above; a sheet whose XML does not parse would be tolrate's own fault.

@@ -25,6 +25,8 @@ export {
   ROW_COLUMN,
   KEY_COLUMN,
   NOTE_COLUMN,
+  FIELDWORK_SHEET,
+  INSTRUCTIONS_SHEET,
 } from './fieldwork.js';
 export type { FieldworkItem, FieldworkSheet } from './fieldwork.js';
 export type { Selection, RandomInput, SystematicInput, RecordedSelection } from './types.js';

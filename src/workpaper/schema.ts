@@ -104,6 +104,15 @@ export const PopulationSource = z.discriminatedUnion('kind', [
     ranges: text,
     exclusions: z.array(z.string()).default([]),
   }),
+  /** The occurrences of a periodic control: each month, quarter, week or working day of the period. */
+  z.object({
+    kind: z.literal('periods'),
+    frequency: z.enum(['monthly', 'quarterly', 'weekly', 'daily']),
+    start: isoDate,
+    end: isoDate,
+    /** Daily: days that are not working days besides Saturdays and Sundays. */
+    nonWorkingDays: z.array(isoDate).default([]),
+  }),
 ]);
 
 export const Fingerprint = z.object({
@@ -232,9 +241,22 @@ export const AttributeResult = z.discriminatedUnion('result', [
   }),
 ]);
 
+/** One piece of evidence inspected for an item: a document number, a file name, any reference. */
+export const EvidenceRef = z.object({
+  ref: text,
+  /** When the reference names a file beside the workpaper: its SHA-256 and size as recorded. */
+  sha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal').optional(),
+  bytes: count.optional(),
+});
+
 export const ItemResult = z.object({
   key: z.string(),
   seq: positive,
+  /** Who tested the item, when, what evidence was inspected, and a note (any tested item). */
+  testedBy: optText,
+  testedOn: isoDate.optional(),
+  evidence: z.array(EvidenceRef).optional(),
+  note: optText,
   /** A properly voided document: not tested, replaced by the next spare. */
   void: z.object({ reason: text, replacedBy: z.string().optional() }).optional(),
   /** When this spare replaces a voided item, that item's key. */
@@ -245,6 +267,8 @@ export const ItemResult = z.object({
 export const Results = z.object({
   source: z.enum(['interview', 'sheet']),
   sheetPath: z.string().optional(),
+  /** When results were read from several sheets (one per tester): every one, the first being sheetPath. */
+  sheetPaths: z.array(z.string()).optional(),
   items: z.array(ItemResult),
   recordedAt: isoTime,
 });
@@ -496,6 +520,7 @@ export type SelectedItem = z.infer<typeof SelectedItem>;
 export type Selection = z.infer<typeof Selection>;
 export type AttributeResult = z.infer<typeof AttributeResult>;
 export type ItemResult = z.infer<typeof ItemResult>;
+export type EvidenceRef = z.infer<typeof EvidenceRef>;
 export type Results = z.infer<typeof Results>;
 export type AttributeEvaluation = z.infer<typeof AttributeEvaluation>;
 export type Evaluation = z.infer<typeof Evaluation>;

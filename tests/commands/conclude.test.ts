@@ -14,12 +14,12 @@ import { SEVERITY_QUESTIONS } from '../../src/control-test/conclude.js';
 import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';
-import { captureContext, concludeAnswers, fixedClock, plannedTest } from '../fixtures/interview.js';
+import { captureContext, concludeAnswers, fixedClock, plannedTest, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 
 /** Plan, then type results: A1 deviations at the given items (with the given intent). */
 async function recorded(devs: Record<number, 'no' | 'suspected' | 'yes'>) {
   const t = await plannedTest();
-  const answers: ScriptAnswers = { 'record.source': 'type', 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms' };
+  const answers: ScriptAnswers = { 'record.source': 'type', ...FIELDWORK_ANSWERS, 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms' };
   for (const [seq, intent] of Object.entries(devs)) {
     Object.assign(answers, {
       [`record.item.${seq}.A1.result`]: 'deviation',

@@ -37,6 +37,19 @@ describe('tolrate demo', () => {
     // The memo is a DOCX (a zip file: PK header).
     expect(readFileSync(join(dir, 'supplier-invoice-approval.memo.docx')).subarray(0, 2).toString()).toBe('PK');
 
+    // Every tested item has who tested it, when, and the evidence inspected; the memo shows them.
+    const tested = wp.results!.items.filter((r) => !r.void && Object.keys(r.attributes).length > 0);
+    expect(tested.every((r) => r.testedBy && r.testedOn && r.evidence!.length > 0)).toBe(true);
+    const matrix = tested.flatMap((r) => r.evidence!).find((e) => e.ref === 'evidence-authority-matrix-2025.txt');
+    expect(matrix?.sha256).toMatch(/^[0-9a-f]{64}$/);
+    const { readDocx, findTable } = await import('../memo/docx-text.js');
+    const doc = await readDocx(readFileSync(join(dir, 'supplier-invoice-approval.memo.docx')));
+    const evidence = findTable(doc.xml, ['Seq', 'Item', 'Tested by', 'Date tested', 'Evidence inspected', 'Note']);
+    expect(evidence.slice(1).map((r) => r[1])).toEqual([...tested].sort((x, y) => x.seq - y.seq).map((r) => r.key));
+    expect(evidence.slice(1).every((r) => r[2] !== '' && /^2026-01-\d\d$/.test(r[3]!) && r[4] !== '')).toBe(true);
+    const devTable = findTable(doc.xml, ['Item', 'Date', 'Amount', 'What was found']);
+    expect(devTable.slice(1).every((r) => /^2025-\d\d-\d\d$/.test(r[1]!) && /^\d{1,3}(,\d{3})*\.\d\d$/.test(r[2]!))).toBe(true);
+
     const N = wp.population!.fingerprint.rowCount;
     expect(N).toBe(3412);
     const a = wp.approach!;

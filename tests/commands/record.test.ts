@@ -11,13 +11,13 @@ import { runCli } from '../../src/cli/main.js';
 import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';
-import { captureContext, fixedClock, plannedTest } from '../fixtures/interview.js';
+import { captureContext, fixedClock, plannedTest, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 import { fillSheet } from '../fixtures/sheet.js';
 
 /** Typed answers: item 2 void, item 4 an A1 deviation, all else conforms. */
 function typed(): ScriptAnswers {
   return {
-    'record.source': 'type',
+    'record.source': 'type', ...FIELDWORK_ANSWERS,
     'record.item.*.A1.result': 'conforms',
     'record.item.*.A2.result': 'conforms',
     'record.item.2.A1.result': 'void',
@@ -100,6 +100,7 @@ describe('tolrate record', () => {
         'record.source': 'sheet',
         'record.sheet.path': ['nothere.csv', 'filled.csv'],
         'record.sheet.problems.1': 'type',
+        ...FIELDWORK_ANSWERS,
         'record.item.3.A1.result': 'conforms',
         'record.item.3.A2.result': 'conforms',
         'record.sheet.problems.2': 'reread',
@@ -130,6 +131,11 @@ describe('tolrate record', () => {
     expect(r(5).attributes.A1).toEqual({ result: 'deviation', found: 'One signature only', cause: 'not-performed', intentional: 'no', pattern: 'isolated' });
     expect(r(8).void!.reason).toBe('Cancelled voucher');
     expect(r(n + 1).replaces).toBe(r(8).key);
+    // Who tested each item, when and on what evidence: from the sheet's columns, or typed (item 3:
+    // the defaults, the preparer and today).
+    expect({ by: r(5).testedBy, on: r(5).testedOn, evidence: r(5).evidence }).toEqual({ by: 'T. Tester', on: '2026-01-20', evidence: [{ ref: `voucher ${r(5).key}` }] });
+    expect({ by: r(3).testedBy, on: r(3).testedOn, evidence: r(3).evidence }).toEqual({ by: wp.engagement!.preparer, on: '2026-01-20', evidence: [{ ref: 'voucher file' }] });
+    expect(r(8).testedBy).toBeUndefined();
     expect(wp.results!.items.filter((x) => !x.void)).toHaveLength(n);
   });
 

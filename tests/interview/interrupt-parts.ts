@@ -13,7 +13,7 @@ import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';
 import type { Workpaper } from '../../src/workpaper/schema.js';
-import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation } from '../fixtures/interview.js';
+import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 
 function script(total: string): ScriptAnswers {
   return {
@@ -22,7 +22,7 @@ function script(total: string): ScriptAnswers {
     'plan.approach.tolerableRate': ['0', '15'],
     'plan.approach.expectedRate': '0',
     'plan.selection.spares': '2',
-    'record.source': 'type',
+    'record.source': 'type', ...FIELDWORK_ANSWERS,
     'record.item.*.A1.result': 'conforms',
     'record.item.*.A2.result': 'conforms',
     'record.item.2.A1.result': 'void',

@@ -45,6 +45,27 @@ describe('re-opening a recorded item', () => {
     // Nothing changed, so the conclusion still stands.
     expect(after.conclusion).toEqual(wp.conclusion);
   });
+
+  it('a change to the evidence or the note alone keeps the evaluation and the conclusion', async () => {
+    const { dir, wp } = demoCopy();
+    const item = wp.results!.items.find((r) => !r.void && r.attributes.A1?.result === 'conforms')!;
+    const answers = {
+      'edit.reason': 'Evidence reference completed on review',
+      'record.change.1': item.key,
+      [`record.item.${item.seq}.evidence`]: `${item.evidence!.map((e) => e.ref).join('; ')}; payment run report`,
+      [`record.item.${item.seq}.note`]: 'Payment run report added to the file.',
+      'record.change.2': '',
+    };
+    expect(await record([WP], captureContext(dir), new ScriptedAsker(answers, { defaults: true }), { now: fixedClock('2026-02-01T09:00:00.000Z') })).toBe(0);
+    const after = loadWorkpaper(join(dir, WP));
+    const r = after.results!.items.find((x) => x.key === item.key)!;
+    expect(r.evidence!.map((e) => e.ref)).toContain('payment run report');
+    expect(r.note).toBe('Payment run report added to the file.');
+    expect(after.evaluation).toEqual(wp.evaluation);
+    expect(after.conclusion).toEqual(wp.conclusion);
+    // The change after sign-off is an amendment all the same.
+    expect(after.amendments!.at(-1)!.why).toBe('Evidence reference completed on review');
+  });
 });
 
 describe('a change to the results after sign-off', () => {

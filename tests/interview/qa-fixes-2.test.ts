@@ -180,6 +180,7 @@ describe('lines fit a 100-column terminal', () => {
       if (i === 0 || !/^\d+$/.test(c[0] ?? '') || Number(c[0]) > n) return l;
       c[at('A1 result')] = c[0] === '12' ? 'X' : 'C';
       c[at('A2 result')] = 'C';
+      Object.assign(c, { [at('Tested by')]: 'T. Tester', [at('Date tested')]: '2026-01-19', [at('Evidence')]: `approval log ${c[3]}` });
       if (c[0] === '3') {
         Object.assign(c, { [at('A1 result')]: 'D', [at('A1 found')]: 'Signed by the requester', [at('A1 cause')]: 'wrong-performer', [at('A1 intent')]: 'suspected', [at('A1 pattern')]: 'isolated' });
       }

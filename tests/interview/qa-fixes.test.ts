@@ -2,7 +2,7 @@
  * Problems found by using the interview on a terminal as a practitioner would, each checked
  * here beside its fix: layout of the validation report, refusal wording, clearing an earlier
  * optional answer, which later steps a change really invalidates, the note on automated
- * controls, and a fieldwork sheet saved as XLSX at selection.
+ * controls, and a fieldwork sheet saved as XLSX at selection and read back.
  */
 import { describe, expect, it } from 'vitest';
 import { writeFileSync } from 'node:fs';
@@ -13,7 +13,6 @@ import { dependents } from '../../src/interview/flow.js';
 import { askControl, AUTOMATED_NOTE } from '../../src/interview/plan-basics.js';
 import { newSession } from '../../src/interview/session.js';
 import { ScriptedAsker } from '../../src/interview/scripted.js';
-import { XLSX_SHEET_NOTE } from '../../src/interview/record.js';
 import { runWith as plan } from '../../src/commands/plan/index.js';
 import { runWith as record } from '../../src/commands/record/index.js';
 import { scanPopulation } from '../../src/population/index.js';
@@ -139,15 +138,54 @@ describe('control step', () => {
 });
 
 describe('a fieldwork sheet written as XLSX', () => {
-  it('plan says results are read back from CSV; record refuses an .xlsx sheet with how to go on', async () => {
+  it('has pick lists, a frozen header and the instructions; a filled workbook is read back, a bad code named by sheet, row and column', async () => {
+    const ExcelJS = (await import('exceljs')).default;
     const dir = tempDir();
     const { total } = writePopulation(dir);
-    const ctx = captureContext(dir);
     const answers = { ...planAnswers(total), 'plan.selection.sheet': 't1.fieldwork.xlsx' };
-    expect(await plan(['t1'], ctx, new ScriptedAsker(answers), { now: fixedClock() })).toBe(0);
-    expect(ctx.text().replace(/\s+/g, ' ')).toContain(XLSX_SHEET_NOTE);
-    const asker = new ScriptedAsker({ 'record.source': 'sheet', 'record.sheet.path': ['t1.fieldwork.xlsx', 'missing.csv'] });
-    await record(['t1.tolrate.json'], captureContext(dir), asker, { now: fixedClock() }).catch(() => undefined);
-    expect(asker.refusals[0]).toMatchObject({ id: 'record.sheet.path', message: XLSX_SHEET_NOTE });
+    expect(await plan(['t1'], captureContext(dir), new ScriptedAsker(answers), { now: fixedClock() })).toBe(0);
+    const n = loadWorkpaper(join(dir, 't1.tolrate.json')).selection!.sampleSize;
+    const wb = new ExcelJS.Workbook();
+    await wb.xlsx.readFile(join(dir, 't1.fieldwork.xlsx'));
+    const ws = wb.getWorksheet('Fieldwork')!;
+    const header = (ws.getRow(1).values as unknown[]).slice(1) as string[];
+    const col = (start: string) => header.findIndex((h) => h.startsWith(start)) + 1;
+    expect(ws.views[0]).toMatchObject({ state: 'frozen', ySplit: 1 });
+    expect(ws.getCell(2, col('A1 result')).dataValidation).toMatchObject({ type: 'list', formulae: ['"C,D,V"'] });
+    expect(ws.getCell(2, col('A2 cause')).dataValidation.formulae).toEqual(['"not-performed,performed-late,wrong-performer,evidence-missing,system,other"']);
+    expect(ws.getCell(2, col('A1 intent')).dataValidation.formulae).toEqual(['"no,suspected,yes"']);
+    expect(ws.getCell(2, col('A1 pattern')).dataValidation.formulae).toEqual(['"isolated,systemic,unclear"']);
+    expect(ws.getColumn(col('A1 result')).width).toBeLessThanOrEqual(12);
+    const instructions = wb.getWorksheet('Instructions')!;
+    const lines = instructions.getColumn(1).values.slice(1).map(String);
+    expect(lines.some((l) => l.startsWith('Result: C = conforms'))).toBe(true);
+
+    // The tester fills it in the spreadsheet: every sample item conforms, tester, date and evidence; a bad code at item 4.
+    for (let seq = 1; seq <= n; seq++) {
+      const r = ws.getRow(seq + 1);
+      r.getCell(col('A1 result')).value = seq === 4 ? 'Y' : 'C';
+      r.getCell(col('A2 result')).value = 'C';
+      r.getCell(col('Tested by')).value = 'T. Tester';
+      // Typed as text in the text-formatted column; on item 2 the tester made the cell a date cell.
+      if (seq === 2) {
+        r.getCell(col('Date tested')).numFmt = 'yyyy-mm-dd';
+        r.getCell(col('Date tested')).value = new Date(Date.UTC(2026, 0, 16));
+      } else r.getCell(col('Date tested')).value = '2026-01-15';
+      r.getCell(col('Evidence')).value = `voucher ${r.getCell(4).value}`;
+    }
+    await wb.xlsx.writeFile(join(dir, 'filled.xlsx'));
+    const ctx = captureContext(dir);
+    const asker = new ScriptedAsker({ 'record.source': 'sheet', 'record.sheet.path': 'filled.xlsx', 'record.sheet.problems.1': 'stop' });
+    await record(['t1.tolrate.json'], ctx, asker, { now: fixedClock() });
+    expect(ctx.text()).toMatch(/filled\.xlsx, sheet Fieldwork\s+5\s+A1 result \[C\/D\/V\]\s+Y\s+not a result: write C/);
+    expect(ctx.text()).toContain('Read 3 item(s) from filled.xlsx.');
+    ws.getRow(5).getCell(col('A1 result')).value = 'C';
+    await wb.xlsx.writeFile(join(dir, 'filled.xlsx'));
+    expect(await record(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker({ 'record.source': 'sheet', 'record.sheet.path': 'filled.xlsx' }), { now: fixedClock() })).toBe(0);
+    const wp = loadWorkpaper(join(dir, 't1.tolrate.json'));
+    expect(wp.results!.sheetPath).toBe('filled.xlsx');
+    // A date cell reads as its date; the evidence as typed.
+    expect(wp.results!.items[1]!.testedOn).toBe('2026-01-16');
+    expect(wp.results!.items[3]).toMatchObject({ testedBy: 'T. Tester', testedOn: '2026-01-15', evidence: [{ ref: `voucher ${wp.results!.items[3]!.key}` }] });
   });
 });

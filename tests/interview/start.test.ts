@@ -9,7 +9,7 @@ import { runWith as start } from '../../src/commands/start/index.js';
 import { runCli } from '../../src/cli/main.js';
 import { ScriptedAsker } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
-import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation } from '../fixtures/interview.js';
+import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 
 describe('tolrate (start screen)', () => {
   it('starts a new test, stops before recording, and continues it from the folder\'s list', async () => {
@@ -27,7 +27,7 @@ describe('tolrate (start screen)', () => {
     const a2 = new ScriptedAsker({
       'start.action': 'continue',
       'start.continue.file': 'payments.tolrate.json',
-      'record.source': 'type',
+      'record.source': 'type', ...FIELDWORK_ANSWERS,
       'record.item.*.A1.result': 'conforms',
       'record.item.*.A2.result': 'conforms',
       ...concludeAnswers(),

@@ -12,7 +12,7 @@ import { runCli } from '../../src/cli/main.js';
 import { runWith as record } from '../../src/commands/record/index.js';
 import { withFsOps } from '../../src/io/fs.js';
 import { ScriptedAsker } from '../../src/interview/scripted.js';
-import { captureContext, fixedClock, plannedTest, tempDir, writePopulation } from '../fixtures/interview.js';
+import { captureContext, fixedClock, plannedTest, tempDir, writePopulation, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 import { tempFiles, tracing, type Call } from './faults.js';
 
 const CODES = ['ENOSPC', 'EACCES', 'EROFS'] as const;
@@ -96,7 +96,7 @@ describe('a fault at each call of a write', () => {
     const { dir, file } = await plannedTest();
     const planned = join(dir, 'planned.json');
     copyFileSync(file, planned);
-    const answers = { 'record.source': 'type', 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms', 'save.failed': 'stop' };
+    const answers = { 'record.source': 'type', ...FIELDWORK_ANSWERS, 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms', 'save.failed': 'stop' };
     // The first save of a record sitting, traced: the calls of writing t1.tolrate.json.
     const probe = tracing();
     await withFsOps(probe.ops, () => record(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker({ ...answers, 'record.item.2.A1.result': 'x' }), { now: fixedClock() })).catch(() => undefined);

@@ -18,11 +18,11 @@ import { InterviewStopped } from '../../src/interview/asker.js';
 import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';
-import { captureContext, fixedClock, plannedTest } from '../fixtures/interview.js';
+import { captureContext, fixedClock, plannedTest, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 import { tempFiles, tracing } from './faults.js';
 
 const conforming: ScriptAnswers = {
-  'record.source': 'type',
+  'record.source': 'type', ...FIELDWORK_ANSWERS,
   'record.item.*.A1.result': 'conforms',
   'record.item.*.A2.result': 'conforms',
 };

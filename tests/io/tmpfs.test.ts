@@ -20,7 +20,7 @@ import type { Asker, ConfirmQuestion, SelectQuestion, TextQuestion } from '../..
 import { ScriptedAsker } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import { verifyLog } from '../../src/workpaper/log.js';
-import { captureContext, fixedClock, planAnswers, writePopulation } from '../fixtures/interview.js';
+import { captureContext, fixedClock, planAnswers, writePopulation, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 
 const mnt = mkdtempSync(join(tmpdir(), 'tolrate-tmpfs-'));
 let reason: string | undefined;
@@ -137,7 +137,7 @@ describe.skipIf(reason !== undefined)('on a real small tmpfs', () => {
     const planned = readFileSync(file);
     const filler = fill(8192);
     let atRetry: Buffer | undefined;
-    const inner = new ScriptedAsker({ 'record.source': 'type', 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms', 'save.failed': ['retry'] });
+    const inner = new ScriptedAsker({ 'record.source': 'type', ...FIELDWORK_ANSWERS, 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms', 'save.failed': ['retry'] });
     const asker = new HookedAsker(inner, 'save.failed', () => {
       atRetry = readFileSync(file);
       rmSync(filler);

@@ -12,7 +12,7 @@ import { runWith as plan } from '../../src/commands/plan/index.js';
 import { runWith as record } from '../../src/commands/record/index.js';
 import { runWith as conclude } from '../../src/commands/conclude/index.js';
 import { ScriptedAsker, type ScriptAnswers } from '../../src/interview/scripted.js';
-import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation } from '../fixtures/interview.js';
+import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 
 async function xlsxPopulation(dir: string): Promise<string> {
   const ExcelJS = (await import('exceljs')).default;
@@ -76,7 +76,7 @@ describe.each(CASES)('re-performance: $name', ({ answers, is }) => {
     expect(await plan(['t1'], captureContext(dir), new ScriptedAsker(await answers(dir), { defaults: true }), { now })).toBe(0);
     const planned = JSON.parse(readFileSync(join(dir, 't1.tolrate.json'), 'utf8'));
     expect({ kind: planned.approach.kind, method: planned.selection.method, source: planned.population.source.kind, ...(is.model ? { model: planned.approach.model } : {}) }).toEqual(is);
-    const rec: ScriptAnswers = { 'record.source': 'type', 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms' };
+    const rec: ScriptAnswers = { 'record.source': 'type', ...FIELDWORK_ANSWERS, 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms' };
     expect(await record(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(rec), { now })).toBe(0);
     expect(await conclude(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(concludeAnswers(), { defaults: true }), { now })).toBe(0);
     const clean = captureContext(dir, false);

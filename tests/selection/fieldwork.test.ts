@@ -63,7 +63,7 @@ describe('fieldwork sheet', () => {
     expect((parse(readFileSync(p, 'utf8'), { bom: true }) as string[][])[0]).toEqual(['Seq', 'Role', 'Row', 'Key', 'k', 'Result', 'Note']);
   });
 
-  it('writes XLSX with the same table (text cells, never formulas) and an About sheet', async () => {
+  it('writes XLSX with the same table (text cells, never formulas) and an Instructions sheet', async () => {
     const p = join(dir, 'fw.xlsx');
     await writeFieldworkSheet(p, { ...sheet, notes: ['Seed 48213', 'Algorithm random-v1'] });
     const wb = new ExcelJS.Workbook();
@@ -74,7 +74,7 @@ describe('fieldwork sheet', () => {
     expect(ws.getCell('D3').value).toBe('=HYPERLINK("http://x")');
     expect(ws.getCell('D3').type).toBe(ExcelJS.ValueType.String);
     expect(ws.getCell('D3').formula).toBeUndefined();
-    expect(wb.getWorksheet('About')!.getCell('A1').value).toBe('Seed 48213');
+    expect(wb.getWorksheet('Instructions')!.getCell('A1').value).toBe('Seed 48213');
   });
 
   it('refuses an empty list and formats it cannot write', async () => {

@@ -18,7 +18,10 @@ intentional, isolated or systemic) or void (a properly cancelled document, repla
 next spare). A document that cannot be found is a deviation, not a void.
 
 The results can be typed item by item (saved after each item; run the command again to go on
-at the first unrecorded item) or read from the filled fieldwork sheet written at selection.
+at the first unrecorded item) or read from the filled fieldwork sheet written at selection, as
+CSV or XLSX (the workbook's "Fieldwork" sheet). Testing split between people: give each
+tester's sheet, separated by ";" (a.csv; b.xlsx); they are merged, and an item filled
+differently on two sheets is refused with both values and both files named.
 Column conventions of the sheet, per attribute (A1, A2, ...):
   A1 result          C = conforms, D = deviation, V = void
   A1 found           what was found (for a D)
@@ -27,7 +30,15 @@ Column conventions of the sheet, per attribute (A1, A2, ...):
   A1 intent          no, suspected or yes (for a D)
   A1 pattern         isolated, systemic or unclear (for a D)
   Void reason        why the document is void (for a V)
-Every cell that cannot be read is listed (row, column, value, why); nothing is guessed.
+  Tested by          who tested the item        } for every tested item, conforming
+  Date tested        YYYY-MM-DD                 } or not (a sheet written before
+  Evidence           references, separated by ; } these columns were added has not)
+  Note               the tester's note (optional)
+A piece of evidence that names a file in the workpaper's folder is fingerprinted (SHA-256)
+when it is recorded; \`tolrate reperform\` reads it again.
+Typed, each item asks the same: tester (default: the preparer), date tested (default: today),
+the evidence inspected and a note.
+Every cell that cannot be read is listed (sheet, row, column, value, why); nothing is guessed.
 
 While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a second session
 on the same file is told who has it and may look at it read-only. A save that fails (disk

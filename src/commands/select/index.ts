@@ -217,6 +217,8 @@ function againCommand(plan: Plan, sel: Selection, ctx: CommandContext): string {
   if (s.kind === 'ranges') {
     words.push('--ranges', s.ranges);
     for (const e of s.exclusions ?? []) words.push('--exclude', e);
+  } else if (s.kind === 'periods') {
+    throw new Error('internal: tolrate select makes no periodic population');
   } else {
     words.push('--population', rel(s.path), '--key', s.keyColumn);
     if (s.kind === 'xlsx' && s.sheet !== undefined) words.push('--sheet', s.sheet);
