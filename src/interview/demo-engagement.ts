@@ -48,6 +48,8 @@ const PRIOR_CONTROL: ScriptAnswers = {
   'plan.population.description': 'Manual journals of 25,000 or more posted in 2024, from the general ledger\'s journal listing',
   'plan.population.ledgerSource': 'General ledger journal report, manual source, 2024, run 2025-01-09',
   'plan.selection.seed': '4471',
+  'record.item.*.testedOn': '2025-01-24',
+  'record.item.*.evidence': 'journal voucher with its supporting documents attached in the ledger',
   'signoff.date': '2025-01-27',
 };
 

@@ -14,7 +14,7 @@ import { stateHash } from '../../src/workpaper/log.js';
 import { TolrateInputError } from '../../src/errors.js';
 import { runWith as conclude } from '../../src/commands/conclude/index.js';
 import { runWith as record } from '../../src/commands/record/index.js';
-import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation } from '../fixtures/interview.js';
+import { captureContext, concludeAnswers, fixedClock, planAnswers, tempDir, writePopulation, FIELDWORK_ANSWERS } from '../fixtures/interview.js';
 
 const FOLDER: EngagementFolderInput = {
   schemaVersion: 1,
@@ -193,7 +193,7 @@ async function lastYear(): Promise<{ dir: string; last: string; total: string }>
   const answers = { ...planAnswers(total), 'plan.attributes.A2.tolerableRate': '8', 'plan.approach.expectedRate': '1.5' };
   expect(await plan(['last'], captureContext(prior), new ScriptedAsker(answers), { now: fixedClock('2025-01-20T09:00:00.000Z') })).toBe(0);
   // Two deviations on A1 (so last year's rate and a deficiency are there to show), the rest conform.
-  const rec = new ScriptedAsker({ 'record.source': 'type', 'record.item.1.A1.result': 'deviation', 'record.item.2.A1.result': 'deviation', 'record.item.*.A1.found': 'No second signature', 'record.item.*.A1.cause': 'not-performed', 'record.item.*.A1.causeDetail': '', 'record.item.*.A1.intentional': 'no', 'record.item.*.A1.pattern': 'isolated', 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms' }, { defaults: true });
+  const rec = new ScriptedAsker({ 'record.source': 'type', 'record.item.1.A1.result': 'deviation', 'record.item.2.A1.result': 'deviation', 'record.item.*.A1.found': 'No second signature', 'record.item.*.A1.cause': 'not-performed', 'record.item.*.A1.causeDetail': '', 'record.item.*.A1.intentional': 'no', 'record.item.*.A1.pattern': 'isolated', 'record.item.*.A1.result': 'conforms', 'record.item.*.A2.result': 'conforms', ...FIELDWORK_ANSWERS }, { defaults: true });
   expect(await record(['last.tolrate.json'], captureContext(prior), rec, { now: fixedClock('2025-01-21T09:00:00.000Z') })).toBe(0);
   expect(await conclude(['last.tolrate.json'], captureContext(prior), new ScriptedAsker(concludeAnswers(), { defaults: true }), { now: fixedClock('2025-01-22T09:00:00.000Z') })).toBe(0);
   return { dir, last: join(prior, 'last.tolrate.json'), total: t2 };

@@ -64,7 +64,7 @@ describe('tolrate status', () => {
 
   it('with --reperform, re-performs every test: exit 0 when all agree, 1 naming the test whose population differs', async () => {
     const extra = tempDir();
-    for (const f of ['supplier-invoice-approval.tolrate.json', 'supplier-invoices-2025.csv', 'supplier-invoice-approval.filled.csv']) copyFileSync(join(dir, f), join(extra, f));
+    for (const f of ['supplier-invoice-approval.tolrate.json', 'supplier-invoices-2025.csv', 'supplier-invoice-approval.filled.csv', 'evidence-authority-matrix-2025.txt']) copyFileSync(join(dir, f), join(extra, f));
     const ok = captureContext(extra, false);
     expect(await status([extra, '--as-of', AS_OF, '--reperform'], ok)).toBe(0);
     expect(ok.text()).toContain('re-performance agrees');
