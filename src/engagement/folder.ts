@@ -6,10 +6,12 @@
  *
  * The name deliberately does not end in `.tolrate.json`, so it is never taken for a workpaper.
  */
-import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { existsSync, readdirSync } from 'node:fs';
 import { dirname, isAbsolute, join, resolve } from 'node:path';
 import * as z from 'zod';
 import { FileInputError } from '../errors.js';
+import { readRegularText } from '../io/read.js';
+import { jsonErrorWhere } from '../io/messages.js';
 import { writeFileAtomic, WORKPAPER_SUFFIX } from '../workpaper/file.js';
 
 export const FOLDER_FILE = 'tolrate-engagement.json';
@@ -77,11 +79,13 @@ export function folderFilePath(dir: string): string {
 export function loadFolder(dir: string): EngagementFolder | undefined {
   const path = folderFilePath(dir);
   if (!existsSync(path)) return undefined;
+  // Only a regular file is read, and a parse error gives its place, never the file's text.
+  const raw = readRegularText(path, 'The engagement folder file').replace(/^\uFEFF/, '');
   let data: unknown;
   try {
-    data = JSON.parse(readFileSync(path, 'utf8').replace(/^\uFEFF/, ''));
+    data = JSON.parse(raw);
   } catch (e) {
-    throw new FileInputError(path, `${path} is not valid JSON: ${(e as Error).message}`);
+    throw new FileInputError(path, `${path} is not valid JSON: ${jsonErrorWhere(e, raw)}.`);
   }
   return parseFolder(data, path);
 }

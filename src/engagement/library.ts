@@ -5,11 +5,13 @@
  * their deviation definitions, to pick from when planning instead of typing them. Every problem of
  * every file is named on load.
  */
-import { readdirSync, readFileSync } from 'node:fs';
+import { readdirSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as z from 'zod';
 import { FileInputError } from '../errors.js';
+import { readRegularText } from '../io/read.js';
+import { jsonErrorWhere } from '../io/messages.js';
 import { FREQUENCIES, NATURES } from '../workpaper/schema.js';
 
 const text = z.string().trim().min(1, 'must not be empty');
@@ -55,10 +57,12 @@ export function loadLibrary(dir: string): LibraryControl[] {
   const problems: string[] = [];
   for (const n of names) {
     let data: unknown;
+    let raw = '';
     try {
-      data = JSON.parse(readFileSync(join(dir, n), 'utf8').replace(/^\uFEFF/, ''));
+      raw = readRegularText(join(dir, n), 'A library file').replace(/^\uFEFF/, '');
+      data = JSON.parse(raw);
     } catch (e) {
-      problems.push(`${n}: not valid JSON: ${(e as Error).message}`);
+      problems.push(`${n}: ${e instanceof SyntaxError ? `not valid JSON: ${jsonErrorWhere(e, raw)}` : (e as Error).message}`);
       continue;
     }
     const r = LibraryControl.safeParse(data);

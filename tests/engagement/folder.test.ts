@@ -281,3 +281,33 @@ describe('the folder\'s memo template folder', () => {
     expect(loadWorkpaper(f.path).memos!.at(-1)!.template).toBeDefined();
   });
 });
+
+describe('a damaged engagement folder file or library file', () => {
+  it('is refused with the place of the error, never its text; a named pipe is refused at once', async () => {
+    const { loadFolder, folderFilePath } = await import('../../src/engagement/folder.js');
+    const dir = tempDir();
+    writeFileSync(folderFilePath(dir), '{"entity": "Secret client text here", oops}');
+    let msg = '';
+    try {
+      loadFolder(dir);
+    } catch (e) {
+      msg = (e as Error).message;
+    }
+    expect(msg).toMatch(/is not valid JSON: .*line 1/);
+    expect(msg).not.toContain('Secret client text');
+    const pipeDir = tempDir();
+    const { execFileSync } = await import('node:child_process');
+    execFileSync('mkfifo', [folderFilePath(pipeDir)]);
+    expect(() => loadFolder(pipeDir)).toThrow(/named pipe|not a regular file/);
+    const lib = tempDir();
+    writeFileSync(join(lib, 'broken.json'), '{"controls": [ "Confidential wording" oops ]}');
+    let libMsg = '';
+    try {
+      loadLibrary(lib);
+    } catch (e) {
+      libMsg = [(e as Error).message, ...((e as { details?: string[] }).details ?? [])].join(' ');
+    }
+    expect(libMsg).toMatch(/broken\.json: not valid JSON/);
+    expect(libMsg).not.toContain('Confidential wording');
+  });
+});
