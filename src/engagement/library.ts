@@ -12,7 +12,8 @@ import * as z from 'zod';
 import { FileInputError } from '../errors.js';
 import { readRegularText } from '../io/read.js';
 import { jsonErrorWhere } from '../io/messages.js';
-import { FREQUENCIES, NATURES } from '../workpaper/schema.js';
+import { FREQUENCIES, NATURES, type Control } from '../workpaper/schema.js';
+import { pctPlain } from '../util/format.js';
 
 const text = z.string().trim().min(1, 'must not be empty');
 
@@ -78,9 +79,11 @@ export function loadLibrary(dir: string): LibraryControl[] {
   return out;
 }
 
-/** A library control as answers to the control and attribute questions, by question id. */
-export function libraryAnswers(c: LibraryControl): Record<string, string | boolean> {
-  const a: Record<string, string | boolean> = {
+type Answers = Record<string, string | boolean>;
+
+/** A control (from the library, or recorded last year) as the answers to the control questions, by question id. */
+export function controlAnswers(c: Pick<Control, 'id' | 'description' | 'objective' | 'owner' | 'frequency' | 'nature' | 'key'>): Answers {
+  return {
     'plan.control.id': c.id,
     'plan.control.description': c.description,
     'plan.control.objective': c.objective,
@@ -89,12 +92,22 @@ export function libraryAnswers(c: LibraryControl): Record<string, string | boole
     'plan.control.nature': c.nature,
     'plan.control.key': c.key,
   };
-  c.attributes.forEach((x, i) => {
-    const id = `A${i + 1}`;
+}
+
+/** Attributes, in order, as the answers to the attribute questions (ids A1, A2, ... unless given). */
+export function attributeAnswers(attrs: ReadonlyArray<{ id?: string; description: string; deviationDefinition: string; tolerableRate?: number | undefined }>): Answers {
+  const a: Answers = {};
+  attrs.forEach((x, i) => {
+    const id = x.id ?? `A${i + 1}`;
     a[`plan.attributes.${id}.description`] = x.description;
     a[`plan.attributes.${id}.deviation`] = x.deviationDefinition;
-    a[`plan.attributes.${id}.tolerableRate`] = x.tolerableRate !== undefined ? `${Number((x.tolerableRate * 100).toPrecision(12))}%` : '';
-    a[`plan.attributes.more.${id}`] = i < c.attributes.length - 1;
+    a[`plan.attributes.${id}.tolerableRate`] = x.tolerableRate !== undefined ? pctPlain(x.tolerableRate) : '';
+    a[`plan.attributes.more.${id}`] = i < attrs.length - 1;
   });
   return a;
+}
+
+/** A library control as answers to the control and attribute questions, by question id. */
+export function libraryAnswers(c: LibraryControl): Answers {
+  return { ...controlAnswers(c), ...attributeAnswers(c.attributes) };
 }

@@ -13,6 +13,7 @@ import { TolrateInputError, UsageError } from '../errors.js';
 import { existsSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { loadWorkpaper, newWorkpaper, saveWorkpaper } from '../workpaper/file.js';
+import { attributeAnswers, controlAnswers } from '../engagement/library.js';
 
 type Answers = Record<string, string | boolean>;
 
@@ -21,27 +22,10 @@ export function defaultsFrom(last: Workpaper): CarriedForward['defaults'] {
   const out: CarriedForward['defaults'] = {};
   const c = last.control;
   if (c) {
-    out['plan.control'] = {
-      'plan.control.id': c.id,
-      'plan.control.description': c.description,
-      'plan.control.objective': c.objective,
-      'plan.control.owner': c.owner,
-      'plan.control.frequency': c.frequency,
-      'plan.control.nature': c.nature,
-      'plan.control.key': c.key,
-    };
+    out['plan.control'] = controlAnswers(c);
   }
   const attrs = last.attributes ?? [];
-  if (attrs.length > 0) {
-    const a: Answers = {};
-    attrs.forEach((x, i) => {
-      a[`plan.attributes.${x.id}.description`] = x.description;
-      a[`plan.attributes.${x.id}.deviation`] = x.deviationDefinition;
-      a[`plan.attributes.${x.id}.tolerableRate`] = x.tolerableRate !== undefined ? pctPlain(x.tolerableRate) : '';
-      a[`plan.attributes.more.${x.id}`] = i < attrs.length - 1;
-    });
-    out['plan.attributes'] = a;
-  }
+  if (attrs.length > 0) out['plan.attributes'] = attributeAnswers(attrs);
   const ap = last.approach;
   if (ap) {
     const a: Answers = { 'plan.approach.kind': ap.kind, 'plan.approach.tolerableRate': pctPlain(ap.tolerableRate) };

@@ -82,11 +82,7 @@ async function open(ctx: CommandContext, asker: Asker, o: StageOptions, mustExis
   }
   const s = await sessionFor(ctx, asker, path, { ...o, ...(o.policy ? { policyPath: o.policy } : {}), mustExist, hold });
   if (s && 'readOnly' in s) {
-    // Another session has it open: show where the test stands, save nothing.
-    const wp = loadWorkpaper(path);
-    ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
-    ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
-    return 0;
+    return showReadOnly(ctx, path);
   }
   if (!s) {
     ctx.stdout.write('Nothing was changed.\n');
@@ -221,17 +217,21 @@ export async function wholeInterview(ctx: CommandContext, asker: Asker, o: Stage
   });
 }
 
+/** Another session has the workpaper open: show where the test stands, save nothing. */
+function showReadOnly(ctx: CommandContext, path: string): number {
+  const wp = loadWorkpaper(path);
+  ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
+  ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
+  return 0;
+}
+
 /** `tolrate review FILE`: the reviewer's sitting. */
 export async function reviewInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
     const path = workpaperPath(ctx.cwd, o.file ?? '');
     const s = await sessionFor(ctx, asker, path, { ...o, mustExist: true, hold });
     if (s && 'readOnly' in s) {
-      // Another session has it open: show where the test stands, save nothing.
-      const wp = loadWorkpaper(path);
-      ctx.stdout.write(`\n${shown(ctx, path)} (read-only): ${wp.control?.id ?? 'a test'}${wp.engagement ? `, ${wp.engagement.entity}` : ''}\n`);
-      ctx.stdout.write(`${statusLines(wp).join('\n')}\n\nNothing was saved (read-only).\n`);
-      return 0;
+      return showReadOnly(ctx, path);
     }
     if (!s) {
       ctx.stdout.write('Nothing was changed.\n');
