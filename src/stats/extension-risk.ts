@@ -1,11 +1,8 @@
 import { acceptanceNumberOf } from './acceptance-number.js';
-import { extensionCap, extensionOf, extensionSize } from './extension-size.js';
+import { extensionOf, extensionSetup, extensionSize } from './extension-size.js';
 import { after, cdfAt, drawAt, eachPmf, logPmf, type Draw } from './plan-draw.js';
-import { resolveModel } from './resolve-model.js';
-import { riskFunction } from './risk-function.js';
 import type { ExtensionRiskOptions, ExtensionRiskResult } from './types.js';
 import { withinRisk } from './within-risk.js';
-import { checkConfidence, checkOptions, checkRate, checkSampleCounts } from './validate.js';
 import { NoPracticalSizeError } from '../errors.js';
 
 /** Stop summing a distribution once its remaining mass is below this. */
@@ -40,15 +37,7 @@ const PRUNE = 1e-22;
  * @throws SamplingInputError for an out-of-range input (naming the parameter).
  */
 export function extensionRisk(options: ExtensionRiskOptions): ExtensionRiskResult {
-  checkOptions(options, 'extensionRisk');
-  const { sampleSize: n, deviations: k, tolerableRate, confidence, populationSize } = options;
-  checkConfidence(confidence);
-  checkRate('tolerableRate', tolerableRate);
-  const model = resolveModel(options.model, populationSize);
-  checkSampleCounts(n, k, populationSize);
-  const beta = 1 - confidence;
-  const risk = riskFunction(model, tolerableRate, populationSize);
-  const cap = extensionCap(model, populationSize);
+  const { n, k, tolerableRate, populationSize, model, beta, risk, cap } = extensionSetup(options, 'extensionRisk');
   const c = acceptanceNumberOf(risk, n, beta);
   const d = drawAt(model, tolerableRate, populationSize, 'ceil');
   const result: ExtensionRiskResult = {

@@ -25,16 +25,32 @@ import { withinRisk } from './within-risk.js';
  * @throws SamplingInputError for an out-of-range input (naming the parameter).
  * @throws NoPracticalSizeError when no extension within the cap is enough, or k = n.
  */
-export function extensionSize(options: ExtensionSizeOptions): number {
-  checkOptions(options, 'extensionSize');
+/**
+ * The checked inputs of an extension (its size, and its risk in extension-risk.ts): the model, β,
+ * the risk function at the tolerable rate and the largest total an extension may reach.
+ */
+export function extensionSetup(options: ExtensionSizeOptions, fn: string) {
+  checkOptions(options, fn);
   const { sampleSize: n, deviations: k, tolerableRate, confidence, populationSize } = options;
   checkConfidence(confidence);
   checkRate('tolerableRate', tolerableRate);
   const model = resolveModel(options.model, populationSize);
   checkSampleCounts(n, k, populationSize);
-  const beta = 1 - confidence;
-  const risk = riskFunction(model, tolerableRate, populationSize);
-  const cap = extensionCap(model, populationSize);
+  return {
+    n,
+    k,
+    tolerableRate,
+    confidence,
+    populationSize,
+    model,
+    beta: 1 - confidence,
+    risk: riskFunction(model, tolerableRate, populationSize),
+    cap: extensionCap(model, populationSize),
+  };
+}
+
+export function extensionSize(options: ExtensionSizeOptions): number {
+  const { n, k, tolerableRate, confidence, populationSize, model, beta, risk, cap } = extensionSetup(options, 'extensionSize');
   const m = extensionOf(risk, n, k, beta, cap);
   if (m !== null) return m;
   let why: string;
