@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { TolrateInputError } from '../errors.js';
 import { buildValidation, Problems } from './checker.js';
+import { lookupKeys } from './ranges.js';
 import type { KeyLookup, PeriodsSource, PopulationRow, PopulationScan } from './types.js';
 
 /**
@@ -189,27 +190,10 @@ export function periodsRowsAt(src: PeriodsSource, positions: readonly number[]):
 export function periodsFindKeys(src: PeriodsSource, keys: readonly string[]): KeyLookup {
   const p = parsePeriods(src);
   const at = new Map(p.units.map((u, i) => [u.key, i]));
-  const seen = new Set<string>();
-  const found: PopulationRow[] = [];
-  const unknown: string[] = [];
-  const repeated: string[] = [];
-  let blankEntries = 0;
-  for (const raw of keys) {
-    const k = String(raw).trim();
-    if (k === '') {
-      blankEntries++;
-      continue;
-    }
-    if (seen.has(k)) {
-      if (!repeated.includes(k)) repeated.push(k);
-      continue;
-    }
-    seen.add(k);
+  return lookupKeys(keys, p.units.length, (k) => {
     const i = at.get(k);
-    if (i === undefined) unknown.push(k);
-    else found.push(rowOf(p.units[i]!, i));
-  }
-  return { found, unknown, repeated, blankEntries, ambiguous: [], rowCount: p.units.length };
+    return i === undefined ? [] : [rowOf(p.units[i]!, i)];
+  });
 }
 
 const EACH: Record<PeriodFrequency, string> = { monthly: 'each month', quarterly: 'each quarter', weekly: 'each week (Monday to Sunday)', daily: 'each working day (Monday to Friday)' };

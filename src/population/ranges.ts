@@ -248,9 +248,14 @@ export function rangesRowsAt(src: RangesSource, positions: readonly number[]): P
   });
 }
 
-export function rangesFindKeys(src: RangesSource, keys: readonly string[]): KeyLookup {
-  const p = parseRanges(src);
+/**
+ * Look up a list of keys in a generated population (number ranges, periods): blank entries
+ * counted, repeated keys kept once, unknown keys listed; `rowsOf` gives the rows a key names
+ * (more than one: the key is ambiguous and the first row is taken).
+ */
+export function lookupKeys(keys: readonly string[], rowCount: number, rowsOf: (key: string) => PopulationRow[]): KeyLookup {
   const seen = new Set<string>();
+  const twice = new Set<string>();
   const found: PopulationRow[] = [];
   const unknown: string[] = [];
   const repeated: string[] = [];
@@ -263,19 +268,27 @@ export function rangesFindKeys(src: RangesSource, keys: readonly string[]): KeyL
       continue;
     }
     if (seen.has(k)) {
-      if (!repeated.includes(k)) repeated.push(k);
+      if (!twice.has(k)) repeated.push(k);
+      twice.add(k);
       continue;
     }
     seen.add(k);
-    const n = /^\d{1,15}$/.test(k) ? Number(k) : NaN;
-    const hits = Number.isNaN(n) ? [] : p.segments.filter((s) => s.a <= n && s.b >= n);
-    if (hits.length === 0) {
+    const rows = rowsOf(k);
+    if (rows.length === 0) {
       unknown.push(k);
       continue;
     }
-    const rows = hits.map((s) => rowAt(p, s.offset + (n - s.a)));
     found.push(rows[0]!);
     if (rows.length > 1) ambiguous.push({ key: rows[0]!.key, occurrences: rows.length, rows: rows.slice(0, EXAMPLES).map((r) => r.row) });
   }
-  return { found, unknown, repeated, blankEntries, ambiguous, rowCount: p.rowCount };
+  return { found, unknown, repeated, blankEntries, ambiguous, rowCount };
+}
+
+export function rangesFindKeys(src: RangesSource, keys: readonly string[]): KeyLookup {
+  const p = parseRanges(src);
+  return lookupKeys(keys, p.rowCount, (k) => {
+    const n = /^\d{1,15}$/.test(k) ? Number(k) : NaN;
+    const hits = Number.isNaN(n) ? [] : p.segments.filter((s) => s.a <= n && s.b >= n);
+    return hits.map((s) => rowAt(p, s.offset + (n - s.a)));
+  });
 }
