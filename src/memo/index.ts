@@ -99,6 +99,11 @@ export function cleanForMemo(workpaper: Workpaper, template: MemoTemplate): { wo
 
 /** Render the memo of a workpaper to DOCX bytes. Its XML is parsed (strictly) before it is returned. */
 export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions = {}): Promise<Buffer> {
+  return (await render(workpaper, opts)).buf;
+}
+
+/** The memo's bytes and the model they were laid out from (whether it is final, and why not). */
+async function render(workpaper: Workpaper, opts: RenderMemoOptions): Promise<{ buf: Buffer; model: MemoModel }> {
   const loaded = opts.template ?? (await loadTemplate(opts.templateDir));
   const clean = cleanForMemo(workpaper, loaded);
   const template = clean.template;
@@ -111,11 +116,11 @@ export async function renderMemo(workpaper: Workpaper, opts: RenderMemoOptions =
     // The text was cleaned above, so this is tolrate's fault (or a firm's styles.docx that got past its check).
     throw new Error(`the memo's XML does not parse, so it was not written: ${problems.slice(0, 3).join('; ')}`);
   }
-  return buf;
+  return { buf, model };
 }
 
 /** Render the memo and write it (atomically) to `out` or beside the workpaper. */
-export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string; bytes: number; sha256: string }> {
+export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string; bytes: number; sha256: string; draft: boolean; notFinal: string[] }> {
   const path = resolve(opts.out ?? defaultMemoPath(opts.workpaperPath));
   if (!/\.docx$/i.test(path)) {
     throw new FileInputError(path, `The memo must be written to a .docx file; ${path} does not end in .docx.`);
@@ -127,7 +132,7 @@ export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string;
   if (existsSync(path) && statSync(path).isDirectory()) {
     throw new FileInputError(path, `Cannot write the memo to ${path}: it is a folder.`);
   }
-  const buf = await renderMemo(opts.workpaper, {
+  const { buf, model } = await render(opts.workpaper, {
     workpaperPath: opts.workpaperPath,
     ...(opts.templateDir ? { templateDir: opts.templateDir } : {}),
     ...(opts.template ? { template: opts.template } : {}),
@@ -136,7 +141,7 @@ export async function writeMemo(opts: WriteMemoOptions): Promise<{ path: string;
     ...(opts.operatingCharacteristic ? { operatingCharacteristic: true } : {}),
   });
   const written = writeFileSafely(path, buf, { what: 'the memo' });
-  return { path: written.path, bytes: buf.length, sha256: createHash('sha256').update(buf).digest('hex') };
+  return { path: written.path, bytes: buf.length, sha256: createHash('sha256').update(buf).digest('hex'), draft: model.draft, notFinal: model.notFinal };
 }
 
 /**

@@ -59,12 +59,11 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   const out = str(p, 'out') ?? 'demo-output';
   const title = loadScenario(scenario).title;
   const got = await runDemoInterview(ctx, { out, scenario, verbose: p.values.verbose === true });
-  const { defaultMemoPath, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
+  const { defaultMemoPath, recordMemo, writeMemo } = await import('../../memo/index.js');
   rmSync(defaultMemoPath(got.workpaperPath), { force: true });
   const at = got.now();
   const memo = await writeMemo({ workpaper: got.workpaper, workpaperPath: got.workpaperPath, now: at });
-  const final = !(await memoModel(got.workpaper, { workpaperPath: got.workpaperPath })).draft;
-  recordMemo(got.workpaper, got.workpaperPath, memo, { at, final });
+  recordMemo(got.workpaper, got.workpaperPath, memo, { at, final: !memo.draft });
   got.files.push({ what: 'memo', path: memo.path });
   if (p.values.verbose) ctx.stdout.write('\n');
   ctx.stdout.write(`${narrative(got.workpaper, `tolrate demo: ${title}`).join('\n')}\n`);
@@ -74,15 +73,14 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
 
 async function engagementDemo(ctx: CommandContext, out: string): Promise<number> {
   const { runEngagementDemo } = await import('../../interview/demo-engagement.js');
-  const { defaultMemoPath, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
+  const { defaultMemoPath, recordMemo, writeMemo } = await import('../../memo/index.js');
   const got = await runEngagementDemo(ctx, { out });
   // The memos of the two scenarios, as the single-scenario demo writes them.
   for (const t of got.tests.slice(0, 2)) {
     rmSync(defaultMemoPath(t.workpaperPath), { force: true });
     const at = got.now();
     const memo = await writeMemo({ workpaper: t.workpaper, workpaperPath: t.workpaperPath, now: at });
-    const final = !(await memoModel(t.workpaper, { workpaperPath: t.workpaperPath })).draft;
-    recordMemo(t.workpaper, t.workpaperPath, memo, { at, final });
+    recordMemo(t.workpaper, t.workpaperPath, memo, { at, final: !memo.draft });
     got.files.push({ what: 'memo', path: memo.path });
   }
   const { relative } = await import('node:path');

@@ -73,7 +73,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
   // Loaded here, not at the top, so that `tolrate memo --help` does not load docx.
   const { loadWorkpaperText } = await import('../../workpaper/file.js');
   const { testState } = await import('../../control-test/index.js');
-  const { loadTemplate, memoModel, recordMemo, writeMemo } = await import('../../memo/index.js');
+  const { loadTemplate, recordMemo, writeMemo } = await import('../../memo/index.js');
   const { wp: workpaper, text: loadedText } = loadWorkpaperText(workpaperPath);
   // Without --template, the firm's memo template folder named in the engagement folder file, if any.
   const { folderOf, folderPath } = await import('../../engagement/folder.js');
@@ -97,7 +97,6 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     }
     extraNotFinal = state.integrity.map((x) => `changed outside tolrate: ${x.where}: ${x.message}`);
   }
-  const model = await memoModel(workpaper, { workpaperPath, template, ...(extraNotFinal ? { extraNotFinal } : {}) });
   const now = new Date();
   const oc = p.values.oc === true;
   const written = await writeMemo({ workpaper, workpaperPath, template, now, ...(out !== undefined ? { out: resolve(ctx.cwd, out) } : {}), ...(extraNotFinal ? { extraNotFinal } : {}), ...(oc ? { operatingCharacteristic: true } : {}) });
@@ -121,7 +120,7 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
     try {
       const { record, saved } = recordMemo(workpaper, workpaperPath, written, {
         at: now,
-        final: !model.draft,
+        final: !written.draft,
         ...(dir ? { templateDir: dir } : {}),
         ...(oc ? { operatingCharacteristic: true } : {}),
         beforeWrite: () => {
@@ -135,9 +134,9 @@ export async function run(args: string[], ctx: CommandContext): Promise<number> 
       lock.release();
     }
   }
-  if (model.draft) {
+  if (written.draft) {
     ctx.stdout.write('DRAFT: the memo is marked DRAFT on every page, because:\n');
-    for (const r of model.notFinal) ctx.stdout.write(`  - ${r}\n`);
+    for (const r of written.notFinal) ctx.stdout.write(`  - ${r}\n`);
     const first = state.open[0];
     if (first) ctx.stdout.write(`Continue with: ${t} ${first.startsWith('plan.') ? 'plan' : first === 'record' ? 'record' : 'conclude'} ${file}\n`);
   } else if (!workpaper.signoffs?.reviewer) {
