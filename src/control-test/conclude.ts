@@ -7,6 +7,7 @@ import type { AttributeEvaluation, Conclusion, Evaluation, FollowUp, Workpaper }
 import { pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { countResults, evaluate, isIllustrative, type DeviationRecord } from './evaluate.js';
 import { CAUSE_LABELS } from './labels.js';
+import { bothRisksOf, STAGE_DECISION_WORDS, twoStageOf } from './plan.js';
 import { TolrateInputError } from '../errors.js';
 
 /** What the rates alone say. An illustrative evaluation (non-statistical, haphazard) supports reliance only without deviations. */
@@ -94,8 +95,22 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
             ? `No deviations in ${ev.sampleSize} items. The selection was haphazard, so the result cannot support a statistical conclusion and sampling risk is not quantified.`
             : `${ev.deviations} deviation(s) in ${ev.sampleSize} items. The selection was haphazard, so sampling risk is not quantified and the result does not support the planned reliance without a larger, randomly selected sample or other evidence.`,
       );
-    } else {
+    } else if (ev.stage) {
+      const two = twoStageOf(wp);
+      const st = ev.stage;
+      const rule = two
+        ? `the two-stage plan relies on the control with at most ${two.firstAcceptanceNumber} deviation(s) in the first ${two.firstSampleSize} items, does not with ${two.firstRejectionNumber} or more, and otherwise tests ${two.secondSampleSize} more and relies on it with at most ${two.secondAcceptanceNumber} in all`
+        : 'the two-stage plan';
       parts.push(
+        `${st.firstDeviations} deviation(s) in the ${st.firstSampleSize} first-stage items` +
+          (st.secondSampleSize !== undefined ? ` and ${st.secondDeviations} in the ${st.secondSampleSize} second-stage items` : '') +
+          ` (${rule}): the plan ${STAGE_DECISION_WORDS[st.decision]}. Sample deviation rate ${pct(ev.sampleRate)} and upper deviation limit ${pctLimit(ev.upperLimit, ev.tolerableRate)} as of the ${ev.sampleSize} items tested, at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; the plan's risk of overreliance, exact over both stages, is ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
+      );
+      parts.push(byRates ? 'The results support the planned reliance.' : 'The results do not support the planned reliance.');
+    } else {
+      const both = bothRisksOf(wp);
+      parts.push(
+        (both ? `Sample planned for both risks (rely on the control with at most ${both.acceptanceNumber} deviation(s) in ${both.sampleSize} items). ` : '') +
         `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctLimit(ev.upperLimit, ev.tolerableRate)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
       );
       parts.push(byRates ? 'The rates support the planned reliance.' : 'The rates do not support the planned reliance.');
@@ -149,6 +164,11 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
             ? `: because the extension is decided after seeing these results, the risk of overreliance of doing so is ${pctUp(risk.procedure)}, not the planned ${pctPlain(1 - ev.confidence)} (${pctUp(risk.repeated)} if the sample is extended again after each failure). Extend only if that risk is acceptable under the firm's methodology and documented; otherwise test a compensating control or reduce reliance.`
             : '.'),
         items: ev.extension,
+      });
+    } else if (!ev.illustrative && ev.stage && !intentional) {
+      out.push({
+        kind: 'other',
+        description: `No extension of the sample is proposed for ${f.attributeId}: the two-stage plan already had its second look${ev.stage.reached === 1 ? ' (here the first stage alone decided)' : ''}, and testing more items after it would raise the risk of overreliance above the planned ${pctPlain(1 - ev.confidence)}.`,
       });
     } else if (!ev.illustrative && ev.extension === null && !intentional) {
       out.push({

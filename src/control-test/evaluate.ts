@@ -5,7 +5,8 @@
  */
 import { extensionRisk, extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
 import { NoPracticalSizeError, TolrateInputError } from '../errors.js';
-import { progress, testedResults, worklist } from './worklist.js';
+import { progress, testedResults, testedWork, worklist } from './worklist.js';
+import { bothRisksOf, stageDecision, twoStageOf, twoStageRisk } from './plan.js';
 import type {
   Attribute,
   AttributeEvaluation,
@@ -31,6 +32,8 @@ export interface AttributeCounts {
   deviationRecords: DeviationRecord[];
   /** Selected sample items with no result yet for this attribute. */
   missing: string[];
+  /** Two-stage plan: the items tested and the deviations of each stage (the second only when it was tested for this attribute). */
+  stages?: { firstSampleSize: number; firstDeviations: number; secondSampleSize?: number; secondDeviations?: number };
 }
 
 /** The tolerable rate that applies to an attribute. */
@@ -62,21 +65,38 @@ export function testedItems(wp: Workpaper): ItemResult[] {
 
 export function countResults(wp: Workpaper): AttributeCounts[] {
   const attrs = wp.attributes ?? [];
-  const items = testedItems(wp);
+  const items = testedWork(wp);
+  const twoStage = twoStageOf(wp) !== undefined;
+  const needed = twoStage ? (worklist(wp).stages?.secondNeeded ?? []) : [];
   return attrs.map((a) => {
     const deviationRecords: DeviationRecord[] = [];
     let n = 0;
     const missing: string[] = [];
-    for (const it of items) {
+    const by = { 1: { n: 0, k: 0 }, 2: { n: 0, k: 0 } };
+    // Needed at the second stage: reached even if every second-stage item was void with no spare left.
+    let second = needed.includes(a.id);
+    for (const { work, result: it } of items) {
+      // At the second stage an item is tested only for the attributes that need it.
+      if (!work.attributes.includes(a.id)) continue;
+      if (work.stage === 2) second = true;
       const r = it.attributes[a.id];
       if (!r) {
         missing.push(it.key);
         continue;
       }
       n++;
-      if (r.result === 'deviation') deviationRecords.push({ key: it.key, seq: it.seq, attributeId: a.id, result: r });
+      const st = by[work.stage ?? 1];
+      st.n++;
+      if (r.result === 'deviation') {
+        st.k++;
+        deviationRecords.push({ key: it.key, seq: it.seq, attributeId: a.id, result: r });
+      }
     }
-    return { attributeId: a.id, sampleSize: n, deviations: deviationRecords.length, deviationRecords, missing };
+    const out: AttributeCounts = { attributeId: a.id, sampleSize: n, deviations: deviationRecords.length, deviationRecords, missing };
+    if (twoStage) {
+      out.stages = { firstSampleSize: by[1].n, firstDeviations: by[1].k, ...(second ? { secondSampleSize: by[2].n, secondDeviations: by[2].k } : {}) };
+    }
+    return out;
   });
 }
 
@@ -138,6 +158,48 @@ export function attributeFigures(args: {
   return out;
 }
 
+/**
+ * The decision of the plan adopted, in place of the single-stage rule. Two stages: k1 ≤ c1
+ * accepts, k1 ≥ r1 rejects, otherwise k1 + k2 ≤ c2 accepts (plan.ts: stageDecision); the risk of
+ * overreliance shown is the plan's exact one over both stages, the sample rate and the upper limit
+ * are those of the items tested, and no extension is offered after a rejection (the plan already
+ * had its second look). Both risks: k ≤ c, which with the planned n is the exact risk rule; both
+ * are required, so a sample left short by voids is judged by the stricter of the two.
+ */
+function byPlan(wp: Workpaper, f: AttributeEvaluation, c: AttributeCounts): AttributeEvaluation {
+  const two = twoStageOf(wp);
+  if (two && c.stages) {
+    const st = c.stages;
+    const decision = stageDecision(two, st.firstDeviations, st.secondSampleSize !== undefined ? st.secondDeviations : undefined);
+    if (decision === 'second-stage-needed') {
+      throw new TolrateInputError(`Attribute ${f.attributeId} needs the second stage of the plan, and it has no results yet: record them before evaluating.`, 'RESULTS_INCOMPLETE');
+    }
+    const accepted = decision === 'accepted-at-first' || decision === 'accepted-at-second';
+    const { extensionRisk: _dropped, ...rest } = f;
+    return {
+      ...rest,
+      achievedRisk: twoStageRisk(wp, two, f.tolerableRate),
+      supportedByRates: accepted,
+      extension: accepted ? 0 : null,
+      stage: {
+        reached: st.secondSampleSize !== undefined ? 2 : 1,
+        firstSampleSize: st.firstSampleSize,
+        firstDeviations: st.firstDeviations,
+        ...(st.secondSampleSize !== undefined ? { secondSampleSize: st.secondSampleSize, secondDeviations: st.secondDeviations ?? 0 } : {}),
+        decision,
+      },
+    };
+  }
+  const both = bothRisksOf(wp);
+  if (both) {
+    const supported = f.deviations <= both.acceptanceNumber && f.supportedByRates;
+    if (supported === f.supportedByRates) return f;
+    // k > c although the exact risk is within β: only when a tested sample exceeds the plan's n.
+    return { ...f, supportedByRates: supported, extension: null };
+  }
+  return f;
+}
+
 /** Evaluate every attribute of a workpaper whose results are recorded. */
 export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
   if (!wp.approach) throw new TolrateInputError('The workpaper has no approach: plan the test first.');
@@ -157,7 +219,7 @@ export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
   const populationSize = modelPopulationSize(wp);
   const attributes = (wp.attributes ?? []).map((a, i) => {
     const c = counts[i]!;
-    return attributeFigures({
+    const figures = attributeFigures({
       attributeId: a.id,
       sampleSize: c.sampleSize,
       deviations: c.deviations,
@@ -168,6 +230,7 @@ export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
       ...(wp.population?.fingerprint.rowCount !== undefined ? { knownPopulationSize: wp.population.fingerprint.rowCount } : {}),
       illustrative,
     });
+    return illustrative ? figures : byPlan(wp, figures, c);
   });
   return { attributes, evaluatedAt: now.toISOString() };
 }
@@ -198,6 +261,10 @@ export function evaluationDifferences(recorded: Evaluation, fresh: Evaluation, s
     }
     if (!r.extensionRisk && f.extensionRisk) diffs.push(`${id}: the risk of extending the sample (${show.exact(f.extensionRisk.procedure)}) is not recorded`);
     if (r.illustrative !== f.illustrative) diffs.push(`${id}: recorded as ${r.illustrative ? '' : 'not '}illustrative, recomputed ${f.illustrative ? '' : 'not '}illustrative`);
+    if (f.stage || r.stage) {
+      const st = (x: AttributeEvaluation) => (x.stage ? `stage ${x.stage.reached} reached, ${x.stage.firstDeviations} deviation(s) in ${x.stage.firstSampleSize} at the first stage${x.stage.secondSampleSize !== undefined ? `, ${x.stage.secondDeviations} in ${x.stage.secondSampleSize} at the second` : ''}, ${x.stage.decision}` : 'no stage recorded');
+      if (st(r) !== st(f)) diffs.push(`${id}: recorded ${st(r)}; re-derived ${st(f)}`);
+    }
     if ((r.deviationsInPopulation ?? null) !== (f.deviationsInPopulation ?? null)) {
       diffs.push(`${id}: recorded upper limit count ${r.deviationsInPopulation ?? '(none)'}, recomputed ${f.deviationsInPopulation ?? '(none)'}`);
     }

@@ -14,3 +14,4 @@ export * from './labels.js';
 export * from './state.js';
 export * from './review.js';
 export * from './evidence.js';
+export * from './plan.js';

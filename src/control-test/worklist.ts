@@ -6,11 +6,28 @@
  * any result that does not fit it.
  */
 import type { ItemResult, SelectedItem, Workpaper } from '../workpaper/schema.js';
+import { needsSecondStage, twoStageOf } from './plan.js';
 
 export interface WorkItem {
   item: SelectedItem;
   /** The voided item this spare replaces. */
   replaces?: string;
+  /** Two-stage plan: the stage the item belongs to (a spare takes the stage of the item it replaces). */
+  stage?: 1 | 2;
+  /** The attributes this item is tested for: every attribute, or at the second stage those that need it. */
+  attributes: string[];
+}
+
+/** Two-stage plan: where the stages stand. */
+export interface StageState {
+  /** Every first-stage item has its result. */
+  firstComplete: boolean;
+  /** Deviations found at the first stage, by attribute (so far, when it is not complete). */
+  firstDeviations: Record<string, number>;
+  /** With the first stage complete: the attributes whose first-stage deviations leave the decision to the second stage (c1 < k1 < r1). */
+  secondNeeded: string[];
+  /** The second-stage sample items (on the worklist only when the second stage is needed). */
+  secondItems: SelectedItem[];
 }
 
 export interface Worklist {
@@ -22,15 +39,26 @@ export interface Worklist {
   nextSpare: SelectedItem | undefined;
   /** Voided items for which no spare was left. */
   shortBy: number;
+  /** Two-stage plan only. */
+  stages?: StageState;
 }
 
 function byKey(wp: Workpaper): Map<string, ItemResult> {
   return new Map((wp.results?.items ?? []).map((r) => [r.key, r]));
 }
 
-/** True when the result is complete: void, or a result for every attribute. */
-export function isComplete(wp: Workpaper, r: ItemResult | undefined): boolean {
-  return r !== undefined && (r.void !== undefined || (wp.attributes ?? []).every((a) => r.attributes[a.id] !== undefined));
+/**
+ * True when the item's result is complete: void, or a result for every attribute the item is
+ * tested for (every attribute, or at the second stage of a two-stage plan the ones that need it).
+ * The one rule the interview, the sheet reader, the evaluation and re-performance use.
+ */
+export function isComplete(r: ItemResult | undefined, work: Pick<WorkItem, 'attributes'>): boolean {
+  return r !== undefined && (r.void !== undefined || work.attributes.every((id) => r.attributes[id] !== undefined));
+}
+
+/** The stage of each sample item under a two-stage plan: as recorded, else by draw order (the first n1 are stage 1). */
+function stageOfItem(item: SelectedItem, index: number, n1: number): 1 | 2 {
+  return item.stage ?? (index < n1 ? 1 : 2);
 }
 
 export function worklist(wp: Workpaper): Worklist {
@@ -40,36 +68,58 @@ export function worklist(wp: Workpaper): Worklist {
   const spares = sel.items.filter((i) => i.role === 'spare').sort((a, b) => a.seq - b.seq);
   const sample = sel.items.filter((i) => i.role === 'sample').sort((a, b) => a.seq - b.seq);
   const used = new Set([...results.values()].map((r) => r.void?.replacedBy).filter((k): k is string => k !== undefined));
+  const all = (wp.attributes ?? []).map((a) => a.id);
   const items: WorkItem[] = [];
   let shortBy = 0;
-  const visit = (item: SelectedItem, replaces?: string) => {
-    items.push({ item, ...(replaces ? { replaces } : {}) });
+  const visit = (item: SelectedItem, attributes: string[], stage: 1 | 2 | undefined, replaces?: string) => {
+    items.push({ item, ...(replaces ? { replaces } : {}), ...(stage ? { stage } : {}), attributes });
     const r = results.get(item.key);
     if (r?.void) {
       const spare = r.void.replacedBy ? spares.find((s) => s.key === r.void!.replacedBy) : undefined;
-      if (spare) visit(spare, item.key);
+      if (spare) visit(spare, attributes, stage, item.key);
       else shortBy++;
     }
   };
-  for (const it of sample) visit(it);
+  const plan = twoStageOf(wp);
+  let stages: StageState | undefined;
+  if (!plan) {
+    for (const it of sample) visit(it, all, undefined);
+  } else {
+    const first = sample.filter((it, i) => stageOfItem(it, i, plan.firstSampleSize) === 1);
+    const second = sample.filter((it, i) => stageOfItem(it, i, plan.firstSampleSize) === 2);
+    for (const it of first) visit(it, all, 1);
+    const firstComplete = items.every((x) => isComplete(results.get(x.item.key), x));
+    const firstDeviations: Record<string, number> = {};
+    for (const id of all) {
+      firstDeviations[id] = items.filter((x) => {
+        const r = results.get(x.item.key);
+        return r && !r.void && r.attributes[id]?.result === 'deviation';
+      }).length;
+    }
+    const secondNeeded = firstComplete ? all.filter((id) => needsSecondStage(plan, firstDeviations[id]!)) : [];
+    if (secondNeeded.length > 0) for (const it of second) visit(it, secondNeeded, 2);
+    stages = { firstComplete, firstDeviations, secondNeeded, secondItems: second };
+  }
   return {
     items,
-    next: items.find((x) => !isComplete(wp, results.get(x.item.key))),
+    next: items.find((x) => !isComplete(results.get(x.item.key), x)),
     nextSpare: spares.find((s) => !used.has(s.key) && !results.has(s.key)),
     shortBy,
+    ...(stages ? { stages } : {}),
   };
 }
 
-/** True when the item has its result: void, or a result for every attribute. */
+/** True when the item is on the worklist and has its complete result (void, or every attribute it is tested for). */
 export function isRecorded(wp: Workpaper, key: string): boolean {
-  return isComplete(wp, wp.results?.items.find((x) => x.key === key));
+  const w = worklist(wp).items.find((x) => x.item.key === key);
+  return w !== undefined && isComplete(wp.results?.items.find((x) => x.key === key), w);
 }
 
 /** Items of the worklist with their result, and in all. */
 export function progress(wp: Workpaper): { recorded: number; total: number } {
   const wl = worklist(wp);
   const results = byKey(wp);
-  return { recorded: wl.items.filter((x) => isComplete(wp, results.get(x.item.key))).length, total: wl.items.length };
+  return { recorded: wl.items.filter((x) => isComplete(results.get(x.item.key), x)).length, total: wl.items.length };
 }
 
 export function recordingComplete(wp: Workpaper): boolean {
@@ -78,10 +128,15 @@ export function recordingComplete(wp: Workpaper): boolean {
 
 /** The tested items: the worklist's items that have a result and are not void, in worklist order. */
 export function testedResults(wp: Workpaper): ItemResult[] {
+  return testedWork(wp).map((x) => x.result);
+}
+
+/** The tested items with their place on the worklist (stage, attributes tested for). */
+export function testedWork(wp: Workpaper): Array<{ work: WorkItem; result: ItemResult }> {
   const results = byKey(wp);
   return worklist(wp)
-    .items.map((x) => results.get(x.item.key))
-    .filter((r): r is ItemResult => r !== undefined && r.void === undefined);
+    .items.map((work) => ({ work, result: results.get(work.item.key) }))
+    .filter((x): x is { work: WorkItem; result: ItemResult } => x.result !== undefined && x.result.void === undefined);
 }
 
 /**
@@ -154,7 +209,8 @@ export function worklistProblems(wp: Workpaper, o: { requireComplete?: boolean }
     const w = onList.get(r.key);
     if (!w) {
       const hasResult = r.void !== undefined || Object.keys(r.attributes).length > 0;
-      if (sel.role === 'spare' && hasResult) problems.push(`${r.key} (spare, item ${sel.seq}): a result is recorded for a spare that replaces no voided item`);
+      if (sel.role === 'sample' && sel.stage === 2 && hasResult) problems.push(`${r.key} (item ${sel.seq}, second stage): a result is recorded, but the first stage decided every attribute, so the second stage is not tested`);
+      else if (sel.role === 'spare' && hasResult) problems.push(`${r.key} (spare, item ${sel.seq}): a result is recorded for a spare that replaces no voided item`);
       else if (hasResult) problems.push(`${r.key} (item ${sel.seq}): a result is recorded for an item that is not on the worklist`);
       continue;
     }
@@ -175,7 +231,7 @@ export function worklistProblems(wp: Workpaper, o: { requireComplete?: boolean }
   });
   for (const x of o.requireComplete ? wl.items : []) {
     const r = results.find((y) => y.key === x.item.key);
-    if (!isComplete(wp, r)) problems.push(`${x.item.key} (item ${x.item.seq}${x.replaces ? `, spare replacing ${x.replaces}` : ''}): on the worklist but has no complete result`);
+    if (!isComplete(r, x)) problems.push(`${x.item.key} (item ${x.item.seq}${x.replaces ? `, spare replacing ${x.replaces}` : ''}): on the worklist but has no complete result`);
   }
   // Order: sample items' results follow the draw order (seq), and so do the spares' among themselves.
   for (const role of ['sample', 'spare'] as const) {

@@ -33,6 +33,8 @@ export function defaultsFrom(last: Workpaper): CarriedForward['defaults'] {
       a['plan.approach.confidence'] = pctPlain(ap.confidence);
       a['plan.approach.expectedRate'] = pctPlain(ap.expectedRate);
       a['plan.approach.model'] = ap.model;
+      a['plan.approach.plan'] = ap.plan?.kind ?? 'single';
+      if (ap.plan?.kind === 'both-risks') a['plan.approach.underrelianceRisk'] = pctPlain(ap.plan.allowedUnderrelianceRisk);
     }
     out['plan.approach'] = a;
   }

@@ -110,6 +110,7 @@ export async function runEngagementDemo(ctx: CommandContext, o: { out: string; s
     'plan.population.ledgerTotal': (small.answers['plan.population.ledgerTotal'] as string) ?? '',
     'plan.population.tieOutExplanation': (small.answers['plan.population.tieOutExplanation'] as string) ?? '',
     'plan.population.ledgerSource': (small.answers['plan.population.ledgerSource'] as string) ?? '',
+    'plan.approach.plan': 'single',
     'plan.approach.size.accept': 'accept',
     'plan.selection.method': 'random',
     'plan.selection.spares': '3',

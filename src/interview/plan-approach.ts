@@ -4,8 +4,8 @@
  * (the firm's sampling policy by control frequency and reliance level). The practitioner
  * accepts the size or enters a larger one with a reason.
  */
-import { sampleSize } from '../stats/index.js';
-import type { SampleSizeResult } from '../stats/index.js';
+import { overrelianceRisk, planForBothRisks, sampleSize, twoStagePlan } from '../stats/index.js';
+import type { BothRisksPlanResult, SampleSizeResult, TwoStagePlanResult } from '../stats/index.js';
 import { TolrateInputError } from '../errors.js';
 import type { Approach, Attribute, Model, SizeForAttribute } from '../workpaper/schema.js';
 import { int, pctPlain, pctUp } from '../util/format.js';
@@ -195,12 +195,6 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
   s.print('');
   const whole = n >= N;
   if (whole) s.print(`  The size reaches the population (${int(N)}): every item is tested.`);
-  const chosen = await askSizeChoice(s, Math.min(n, N), N, 'computation', wasStat);
-  if (chosen.size < 0) return undefined;
-  const rationale =
-    `Statistical sample: ${why}` +
-    (fpc ? ` (Textbook finite population correction of the binomial size ${fpc.binomialSampleSize}: ${fpc.correctedSampleSize}, not used.)` : '') +
-    (chosen.size !== n ? ` The practitioner adopted ${int(chosen.size)} items instead of ${int(n)}: ${chosen.reason ?? 'the whole population'}.` : '');
   const perAttr: SizeForAttribute[] = sizes.map((x) => ({
     attributeId: x.attribute.id,
     tolerableRate: x.tolerableRate,
@@ -210,17 +204,198 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     acceptanceNumber: x.result.acceptanceNumber,
     underrelianceRisk: x.result.underrelianceRisk,
   }));
-  return {
-    kind: 'statistical',
+  const base = {
+    kind: 'statistical' as const,
     confidence,
     tolerableRate,
     expectedRate,
     model,
     sizes: perAttr,
     ...(fpc ? { finitePopulationCorrection: { binomialSampleSize: fpc.binomialSampleSize, correctedSampleSize: fpc.correctedSampleSize } } : {}),
-    sampleSize: chosen.size,
-    rationale,
   };
+  const planned = await askPlan(s, { ...plan, single: top.result, oneRate: attrs.every((x) => x.tolerableRate === undefined || x.tolerableRate === tolerableRate) }, wasStat);
+  if (planned === 'change') return undefined;
+  if (planned !== 'single') return { ...base, plan: planned.plan, sampleSize: planned.sampleSize, rationale: planned.rationale };
+  const chosen = await askSizeChoice(s, Math.min(n, N), N, 'computation', wasStat);
+  if (chosen.size < 0) return undefined;
+  const rationale =
+    `Statistical sample: ${why}` +
+    (fpc ? ` (Textbook finite population correction of the binomial size ${fpc.binomialSampleSize}: ${fpc.correctedSampleSize}, not used.)` : '') +
+    (chosen.size !== n ? ` The practitioner adopted ${int(chosen.size)} items instead of ${int(n)}: ${chosen.reason ?? 'the whole population'}.` : '');
+  return { ...base, sampleSize: chosen.size, rationale };
+}
+
+type PlanParams = { confidence: number; tolerableRate: number; expectedRate: number; model: Model; populationSize: number };
+type Planned = 'single' | 'change' | { plan: NonNullable<Approach['plan']>; sampleSize: number; rationale: string };
+
+/** The figures of the ordinary single-stage sample, beside which the other plans are shown. */
+function singleRow(single: SampleSizeResult, p: PlanParams): string[] {
+  const atC = overrelianceRisk({ sampleSize: single.sampleSize, deviations: single.acceptanceNumber, tolerableRate: p.tolerableRate, model: p.model, ...(p.model === 'hypergeometric' ? { populationSize: p.populationSize } : {}) });
+  return ['One sample', int(single.sampleSize), `${single.acceptanceNumber}`, pctUp(atC), pctUp(single.underrelianceRisk), int(single.sampleSize), '—'];
+}
+
+function twoStageRow(t: TwoStagePlanResult): string[] {
+  const p = t.plan;
+  return [
+    'Two stages',
+    `${int(p.firstSampleSize)} + ${int(p.secondSampleSize)}`,
+    `${p.firstAcceptanceNumber} of ${int(p.firstSampleSize)} (${p.firstRejectionNumber}+ fails); ${p.secondAcceptanceNumber} of ${int(p.firstSampleSize + p.secondSampleSize)}`,
+    pctUp(t.overrelianceRisk),
+    pctUp(t.underrelianceRisk),
+    t.averageSampleNumber.toFixed(1),
+    pctUp(t.secondStageProbability),
+  ];
+}
+
+const PLAN_HEADER = ['Plan', 'Items', 'Rely with at most', 'Overreliance', 'Underreliance', 'Expected items', 'Second stage'];
+
+function twoStageWords(t: TwoStagePlanResult, p: PlanParams): string {
+  const x = t.plan;
+  return (
+    `Two-stage plan: test ${int(x.firstSampleSize)} items first. With at most ${x.firstAcceptanceNumber} deviation(s) the control is relied on; ` +
+    `with ${x.firstRejectionNumber} or more it is not. Otherwise (${x.firstAcceptanceNumber + 1}${x.firstRejectionNumber - 1 > x.firstAcceptanceNumber + 1 ? ` to ${x.firstRejectionNumber - 1}` : ''} deviation(s)) ` +
+    `${int(x.secondSampleSize)} more items are tested and the control is relied on with at most ${x.secondAcceptanceNumber} deviation(s) in all ${int(x.firstSampleSize + x.secondSampleSize)}. ` +
+    `Computed exactly over both stages (${modelWords(p.model, p.populationSize)}${p.model === 'hypergeometric' ? ', the second stage drawn from the items the first left untested' : ''}): ` +
+    `risk of overreliance ${pctUp(t.overrelianceRisk)} at the tolerable rate of ${pctPlain(p.tolerableRate)} (${pctPlain(1 - p.confidence)} allowed); ` +
+    `risk of underreliance ${pctUp(t.underrelianceRisk)} at the expected rate of ${pctPlain(p.expectedRate)} (at most the one-sample plan's ${pctUp(t.allowedUnderrelianceRisk)}); ` +
+    `at the expected rate ${t.averageSampleNumber.toFixed(1)} items are tested on average, and the second stage is needed with a chance of ${pctUp(t.secondStageProbability)}. ` +
+    `Both stages are selected now (${int(x.firstSampleSize + x.secondSampleSize)} items, the most that may be tested); the second-stage items are tested only when the first stage is inconclusive.`
+  );
+}
+
+function bothRisksWords(b: BothRisksPlanResult, p: PlanParams): string {
+  return (
+    `Sample planned for both risks: ${int(b.sampleSize)} items, relying on the control with at most ${b.acceptanceNumber} deviation(s). ` +
+    `Risk of overreliance ${pctUp(b.overrelianceRisk)} at the tolerable rate of ${pctPlain(p.tolerableRate)} (${pctPlain(1 - p.confidence)} allowed); ` +
+    `risk of underreliance ${pctUp(b.underrelianceRisk)} at the expected rate of ${pctPlain(p.expectedRate)} (${pctPlain(b.allowedUnderrelianceRisk)} accepted); ` +
+    `${modelWords(p.model, p.populationSize)}, computed exactly. It is the smallest sample that keeps both risks within those limits.`
+  );
+}
+
+/**
+ * After the sizes are shown: the plan. One sample (the usual); planned for both risks (also limit
+ * the risk of underreliance, which the practitioner gives); or two stages (only when every
+ * attribute uses the test's one tolerable rate). Each with the figures needed to choose, computed
+ * exactly by the engine (twoStagePlan, planForBothRisks).
+ */
+async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; oneRate: boolean }, old: Approach | undefined): Promise<Planned> {
+  const a = s.asker;
+  let two: TwoStagePlanResult | undefined;
+  let whyNotTwo: string | undefined;
+  if (!p.oneRate) whyNotTwo = 'Two stages and planning for both risks are not offered: they use one acceptance rule for the test, and some attributes have their own tolerable rates.';
+  else {
+    try {
+      two = twoStagePlan({ confidence: p.confidence, tolerableRate: p.tolerableRate, expectedRate: p.expectedRate, model: p.model, populationSize: p.populationSize });
+      if (two.plan.firstSampleSize + two.plan.secondSampleSize > p.populationSize) {
+        whyNotTwo = `Two stages are not offered: the plan found needs up to ${int(two.plan.firstSampleSize + two.plan.secondSampleSize)} items, more than the population of ${int(p.populationSize)}.`;
+        two = undefined;
+      }
+    } catch (e) {
+      if (!(e instanceof TolrateInputError)) throw e;
+      whyNotTwo = `Two stages are not offered: ${e.message}`;
+    }
+  }
+  s.heading('Sampling plan');
+  s.print(...table(PLAN_HEADER, [singleRow(p.single, p), ...(two ? [twoStageRow(two)] : [])]));
+  s.print(
+    ...wrap(
+      'Overreliance: the chance of relying on the control when its deviation rate is at the tolerable rate. Underreliance: the chance of not relying on it when ' +
+        'it works at the expected rate. Expected items: the items tested on average at the expected rate. Second stage: the chance, at the expected rate, that the second stage is needed.',
+      92,
+      '  ',
+    ),
+  );
+  if (two) s.print('', ...wrap(twoStageWords(two, p), 92, '  '), ...wrap('A two-stage plan needs random selection (the first items drawn are then themselves a random sample).', 92, '  '));
+  if (whyNotTwo) s.print('', ...wrap(whyNotTwo, 92, '  '));
+  s.print('', ...wrap('The tool computes the plans; which one suits the test is your judgement under the standards and the firm methodology that apply.', 92, '  '));
+  for (;;) {
+    const kind = await a.select<'single' | 'both-risks' | 'two-stage'>({
+      id: 'plan.approach.plan',
+      message: 'Sampling plan',
+      choices: [
+        { value: 'single', name: `One sample (the usual): ${int(p.single.sampleSize)} items` },
+        ...(p.oneRate ? [{ value: 'both-risks' as const, name: 'Planned for both risks (also limit the risk of underreliance)' }] : []),
+        ...(two ? [{ value: 'two-stage' as const, name: `Two stages (test ${int(two.plan.firstSampleSize)}; test ${int(two.plan.secondSampleSize)} more only when the first stage is inconclusive)` }] : []),
+      ],
+      default: old?.plan?.kind === 'two-stage' && two ? 'two-stage' : old?.plan?.kind === 'both-risks' && p.oneRate ? 'both-risks' : 'single',
+    });
+    if (kind === 'single') return 'single';
+    if (kind === 'two-stage') {
+      const t = two!;
+      const accept = await a.select({
+        id: 'plan.approach.plan.accept',
+        message: `Use the two-stage plan (up to ${int(t.plan.firstSampleSize + t.plan.secondSampleSize)} items selected)?`,
+        choices: [
+          { value: 'accept', name: 'Yes' },
+          { value: 'other', name: 'Choose another plan' },
+          { value: 'change', name: 'Change the parameters' },
+        ],
+        default: 'accept',
+      });
+      if (accept === 'change') return 'change';
+      if (accept === 'other') continue;
+      const x = t.plan;
+      return {
+        plan: {
+          kind: 'two-stage',
+          firstSampleSize: x.firstSampleSize,
+          firstAcceptanceNumber: x.firstAcceptanceNumber,
+          firstRejectionNumber: x.firstRejectionNumber,
+          secondSampleSize: x.secondSampleSize,
+          secondAcceptanceNumber: x.secondAcceptanceNumber,
+          overrelianceRisk: t.overrelianceRisk,
+          underrelianceRisk: t.underrelianceRisk,
+          averageSampleNumber: t.averageSampleNumber,
+          secondStageProbability: t.secondStageProbability,
+          allowedUnderrelianceRisk: t.allowedUnderrelianceRisk,
+        },
+        sampleSize: x.firstSampleSize + x.secondSampleSize,
+        rationale:
+          `Statistical sample, two stages: ${twoStageWords(t, p)} The sample size recorded, ${int(x.firstSampleSize + x.secondSampleSize)}, is the most items that may be tested (${int(x.firstSampleSize)} + ${int(x.secondSampleSize)}). ` +
+          `The single-stage sample would be ${int(t.singleStage.sampleSize)} items, relying on the control with at most ${t.singleStage.acceptanceNumber} deviation(s).`,
+      };
+    }
+    const wasBoth = old?.plan?.kind === 'both-risks' ? old.plan : undefined;
+    const alpha = await askRate(a, {
+      id: 'plan.approach.underrelianceRisk',
+      message: 'Most risk of underreliance you accept (%)',
+      help: `The chance of not relying on the control although it works at the expected rate of ${pctPlain(p.expectedRate)}. With one sample of ${int(p.single.sampleSize)} it is ${pctUp(p.single.underrelianceRisk)}; a lower figure needs a larger sample. E.g. 10 or 20.`,
+      default: wasBoth ? pctPlain(wasBoth.allowedUnderrelianceRisk) : '10',
+      parse: rate('The risk of underreliance', { below: 1, belowWhat: '100%', example: '10' }),
+    });
+    let b: BothRisksPlanResult;
+    try {
+      b = planForBothRisks({ confidence: p.confidence, tolerableRate: p.tolerableRate, expectedRate: p.expectedRate, underrelianceRisk: alpha, model: p.model, populationSize: p.populationSize });
+    } catch (e) {
+      if (!(e instanceof TolrateInputError)) throw e;
+      s.print('', ...wrap(e.message, 92, '  '));
+      continue;
+    }
+    if (b.sampleSize > p.populationSize) {
+      s.print('', ...wrap(`No plan within the population of ${int(p.populationSize)} items keeps the risk of underreliance within ${pctPlain(alpha)}: it would need ${int(b.sampleSize)}. Accept a higher risk of underreliance or choose another plan.`, 92, '  '));
+      continue;
+    }
+    s.print('', ...table(PLAN_HEADER, [singleRow(p.single, p), ['Both risks', int(b.sampleSize), String(b.acceptanceNumber), pctUp(b.overrelianceRisk), pctUp(b.underrelianceRisk), int(b.sampleSize), '—']]));
+    s.print('', ...wrap(bothRisksWords(b, p), 92, '  '));
+    if (b.sizeRemark) s.print(...wrap(b.sizeRemark, 92, '  '));
+    const accept = await a.select({
+      id: 'plan.approach.plan.accept',
+      message: `Use ${int(b.sampleSize)} items, relying on the control with at most ${b.acceptanceNumber} deviation(s)?`,
+      choices: [
+        { value: 'accept', name: 'Yes' },
+        { value: 'other', name: 'Choose another plan (or another risk of underreliance)' },
+        { value: 'change', name: 'Change the parameters' },
+      ],
+      default: 'accept',
+    });
+    if (accept === 'change') return 'change';
+    if (accept === 'other') continue;
+    return {
+      plan: { kind: 'both-risks', sampleSize: b.sampleSize, acceptanceNumber: b.acceptanceNumber, overrelianceRisk: b.overrelianceRisk, underrelianceRisk: b.underrelianceRisk, allowedUnderrelianceRisk: alpha },
+      sampleSize: b.sampleSize,
+      rationale: `Statistical sample planned for both risks: ${bothRisksWords(b, p)} The one-sample plan would be ${int(p.single.sampleSize)} items with a risk of underreliance of ${pctUp(p.single.underrelianceRisk)}.`,
+    };
+  }
 }
 
 async function nonStatistical(s: Session, old: Approach | undefined): Promise<Approach | undefined> {

@@ -13,8 +13,11 @@ import {
   selectRandom,
   selectSystematic,
   writeFieldworkSheet,
+  roleText,
+  stageOfDraw,
   type Selection as Drawn,
 } from '../selection/index.js';
+import { twoStageOf } from '../control-test/index.js';
 import { TolrateInputError } from '../errors.js';
 import { WORKPAPER_SUFFIX } from '../workpaper/file.js';
 import type { SelectedItem, Selection } from '../workpaper/schema.js';
@@ -51,15 +54,31 @@ function splitKeys(t: string): string[] {
 async function draw(s: Session, n: number, N: number): Promise<Drawn> {
   const a = s.asker;
   const old = s.wp.selection;
+  const two = twoStageOf(s.wp);
+  if (two) {
+    s.print(
+      ...wrap(
+        `Two-stage plan: both stages are drawn now, at random from the seed: the first ${int(two.firstSampleSize)} items drawn are the first stage, ` +
+          `the next ${int(two.secondSampleSize)} the second (tested only when the first stage is inconclusive), then the spares. ` +
+          'Only random selection is offered: with systematic or haphazard selection the first items would not be a random sample of their own.',
+        92,
+        '  ',
+      ),
+    );
+  }
   const method = await a.select({
     id: 'plan.selection.method',
     message: 'Selection method',
     choices: [
       { value: 'random', name: 'Random (seeded: anyone can draw the same items again)' },
-      { value: 'systematic', name: 'Systematic (every k-th item from a random start)' },
-      { value: 'haphazard', name: 'Haphazard (items chosen by a person; cannot support a statistical conclusion)' },
+      ...(two
+        ? []
+        : [
+            { value: 'systematic' as const, name: 'Systematic (every k-th item from a random start)' },
+            { value: 'haphazard' as const, name: 'Haphazard (items chosen by a person; cannot support a statistical conclusion)' },
+          ]),
     ],
-    default: old?.method ?? 'random',
+    default: two ? 'random' : (old?.method ?? 'random'),
   });
   if (method === 'haphazard') return haphazard(s, n);
   const maxSpares = N - n;
@@ -181,6 +200,7 @@ export async function askSelection(s: Session): Promise<Selection> {
   const source = readSource(pop.source, s.dir);
   // A progress bar is drawn only when the output is a terminal and reading takes a while.
   const rows = await readRowsAt(source, drawn.positions, pop.source.kind === 'ranges' ? {} : { expectSha256: pop.fingerprint.sha256, progress: s.out });
+  const two = twoStageOf(s.wp);
   const items: SelectedItem[] = rows.map((r, i) => ({
     seq: i + 1,
     role: i < drawn.sampleSize ? 'sample' : 'spare',
@@ -188,8 +208,9 @@ export async function askSelection(s: Session): Promise<Selection> {
     row: r.row,
     key: r.key,
     values: r.values,
+    ...(two && i < drawn.sampleSize ? { stage: stageOfDraw(i, two.firstSampleSize) } : {}),
   }));
-  const shown = items.slice(0, 12).map((it) => [String(it.seq), it.role, it.key, int(it.row)]);
+  const shown = items.slice(0, 12).map((it) => [String(it.seq), roleText(it), it.key, int(it.row)]);
   s.print(`  Selected ${int(drawn.sampleSize)} items${drawn.spares ? ` and ${int(drawn.spares)} spare${drawn.spares === 1 ? '' : 's'}` : ''} (${drawn.algorithm.split(':')[0]}):`);
   s.print(...table(['Seq', 'Role', 'Key', 'Row'], shown));
   if (items.length > 12) s.print(`  ... and ${int(items.length - 12)} more (all on the fieldwork sheet)`);
@@ -236,12 +257,14 @@ export async function askSelection(s: Session): Promise<Selection> {
       `${s.wp.engagement?.entity ?? ''} ${s.wp.control?.id ?? ''}: fieldwork sheet`,
       `Selection ${drawn.algorithm}`,
       ...(drawn.seed ? [`Seed ${drawn.seed}`] : []),
+      ...(two ? [`Two-stage plan: test the ${two.firstSampleSize} stage-1 items first; test the ${two.secondSampleSize} stage-2 items only when the first stage is inconclusive (the interview says so, and for which attributes).`] : []),
       `Population SHA-256 ${pop.fingerprint.sha256}, ${N} rows`,
       ...SHEET_CONVENTIONS,
     ],
   });
   const rel = relative(s.dir, sheetAbs).split(sep).join('/') || sheetAbs;
   s.print(`  Fieldwork sheet written: ${rel}`, ...SHEET_CONVENTIONS.flatMap((l) => wrap(l, 92, '    ')));
+  if (two) s.print(...wrap(`Test the ${int(two.firstSampleSize)} stage-1 items first and record them; the stage-2 items (${int(two.secondSampleSize)}) are tested only if the first stage is inconclusive, for the attributes that need it.`, 92, '    '));
   return {
     method: drawn.method,
     algorithm: drawn.algorithm,

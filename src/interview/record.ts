@@ -6,6 +6,7 @@
  */
 import { isAbsolute, relative, resolve } from 'node:path';
 import { CAUSES, INTENT, PATTERNS, type AttributeResult, type ItemResult, type SelectedItem, type Workpaper } from '../workpaper/schema.js';
+import { isComplete, twoStageOf, type StageState, type WorkItem } from '../control-test/index.js';
 import { CAUSE_LABELS, INTENT_LABELS, PATTERN_LABELS, clearSteps, evidenceRefs, fieldworkGaps, sameFinding, fingerprintEvidence, isoDay, testedOnProblem, withFieldwork, type ItemFieldwork, countResults, isRecorded, progress, recordingComplete, voidResult, withResult, worklist } from '../control-test/index.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
@@ -37,8 +38,53 @@ export async function storeResult(s: Session, r: ItemResult, source: 'interview'
     s.wp = clearSteps(s.wp, ['conclude']);
     s.print(...wrap('The results changed: the evaluation and conclusion made from the old results are cleared; conclude again (your earlier answers are offered).', 92, '  '));
   }
+  const stagesBefore = worklist(s.wp).stages;
+  const secondKeys = new Set((stagesBefore?.secondItems ?? []).map((x) => x.key));
+  const hadSecond = (s.wp.results?.items ?? []).some((x) => secondKeys.has(x.key) && (x.void !== undefined || Object.keys(x.attributes).length > 0));
   s.wp = withResult(s.wp, r, { source, ...(sheetPath ? { sheetPath } : {}), at: s.now() });
+  const notice = stageNotice(s.wp, stagesBefore, before, hadSecond);
+  if (notice.length) s.print('', ...notice);
   if (save) await s.save('record');
+}
+
+/**
+ * Two-stage plan: what the practitioner needs to hear when a result changes where the stages
+ * stand: the first stage is complete and decides every attribute (the second-stage items are not
+ * tested), or it leaves some attributes to the second stage (which, and why), or a changed
+ * first-stage result means second-stage results already recorded are no longer needed.
+ */
+export function stageNotice(wp: Workpaper, before: StageState | undefined, previousResult?: ItemResult, hadSecondResults = false): string[] {
+  const two = twoStageOf(wp);
+  const after = worklist(wp).stages;
+  if (!two || !after || !after.firstComplete) return [];
+  const changed = !before?.firstComplete || before.secondNeeded.join() !== after.secondNeeded.join() || previousResult !== undefined;
+  if (!changed) return [];
+  const ks = Object.entries(after.firstDeviations).map(([id, k]) => `${id} ${k}`).join(', ');
+  const lines: string[] = [];
+  if (after.secondNeeded.length === 0) {
+    if (!before?.firstComplete || (before.secondNeeded.length ?? 0) > 0) {
+      lines.push(
+        ...wrap(
+          `The first stage is complete (deviations: ${ks}). It decides every attribute (at most ${two.firstAcceptanceNumber} deviation(s) relies on the control, ${two.firstRejectionNumber} or more does not), ` +
+            `so the second stage is not needed: the ${int(two.secondSampleSize)} stage-2 items are not tested.`,
+          92,
+          '  ',
+        ),
+      );
+    }
+  } else if (!before?.firstComplete || before.secondNeeded.join() !== after.secondNeeded.join()) {
+    lines.push(
+      ...wrap(
+        `The first stage is complete (deviations: ${ks}). ${after.secondNeeded.join(', ')} found more than ${two.firstAcceptanceNumber} and fewer than ${two.firstRejectionNumber} deviation(s), ` +
+          `so the first stage is inconclusive there: test the ${int(two.secondSampleSize)} stage-2 items for ${after.secondNeeded.join(', ')} ` +
+          `(the control is relied on only with at most ${two.secondAcceptanceNumber} deviation(s) in all ${int(two.firstSampleSize + two.secondSampleSize)} items).`,
+          92,
+          '  ',
+        ),
+      );
+  }
+  if (hadSecondResults && after.secondNeeded.length === 0) lines.push(...wrap('Results already recorded for stage-2 items are no longer part of the test; the change log keeps them.', 92, '  '));
+  return lines;
 }
 
 /** Record a void: the item is replaced by the next unused spare (or the sample is one short). */
@@ -59,8 +105,11 @@ const helped = new WeakSet<Session>();
 /** Ask one item's results. A result recorded before is preselected, and its finding offered to keep or edit. */
 export async function askItem(s: Session, item: SelectedItem, replaces: string | undefined, position: string, previous?: ItemResult): Promise<ItemResult> {
   const a = s.asker;
-  const attrs = s.wp.attributes!;
-  s.print('', `Item ${position}: ${item.key} (row ${int(item.row)})${replaces ? `, spare replacing ${replaces}` : ''}`);
+  // The attributes this item is tested for (at the second stage, only those that need it).
+  const work = worklist(s.wp).items.find((x) => x.item.key === item.key);
+  const attrs = s.wp.attributes!.filter((x) => !work || work.attributes.includes(x.id));
+  const stageWords = work?.stage === 2 ? `, stage 2 (for ${attrs.map((x) => x.id).join(', ')})` : work?.stage === 1 ? ', stage 1' : '';
+  s.print('', `Item ${position}: ${item.key} (row ${int(item.row)})${replaces ? `, spare replacing ${replaces}` : ''}${stageWords}`);
   const details = describe(item);
   if (details) s.print(`  ${details}`);
   const out: ItemResult = { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: {} };
@@ -186,14 +235,17 @@ async function askDeviation(s: Session, id: string, before?: Extract<AttributeRe
   return { result: 'deviation', found, cause, ...(causeDetail ? { causeDetail } : {}), intentional, pattern };
 }
 
-function sheetRecord(s: Session, sheet: SheetItem, item: SelectedItem, replaces: string | undefined): ItemResult | 'void' | undefined {
+function sheetRecord(s: Session, sheet: SheetItem, work: WorkItem): ItemResult | 'void' | undefined {
+  const { item, replaces } = work;
   if (sheet.blank || sheet.problems.length > 0) return undefined;
   if (sheet.void) return 'void';
-  const f = sheet.fieldwork;
-  return withFieldwork(
-    { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes: sheet.attributes },
-    { ...f, evidence: fingerprintEvidence(s.dir, f.evidence) },
+  // Only the attributes the item is tested for (at the second stage, those that need it).
+  const attributes = Object.fromEntries(Object.entries(sheet.attributes).filter(([id]) => work.attributes.includes(id)));
+  const r = withFieldwork(
+    { key: item.key, seq: item.seq, ...(replaces ? { replaces } : {}), attributes },
+    { ...sheet.fieldwork, evidence: fingerprintEvidence(s.dir, sheet.fieldwork.evidence) },
   );
+  return isComplete(r, work) ? r : undefined;
 }
 
 export function problemLines(problems: readonly SheetProblem[], max = 40): string[] {
@@ -220,7 +272,9 @@ function sheetOptions(s: Session): SheetOptions {
  */
 async function applySheet(s: Session, sheetsAbs: readonly string[], sheetsRel: readonly string[]): Promise<SheetProblem[]> {
   const sel = s.wp.selection!;
-  const read = await readResultsSheets(sheetsAbs, sel.items, s.wp.attributes!, sheetOptions(s));
+  const two = twoStageOf(s.wp) !== undefined;
+  const partial = new Set(sel.items.filter((x) => x.role === 'spare' || x.stage === 2).map((x) => x.seq));
+  const read = await readResultsSheets(sheetsAbs, sel.items, s.wp.attributes!, { ...sheetOptions(s), ...(two ? { blankAllowed: (seq: number) => partial.has(seq) } : {}) });
   const sheetRel = sheetsRel.join('; ');
   let applied = 0;
   for (;;) {
@@ -228,7 +282,7 @@ async function applySheet(s: Session, sheetsAbs: readonly string[], sheetsRel: r
     if (!wl.next) break;
     const { item, replaces } = wl.next;
     const row = read.items.get(item.seq);
-    const rec = row ? sheetRecord(s, row, item, replaces) : undefined;
+    const rec = row ? sheetRecord(s, row, wl.next) : undefined;
     if (rec === undefined) break;
     const result = rec === 'void' ? voidItem(s, item, replaces, row!.void!.reason) : rec;
     await storeResult(s, result, 'sheet', sheetsRel, false);
@@ -251,7 +305,13 @@ async function applySheet(s: Session, sheetsAbs: readonly string[], sheetsRel: r
   const problems = [...read.problems];
   for (const [seq, it] of read.items) {
     if (!pending.has(seq)) continue;
+    const w = wl.items.find((x) => x.item.seq === seq);
     if (it.problems.length > 0) problems.push(...it.problems);
+    else if (w && !it.blank && !it.void) {
+      for (const id of w.attributes.filter((x) => it.attributes[x] === undefined)) {
+        problems.push({ row: it.row, column: `${id} result`, value: '', why: `blank: item ${seq} is tested for ${id}${w.stage === 2 ? ' at the second stage' : ''}` });
+      }
+    }
     else if (it.blank && wl.items.some((x) => x.item.seq === seq)) {
       problems.push({ row: it.row, column: '(results)', value: '', why: `item ${seq} (${it.key}) has no result yet` });
     }
@@ -340,6 +400,20 @@ export async function runRecordStep(s: Session): Promise<'done' | 'stopped'> {
   const wl = worklist(s.wp);
   const recorded = progress(s.wp).recorded;
   s.print(`  ${int(wl.items.length)} item(s) to test${recorded > 0 ? `; ${recorded} recorded so far, continuing at item ${wl.next ? wl.next.item.key : '-'}` : ''}.`);
+  const two = twoStageOf(s.wp);
+  if (two && wl.stages) {
+    s.print(
+      ...wrap(
+        wl.stages.secondNeeded.length > 0
+          ? `Two-stage plan: the first stage is complete and the second is needed for ${wl.stages.secondNeeded.join(', ')}: its ${int(two.secondSampleSize)} items are on the worklist for those attributes.`
+          : wl.stages.firstComplete
+            ? 'Two-stage plan: the first stage is complete and decided every attribute; the stage-2 items are not tested.'
+            : `Two-stage plan: record the ${int(two.firstSampleSize)} stage-1 items first; the interview then says whether the ${int(two.secondSampleSize)} stage-2 items are needed, and for which attributes.`,
+        92,
+        '  ',
+      ),
+    );
+  }
   const how = await a.select({
     id: 'record.source',
     message: 'How do you want to enter the results?',

@@ -110,6 +110,12 @@ export interface SheetOptions {
   periodStart?: string;
   /** Named in every problem (file, and sheet of a workbook). */
   sheet?: string;
+  /**
+   * Items (by Seq) whose attributes may be left blank: under a two-stage plan the second-stage
+   * items and the spares, which are tested only for the attributes the worklist names (the
+   * worklist's isComplete decides whether what was read is enough).
+   */
+  blankAllowed?: (seq: number) => boolean;
 }
 
 export interface SheetRead {
@@ -268,6 +274,7 @@ function parseRows(records: readonly string[][], items: readonly SelectedItem[],
     for (const [a, k] of kinds) {
       const c = attributeColumns(a.id);
       if (k === undefined) {
+        if (o.blankAllowed?.(seq)) continue;
         if (!item.problems.some((p) => p.column === shownName(c.result))) bad(c.result, '', 'blank: no result entered for this attribute');
         continue;
       }

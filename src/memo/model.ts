@@ -17,7 +17,7 @@ import type {
   Workpaper,
 } from '../workpaper/schema.js';
 import type { MemoTemplate } from './template.js';
-import { countResults, evidenceSupports, ratesSupport, testedResults, testState } from '../control-test/index.js';
+import { countResults, evidenceSupports, ratesSupport, testedResults, testState, worklist } from '../control-test/index.js';
 import { stateHash } from '../workpaper/log.js';
 import { tolerableDeviations } from '../stats/index.js';
 
@@ -187,6 +187,9 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   }
 
   // The planning entry that governs the adopted size.
+  const plan = a?.kind === 'statistical' ? a.plan : undefined;
+  const two = plan?.kind === 'two-stage' ? plan : undefined;
+  const both = plan?.kind === 'both-risks' ? plan : undefined;
   const sizes = a?.sizes ?? [];
   const planned = sizes.find((x) => x.sampleSize === a?.sampleSize) ?? [...sizes].sort((x, y) => y.sampleSize - x.sampleSize)[0];
 
@@ -283,10 +286,16 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
 
   const items: ItemView[] = [];
   const selItems: SelectedItem[] = [...(s?.items ?? [])].sort((x, y) => x.seq - y.seq);
+  // Two-stage plan: each item's stage (a spare takes the stage of the item it replaces), and the
+  // stage-2 items left untested because the first stage decided.
+  const onList = worklist(wp);
+  const stageOf = new Map(onList.items.filter((x) => x.stage).map((x) => [x.item.key, x.stage!]));
+  const notNeeded = new Set(onList.stages?.firstComplete ? onList.stages.secondItems.filter((x) => !stageOf.has(x.key)).map((x) => x.key) : []);
   for (const si of selItems) {
     const r = bySeq.get(si.seq);
     let note = '';
-    let role = L.roles[si.role];
+    const stage = si.stage ?? stageOf.get(si.key);
+    let role = stage ? `${L.roles[si.role]}, ${L.stage.toLowerCase()} ${stage}` : L.roles[si.role];
     let results: string[];
     if (r?.void) {
       results = attrs.map(() => L.resultVoid);
@@ -300,6 +309,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     } else {
       results = attrs.map(() => L.resultMissing);
       if (si.role === 'spare' && wp.results) role = L.spareUnused;
+      if (notNeeded.has(si.key)) note = L.stageNotNeeded;
     }
     const evidence = (r?.evidence ?? []).map((x) => (x.sha256 ? `${x.ref} (${L.sha256} ${x.sha256.slice(0, 12)}…)` : x.ref)).join('; ');
     items.push({
@@ -366,6 +376,20 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     plannedRisk: planned ? pctUp(planned.achievedRisk) : undefined,
     fpcBinomialSize: a?.finitePopulationCorrection ? int(a.finitePopulationCorrection.binomialSampleSize) : undefined,
     fpcCorrectedSize: a?.finitePopulationCorrection ? int(a.finitePopulationCorrection.correctedSampleSize) : undefined,
+    planKind: a?.kind === 'statistical' ? L.planKinds[a.plan?.kind ?? 'single'] : undefined,
+    planFirstSize: two ? int(two.firstSampleSize) : undefined,
+    planFirstAcceptance: two ? int(two.firstAcceptanceNumber) : undefined,
+    planFirstRejection: two ? int(two.firstRejectionNumber) : undefined,
+    planSecondSize: two ? int(two.secondSampleSize) : undefined,
+    planSecondAcceptance: two ? int(two.secondAcceptanceNumber) : undefined,
+    planMaxSize: two ? int(two.firstSampleSize + two.secondSampleSize) : undefined,
+    planSize: both ? int(both.sampleSize) : undefined,
+    planAcceptance: both ? int(both.acceptanceNumber) : undefined,
+    planOverrelianceRisk: plan ? pctUp(plan.overrelianceRisk) : undefined,
+    planUnderrelianceRisk: plan ? pctUp(plan.underrelianceRisk) : undefined,
+    planAllowedUnderrelianceRisk: plan ? pctUp(plan.allowedUnderrelianceRisk) : undefined,
+    planExpectedItems: two ? two.averageSampleNumber.toFixed(1) : undefined,
+    planSecondStageChance: two ? pctUp(two.secondStageProbability) : undefined,
     policyName: a?.policy?.name,
     policyFrequency: a?.policy ? L.frequencies[a.policy.frequency] : undefined,
     policyReliance: a?.policy?.reliance,

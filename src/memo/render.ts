@@ -454,11 +454,73 @@ async function approachSection(c: Ctx): Promise<void> {
         b.ps(T.sizePlanned);
       }
       if (a.finitePopulationCorrection) b.ps(T.fpc);
+      planPart(c);
     } else if (a.policy) b.ps(T.policy);
     b.ps(T.rationale);
     b.ps(T.adopted);
   } else b.note(b.f(T.approachMissing));
 
+}
+
+/** The plan adopted when it is not the ordinary single sample: its parameters, both risks, and for two stages the items expected and the chance of the second stage. */
+function planPart(c: Ctx): void {
+  const { b, L, T, a } = c;
+  const p = a?.kind === 'statistical' ? a.plan : undefined;
+  if (!p) return;
+  b.h2(L.plan);
+  if (p.kind === 'two-stage') {
+    b.kv([
+      [L.plan, { text: L.planKinds['two-stage'], bold: true }],
+      [L.firstSampleSize, int(p.firstSampleSize)],
+      [L.firstAcceptanceNumber, int(p.firstAcceptanceNumber)],
+      [L.firstRejectionNumber, int(p.firstRejectionNumber)],
+      [L.secondSampleSize, int(p.secondSampleSize)],
+      [L.secondAcceptanceNumber, int(p.secondAcceptanceNumber)],
+      [L.plannedRisk, pctUp(p.overrelianceRisk)],
+      [L.underrelianceRisk, pctUp(p.underrelianceRisk)],
+      [L.allowedUnderrelianceRisk, pctUp(p.allowedUnderrelianceRisk)],
+      [L.expectedItems, p.averageSampleNumber.toFixed(1)],
+      [L.secondStageChance, pctUp(p.secondStageProbability)],
+    ]);
+    b.ps(T.planTwoStage);
+  } else {
+    b.kv([
+      [L.plan, { text: L.planKinds['both-risks'], bold: true }],
+      [L.sampleSize, int(p.sampleSize)],
+      [L.acceptanceNumber, int(p.acceptanceNumber)],
+      [L.plannedRisk, pctUp(p.overrelianceRisk)],
+      [L.underrelianceRisk, pctUp(p.underrelianceRisk)],
+      [L.allowedUnderrelianceRisk, pctUp(p.allowedUnderrelianceRisk)],
+    ]);
+    b.ps(T.planBothRisks);
+  }
+}
+
+/** Two stages: per attribute the deviations of each stage, the stage reached and the plan's decision. */
+function stagePart(c: Ctx): void {
+  const { b, m, L, T } = c;
+  const rows = m.attributes.filter((x) => x.evaluation?.stage);
+  if (rows.length === 0) return;
+  b.ps(T.resultsTwoStage);
+  b.table(
+    [
+      { header: L.attribute, w: 0.9 },
+      { header: L.firstStage, w: 1.3, align: 'right' },
+      { header: L.secondStage, w: 1.6, align: 'right' },
+      { header: L.stageReached, w: 0.9, align: 'right' },
+      { header: L.decision, w: 2.2 },
+    ],
+    rows.map((x) => {
+      const st = x.evaluation!.stage!;
+      return [
+        { text: x.attribute.id, bold: true },
+        `${int(st.firstDeviations)} / ${int(st.firstSampleSize)}`,
+        st.secondSampleSize !== undefined ? `${int(st.secondDeviations ?? 0)} / ${int(st.secondSampleSize)}` : L.stageNotNeeded,
+        int(st.reached),
+        { text: L.stageDecisions[st.decision], bold: true },
+      ];
+    }),
+  );
 }
 
 async function selectionSection(c: Ctx): Promise<void> {
@@ -544,7 +606,8 @@ async function resultsSection(c: Ctx): Promise<void> {
     if (evaluated) {
       const model = m.evaluation?.attributes[0]?.model ?? a?.model ?? 'binomial';
       b.ps(model === 'hypergeometric' ? T.limitRuleHypergeometric : model === 'poisson' ? T.limitRulePoisson : T.limitRuleBinomial);
-      if (!m.illustrative) b.ps(T.decisionRule);
+      if (!m.illustrative && !m.attributes.some((x) => x.evaluation?.stage)) b.ps(T.decisionRule);
+      if (!m.illustrative) stagePart(c);
       if (caveat) b.p(b.f(caveat.resultsNote), { bold: true });
       if (m.nonStatistical && m.haphazard) b.p(b.f(O.haphazard.resultsNote), { bold: true });
       // A conclusion of reliance that the recorded evaluation does not bear out is said plainly,
@@ -975,7 +1038,19 @@ async function appendixOcSection(c: Ctx): Promise<void> {
   const N = a.model === 'hypergeometric' ? wp.population?.fingerprint.rowCount : undefined;
   const curves: OcCurve[] = [];
   const rates = Array.from({ length: 17 }, (_, i) => Math.round(((i * Math.max(...a.sizes.map((s) => s.tolerableRate)) * 2) / 16) * 1e6) / 1e6);
-  for (const s of a.sizes) {
+  const adopted = a.plan;
+  if (adopted) {
+    // The plan actually adopted (one acceptance rule for the test, which has one tolerable rate).
+    const plan = adopted.kind === 'two-stage'
+      ? { firstSampleSize: adopted.firstSampleSize, firstAcceptanceNumber: adopted.firstAcceptanceNumber, firstRejectionNumber: adopted.firstRejectionNumber, secondSampleSize: adopted.secondSampleSize, secondAcceptanceNumber: adopted.secondAcceptanceNumber }
+      : { sampleSize: adopted.sampleSize, acceptanceNumber: adopted.acceptanceNumber };
+    const pts = operatingCharacteristic({ plan, rates, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) });
+    const id = adopted.kind === 'two-stage'
+      ? `${a.sizes.map((s) => s.attributeId).join(', ')} (n1 = ${int(adopted.firstSampleSize)}, c1 = ${adopted.firstAcceptanceNumber}, r1 = ${adopted.firstRejectionNumber}; n2 = ${int(adopted.secondSampleSize)}, c2 = ${adopted.secondAcceptanceNumber})`
+      : `${a.sizes.map((s) => s.attributeId).join(', ')} (n = ${int(adopted.sampleSize)}, c = ${adopted.acceptanceNumber})`;
+    curves.push({ id, points: pts, tolerableRate: a.tolerableRate, expectedRate: a.expectedRate });
+  }
+  for (const s of adopted ? [] : a.sizes) {
     // The plan as adopted: the sample size used, and the most deviations with which it supports
     // reliance at this attribute's tolerable rate.
     const n = a.sampleSize;

@@ -20,13 +20,15 @@ import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import { accessSync, constants } from 'node:fs';
 import { readRegularFile } from '../io/read.js';
 import { FileInputError, TolrateInputError } from '../errors.js';
-import { sampleSize as computeSampleSize } from '../stats/index.js';
+import { planForBothRisks, sampleSize as computeSampleSize, twoStagePlan } from '../stats/index.js';
+import { stageOfDraw } from '../selection/index.js';
+import { twoStageOf } from '../control-test/index.js';
 import { conclusionProblems, evaluate, evaluationDifferences, evidenceDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
 import { parseWorkpaper, verifyLog, type Workpaper } from '../workpaper/index.js';
 import { replay } from '../workpaper/log.js';
 import { compareMemoBlocks, readMemoBlocks } from '../memo/read.js';
 import { createHash } from 'node:crypto';
-import type { PopulationSource as WorkpaperSource } from '../workpaper/schema.js';
+import type { PopulationSource as WorkpaperSource, SelectedItem } from '../workpaper/schema.js';
 import { pct, pctExact, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { wrap } from '../util/text.js';
 
@@ -133,6 +135,7 @@ async function checkSelection(wp: Workpaper, source: import('../population/index
   const spares = items.filter((i) => i.role === 'spare').length;
   if (samples !== sel.sampleSize) diffs.push(`the workpaper lists ${samples} sample items but records a sample size of ${sel.sampleSize}`);
   if (spares !== sel.spares) diffs.push(`the workpaper lists ${spares} spares but records ${sel.spares}`);
+  diffs.push(...stageProblems(wp, items));
   if (wp.approach && sel.method !== 'haphazard' && sel.sampleSize !== wp.approach.sampleSize) {
     diffs.push(`the selection drew ${sel.sampleSize} items but the approach adopted a sample size of ${wp.approach.sampleSize}`);
   }
@@ -205,6 +208,66 @@ async function checkSelection(wp: Workpaper, source: import('../population/index
   return { area: 'selection', summary, differences: diffs };
 }
 
+/**
+ * Two-stage plan: each sample item's recorded stage against the rule (the first n1 draws are
+ * stage 1, the next n2 stage 2; spares have none); without such a plan no item has a stage.
+ */
+function stageProblems(wp: Workpaper, items: readonly SelectedItem[]): string[] {
+  const two = twoStageOf(wp);
+  const out: string[] = [];
+  items.forEach((it, i) => {
+    const expected = two && it.role === 'sample' ? stageOfDraw(i, two.firstSampleSize) : undefined;
+    if (it.stage !== expected) {
+      out.push(`item ${it.seq} (${it.key}, ${it.role}): recorded ${it.stage ? `stage ${it.stage}` : 'no stage'}, ${expected ? `the plan gives stage ${expected} (the first ${two!.firstSampleSize} draws are stage 1)` : 'the plan gives none'}`);
+    }
+  });
+  const n = two ? two.firstSampleSize + two.secondSampleSize : undefined;
+  if (n !== undefined && wp.selection && wp.selection.sampleSize !== n) out.push(`the two-stage plan needs ${n} sample items (${two!.firstSampleSize} + ${two!.secondSampleSize}); the selection has ${wp.selection.sampleSize}`);
+  return out;
+}
+
+/** The recorded plan (two stages, or both risks) recomputed from the recorded parameters; each difference named. */
+function planDifferences(wp: Workpaper): { diffs: string[]; words?: string } {
+  const a = wp.approach!;
+  const p = a.plan;
+  if (!p || a.kind !== 'statistical') return { diffs: [] };
+  const diffs: string[] = [];
+  const N = wp.population?.fingerprint.rowCount;
+  const params = { confidence: a.confidence, tolerableRate: a.tolerableRate, expectedRate: a.expectedRate, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) };
+  const own = (wp.attributes ?? []).filter((x) => x.tolerableRate !== undefined && x.tolerableRate !== a.tolerableRate);
+  if (own.length > 0) diffs.push(`the ${p.kind} plan uses the test's one tolerable rate, but ${own.map((x) => x.id).join(', ')} ${own.length === 1 ? 'has its' : 'have their'} own`);
+  const num = (label: string, rec: number, got: number) => {
+    if (!close(rec, got)) diffs.push(`${label}: recorded ${rec}, recomputed ${got}`);
+  };
+  try {
+    if (p.kind === 'two-stage') {
+      const t = twoStagePlan(params);
+      num('first sample size n1', p.firstSampleSize, t.plan.firstSampleSize);
+      num('first acceptance number c1', p.firstAcceptanceNumber, t.plan.firstAcceptanceNumber);
+      num('first rejection number r1', p.firstRejectionNumber, t.plan.firstRejectionNumber);
+      num('second sample size n2', p.secondSampleSize, t.plan.secondSampleSize);
+      num('second acceptance number c2', p.secondAcceptanceNumber, t.plan.secondAcceptanceNumber);
+      num("the plan's risk of overreliance", p.overrelianceRisk, t.overrelianceRisk);
+      num("the plan's risk of underreliance", p.underrelianceRisk, t.underrelianceRisk);
+      num('expected items at the expected rate', p.averageSampleNumber, t.averageSampleNumber);
+      num('chance of the second stage', p.secondStageProbability, t.secondStageProbability);
+      num('allowed risk of underreliance', p.allowedUnderrelianceRisk, t.allowedUnderrelianceRisk);
+      if (a.sampleSize !== p.firstSampleSize + p.secondSampleSize) diffs.push(`adopted sample size ${a.sampleSize}, the two-stage plan has ${p.firstSampleSize} + ${p.secondSampleSize}`);
+      return { diffs, words: `two stages n1 ${t.plan.firstSampleSize}, c1 ${t.plan.firstAcceptanceNumber}, r1 ${t.plan.firstRejectionNumber}, n2 ${t.plan.secondSampleSize}, c2 ${t.plan.secondAcceptanceNumber} (risk of overreliance ${pctUp(t.overrelianceRisk)})` };
+    }
+    const b = planForBothRisks({ ...params, underrelianceRisk: p.allowedUnderrelianceRisk });
+    num('sample size planned for both risks', p.sampleSize, b.sampleSize);
+    num('acceptance number', p.acceptanceNumber, b.acceptanceNumber);
+    num("the plan's risk of overreliance", p.overrelianceRisk, b.overrelianceRisk);
+    num("the plan's risk of underreliance", p.underrelianceRisk, b.underrelianceRisk);
+    if (a.sampleSize !== p.sampleSize) diffs.push(`adopted sample size ${a.sampleSize}, the plan for both risks has ${p.sampleSize}`);
+    return { diffs, words: `planned for both risks: n ${b.sampleSize}, c ${b.acceptanceNumber} (overreliance ${pctUp(b.overrelianceRisk)}, underreliance ${pctUp(b.underrelianceRisk)} within ${pctPlain(p.allowedUnderrelianceRisk)})` };
+  } catch (e) {
+    if (e instanceof TolrateInputError) return { diffs: [...diffs, `the recorded parameters give no ${p.kind} plan: ${e.message}`] };
+    throw e;
+  }
+}
+
 function checkSampleSize(wp: Workpaper): Check {
   const a = wp.approach;
   if (!a) return { area: 'sample size', summary: 'not planned yet', differences: [], skipped: true };
@@ -251,9 +314,13 @@ function checkSampleSize(wp: Workpaper): Check {
       }
     }
   }
-  if (largest > 0 && a.sampleSize < largest) diffs.push(`adopted sample size ${a.sampleSize} is below the ${largest} the parameters require`);
+  const plan = planDifferences(wp);
+  diffs.push(...plan.diffs);
+  // A planned plan has its own size (checked above); the single-stage size is shown beside it.
+  if (!a.plan && largest > 0 && a.sampleSize < largest) diffs.push(`adopted sample size ${a.sampleSize} is below the ${largest} the parameters require`);
   const summary = diffs.length === 0
-    ? `${a.model}, ${pctPlain(a.confidence)} confidence, tolerable ${pctPlain(a.tolerableRate)}, expected ${pctPlain(a.expectedRate)}${N ? `, N = ${N.toLocaleString('en-US')}` : ''}: ${largest} required, ${a.sampleSize} adopted — as recorded`
+    ? `${a.model}, ${pctPlain(a.confidence)} confidence, tolerable ${pctPlain(a.tolerableRate)}, expected ${pctPlain(a.expectedRate)}${N ? `, N = ${N.toLocaleString('en-US')}` : ''}: ` +
+      (plan.words ? `${plan.words}, ${a.sampleSize} selected (one sample would need ${largest}) — as recorded` : `${largest} required, ${a.sampleSize} adopted — as recorded`)
     : `${diffs.length} difference(s)`;
   return { area: 'sample size', summary, differences: diffs };
 }

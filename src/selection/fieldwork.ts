@@ -38,6 +38,15 @@ export interface FieldworkItem {
   row: number;
   key: string;
   values: Record<string, string>;
+  /** Two-stage plan: the stage of a sample item, shown in the Role column. */
+  stage?: 1 | 2;
+}
+
+/** The Role cell: the role, and under a two-stage plan the stage (stage-2 items are tested only when needed). */
+export function roleText(it: Pick<FieldworkItem, 'role' | 'stage'>): string {
+  if (it.stage === 1) return 'sample, stage 1';
+  if (it.stage === 2) return 'sample, stage 2 (test only if the first stage is inconclusive)';
+  return it.role;
 }
 
 export interface FieldworkSheet {
@@ -85,7 +94,7 @@ export function fieldworkTable(sheet: FieldworkSheet): { header: string[]; rows:
   const header = [...ours, ...shown, ...results, NOTE_COLUMN];
   const rows = sheet.items.map((it) => [
     String(it.seq),
-    it.role,
+    roleText(it),
     String(it.row),
     it.key,
     ...sheet.columns.map((c) => it.values[c] ?? ''),

@@ -17,6 +17,7 @@ export {
   fieldworkItems,
   fieldworkCsv,
   fieldworkTable,
+  roleText,
   neutraliseCell,
   restoreCell,
   writeAtomic,
@@ -30,3 +31,4 @@ export {
 } from './fieldwork.js';
 export type { FieldworkItem, FieldworkSheet } from './fieldwork.js';
 export type { Selection, RandomInput, SystematicInput, RecordedSelection } from './types.js';
+export { stageOfDraw } from './stages.js';

@@ -39,6 +39,7 @@ export const CAUSES = [
 export const INTENT = ['no', 'suspected', 'yes'] as const;
 export const PATTERNS = ['isolated', 'systemic', 'unclear'] as const;
 export const SEVERITIES = ['none', 'deficiency', 'significant-deficiency', 'material-weakness'] as const;
+export const STAGE_DECISIONS = ['accepted-at-first', 'rejected-at-first', 'accepted-at-second', 'rejected-at-second'] as const;
 export const FOLLOW_UP_KINDS = [
   'extend-sample',
   'test-compensating-control',
@@ -171,6 +172,42 @@ export const SizeForAttribute = z.object({
   underrelianceRisk: z.number().min(0).max(1).optional(),
 });
 
+/**
+ * A plan other than the ordinary single-stage sample (absent: one sample of approach.sampleSize,
+ * relying on the control when the achieved risk of overreliance is within 1 − confidence).
+ * 'two-stage': test n1 items; accept with at most c1 deviations, reject with r1 or more, and
+ * otherwise test n2 more and accept with at most c2 in all. 'both-risks': one sample of n items
+ * whose acceptance number c also keeps the risk of underreliance within the allowed one.
+ * The risks are exact for the recorded parameters (confidence, tolerable and expected rates, model).
+ */
+export const SamplingPlan = z.discriminatedUnion('kind', [
+  z.object({
+    kind: z.literal('two-stage'),
+    firstSampleSize: positive,
+    firstAcceptanceNumber: count,
+    firstRejectionNumber: count,
+    secondSampleSize: positive,
+    secondAcceptanceNumber: count,
+    overrelianceRisk: z.number().min(0).max(1),
+    underrelianceRisk: z.number().min(0).max(1),
+    /** Items expected to be tested when the control works at the expected rate. */
+    averageSampleNumber: z.number().nonnegative(),
+    /** The chance, at the expected rate, that the second stage is needed. */
+    secondStageProbability: z.number().min(0).max(1),
+    /** The most risk of underreliance the plan was allowed (that of the single-stage sample). */
+    allowedUnderrelianceRisk: z.number().min(0).max(1),
+  }),
+  z.object({
+    kind: z.literal('both-risks'),
+    sampleSize: positive,
+    acceptanceNumber: count,
+    overrelianceRisk: z.number().min(0).max(1),
+    underrelianceRisk: z.number().min(0).max(1),
+    /** The most risk of underreliance the practitioner accepts. */
+    allowedUnderrelianceRisk: z.number().gt(0).lt(1),
+  }),
+]);
+
 export const Approach = z.object({
   kind: z.enum(['statistical', 'non-statistical']),
   /** Planned confidence. For a non-statistical test, the confidence the firm policy assumes. */
@@ -193,7 +230,9 @@ export const Approach = z.object({
       assumptions: text,
     })
     .optional(),
-  /** The size adopted for selection. */
+  /** A two-stage plan or one planned for both risks; absent for the ordinary single-stage sample. */
+  plan: SamplingPlan.optional(),
+  /** The size adopted for selection (for a two-stage plan, n1 + n2: the most items that may be tested). */
   sampleSize: positive,
   /** Why this size, in words (shown in the memo). */
   rationale: text,
@@ -211,6 +250,8 @@ export const SelectedItem = z.object({
   row: positive,
   key: z.string(),
   values: z.record(z.string(), z.string()).default({}),
+  /** Two-stage plan: the stage of a sample item (the first n1 draws are stage 1, the next n2 stage 2). */
+  stage: z.union([z.literal(1), z.literal(2)]).optional(),
 });
 
 export const Selection = z.object({
@@ -300,6 +341,17 @@ export const AttributeEvaluation = z.object({
    * of repeating the extension after each failure. Absent when no extension is offered.
    */
   extensionRisk: z.object({ procedure: z.number().min(0).max(1), repeated: z.number().min(0).max(1) }).optional(),
+  /** Two-stage plan: the stage reached, the items and deviations of each stage, and the plan's decision. */
+  stage: z
+    .object({
+      reached: z.union([z.literal(1), z.literal(2)]),
+      firstSampleSize: count,
+      firstDeviations: count,
+      secondSampleSize: count.optional(),
+      secondDeviations: count.optional(),
+      decision: z.enum(STAGE_DECISIONS),
+    })
+    .optional(),
 });
 
 export const Evaluation = z.object({
@@ -516,6 +568,8 @@ export type Fingerprint = z.infer<typeof Fingerprint>;
 export type Population = z.infer<typeof Population>;
 export type Approach = z.infer<typeof Approach>;
 export type SizeForAttribute = z.infer<typeof SizeForAttribute>;
+export type SamplingPlan = z.infer<typeof SamplingPlan>;
+export type StageDecision = (typeof STAGE_DECISIONS)[number];
 export type SelectedItem = z.infer<typeof SelectedItem>;
 export type Selection = z.infer<typeof Selection>;
 export type AttributeResult = z.infer<typeof AttributeResult>;
