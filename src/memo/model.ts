@@ -306,6 +306,9 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
         return x === undefined ? L.resultMissing : x.result === 'conforms' ? L.resultConforms : L.resultDeviation;
       });
       if (r.replaces) note = `${L.replacing} ${r.replaces}`;
+      // At the second stage an item is tested only for the attributes that need it.
+      const w = onList.items.find((x) => x.item.key === si.key);
+      if (w?.stage === 2 && w.attributes.length < attrs.length) note = [note, `${L.secondStage}: ${w.attributes.join(', ')}`].filter(Boolean).join('; ');
     } else {
       results = attrs.map(() => L.resultMissing);
       if (si.role === 'spare' && wp.results) role = L.spareUnused;

@@ -1039,6 +1039,7 @@ async function appendixOcSection(c: Ctx): Promise<void> {
   const curves: OcCurve[] = [];
   const rates = Array.from({ length: 17 }, (_, i) => Math.round(((i * Math.max(...a.sizes.map((s) => s.tolerableRate)) * 2) / 16) * 1e6) / 1e6);
   const adopted = a.plan;
+  if (adopted?.kind === 'two-stage') b.ps(T.ocTwoStage);
   if (adopted) {
     // The plan actually adopted (one acceptance rule for the test, which has one tolerable rate).
     const plan = adopted.kind === 'two-stage'
