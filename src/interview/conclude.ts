@@ -33,13 +33,21 @@ export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
     pctLimit(a.upperLimit, a.tolerableRate),
     pctPlain(a.tolerableRate),
     `${pctUp(a.achievedRisk)} / ${pct(1 - a.confidence)}`,
-    a.illustrative ? 'illustrative' : a.supportedByRates ? 'supported' : 'not supported',
+    a.illustrative ? 'illustrative' : a.stage ? `${a.supportedByRates ? 'supported' : 'not supported'} (stage ${a.stage.reached})` : a.supportedByRates ? 'supported' : 'not supported',
   ]);
   const lines = table(['Attribute', 'n', 'k', 'Sample rate', 'Upper limit', 'Tolerable', 'Risk / allowed', 'By the rates'], rows);
   const first = ev.attributes[0];
   if (first) {
     const model = first.model === 'hypergeometric' ? `hypergeometric, N = ${int(wp.population?.fingerprint.rowCount ?? 0)}` : first.model;
-    lines.push(...wrap(`Upper limits at ${pct(first.confidence, 0)} confidence (${model}), rounded up. Risk = the risk of overreliance at the tolerable rate.`, 92, '  '));
+    lines.push(
+      ...wrap(
+        first.stage
+          ? `Two-stage plan: the decision is the plan's, stage by stage; Risk = the plan's risk of overreliance at the tolerable rate, exact over both stages. Sample rates and upper limits (at ${pct(first.confidence, 0)} confidence, ${model}, rounded up) are of the items tested.`
+          : `Upper limits at ${pct(first.confidence, 0)} confidence (${model}), rounded up. Risk = the risk of overreliance at the tolerable rate.`,
+        92,
+        '  ',
+      ),
+    );
   }
   if (ev.attributes.some((a) => a.illustrative)) {
     lines.push(
