@@ -106,6 +106,15 @@ describe('two-stage plan', () => {
     const r = await reperform(dir);
     expect(r.text).toMatch(/two stages n1 62, c1 0, r1 2, n2 18, c2 1/);
     expect(r.code, r.text).toBe(0);
+
+    // A second-stage result added outside the tool, although the first stage decided.
+    const t = JSON.parse(readFileSync(file, 'utf8'));
+    const item = t.selection.items.find((x: any) => x.seq === 63);
+    t.results.items.push({ key: item.key, seq: 63, attributes: { A1: { result: 'conforms' } } });
+    writeFileSync(file, JSON.stringify(t, null, 2));
+    const tampered = await reperform(dir);
+    expect(tampered.code).toBe(1);
+    expect(tampered.text).toMatch(/\(item 63, second stage\): a result is recorded, but the first stage decided every attribute/);
   });
 
   it('needs the second stage for A1 only after one A1 deviation, and decides by k1 + k2 ≤ c2', async () => {
@@ -145,6 +154,32 @@ describe('two-stage plan', () => {
     expect(rows.some((r) => r.includes('A1, A2 (n1 = 62, c1 = 0, r1 = 2; n2 = 18, c2 = 1)'))).toBe(true);
     // The chance of relying at 6% is the plan's risk of overreliance (reference table: 4.96%, shown to one decimal).
     expect(rows).toContain('6.0% | 5.0%');
+  });
+
+  it('replaces a void by the next spare at either stage; the spare takes the stage and the attributes of the item it replaces', async () => {
+    const { dir, file } = await planned(TWO);
+    const answers: ScriptAnswers = {
+      ...results([3]),
+      'record.item.2.A1.result': 'void',
+      'record.item.2.void': 'Voucher cancelled before release',
+      'record.item.63.A1.result': 'void',
+      'record.item.63.void': 'Voucher cancelled before release',
+    };
+    const a = new ScriptedAsker(answers);
+    expect(await record(['t1.tolrate.json'], captureContext(dir), a, { now: fixedClock() })).toBe(0);
+    // Spares are items 81-84: 81 replaces item 2 (stage 1, both attributes), 82 replaces item 63 (stage 2, A1 only).
+    expect(a.ids).toContain('record.item.81.A2.result');
+    expect(a.ids).toContain('record.item.82.A1.result');
+    expect(a.ids).not.toContain('record.item.82.A2.result');
+    const wp = loadWorkpaper(file);
+    const wl = worklist(wp);
+    expect(wl.items.find((x) => x.item.seq === 81)).toMatchObject({ stage: 1, replaces: wp.selection!.items[1]!.key, attributes: ['A1', 'A2'] });
+    expect(wl.items.find((x) => x.item.seq === 82)).toMatchObject({ stage: 2, attributes: ['A1'] });
+    const a1 = evaluate(wp).attributes[0]!;
+    expect(a1.stage).toEqual({ reached: 2, firstSampleSize: 62, firstDeviations: 1, secondSampleSize: 18, secondDeviations: 0, decision: 'accepted-at-second' });
+    expect(await conclude(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(concludeAnswers()), { now: fixedClock() })).toBe(0);
+    const r = await reperform(dir);
+    expect(r.code, r.text).toBe(0);
   });
 
   it('rejects after the second stage offers no extension, and re-performance names a tampered stage-2 result and a tampered c1', async () => {
