@@ -247,6 +247,10 @@ function twoStageRow(t: TwoStagePlanResult): string[] {
   ];
 }
 
+function bothRow(b: BothRisksPlanResult, label: string): string[] {
+  return [label, int(b.sampleSize), String(b.acceptanceNumber), pctUp(b.overrelianceRisk), pctUp(b.underrelianceRisk), int(b.sampleSize), '—'];
+}
+
 const PLAN_HEADER = ['Plan', 'Items', 'Rely with at most', 'Overreliance', 'Underreliance', 'Expected items', 'Second stage'];
 
 function twoStageWords(t: TwoStagePlanResult, p: PlanParams): string {
@@ -295,8 +299,20 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
       whyNotTwo = `Two stages are not offered: ${e.message}`;
     }
   }
+  // For both risks, an example at the risk of underreliance offered as the default (it depends on the one given).
+  const exampleAlpha = old?.plan?.kind === 'both-risks' ? old.plan.allowedUnderrelianceRisk : 0.1;
+  let example: string[] | undefined;
+  if (p.oneRate) {
+    try {
+      const b = planForBothRisks({ confidence: p.confidence, tolerableRate: p.tolerableRate, expectedRate: p.expectedRate, underrelianceRisk: exampleAlpha, model: p.model, populationSize: p.populationSize });
+      if (b.sampleSize <= p.populationSize) example = bothRow(b, `Both risks, ≤ ${pctPlain(exampleAlpha)}`);
+    } catch (e) {
+      if (!(e instanceof TolrateInputError)) throw e;
+    }
+  }
   s.heading('Sampling plan');
-  s.print(...table(PLAN_HEADER, [singleRow(p.single, p), ...(two ? [twoStageRow(two)] : [])]));
+  s.print(...table(PLAN_HEADER, [singleRow(p.single, p), ...(example ? [example] : []), ...(two ? [twoStageRow(two)] : [])]));
+  if (p.oneRate) s.print(...wrap(`Both risks: ${example ? `the row shows the plan for at most ${pctPlain(exampleAlpha)} risk of underreliance; ` : ''}you give the most risk of underreliance you accept, and the sample is planned for it.`, 92, '  '));
   s.print(
     ...wrap(
       'Overreliance: the chance of relying on the control when its deviation rate is at the tolerable rate. Underreliance: the chance of not relying on it when ' +
@@ -375,7 +391,7 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
       s.print('', ...wrap(`No plan within the population of ${int(p.populationSize)} items keeps the risk of underreliance within ${pctPlain(alpha)}: it would need ${int(b.sampleSize)}. Accept a higher risk of underreliance or choose another plan.`, 92, '  '));
       continue;
     }
-    s.print('', ...table(PLAN_HEADER, [singleRow(p.single, p), ['Both risks', int(b.sampleSize), String(b.acceptanceNumber), pctUp(b.overrelianceRisk), pctUp(b.underrelianceRisk), int(b.sampleSize), '—']]));
+    s.print('', ...table(PLAN_HEADER, [singleRow(p.single, p), bothRow(b, 'Both risks')]));
     s.print('', ...wrap(bothRisksWords(b, p), 92, '  '));
     if (b.sizeRemark) s.print(...wrap(b.sizeRemark, 92, '  '));
     const accept = await a.select({
