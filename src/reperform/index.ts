@@ -361,7 +361,7 @@ function checkEvaluation(wp: Workpaper): Check {
   }
   const diffs = evaluationDifferences(wp.evaluation, fresh, { pct, exact: (x: number) => pctExact(x) });
   const summary = diffs.length === 0
-    ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctLimit(f.upperLimit, f.tolerableRate)}`).join('; ') + ' — as recorded'
+    ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctLimit(f.upperLimit, f.tolerableRate)}${f.stage ? `, stage ${f.stage.reached} reached, ${f.stage.decision}` : ''}`).join('; ') + ' — as recorded'
     : `${diffs.length} difference(s)`;
   return { area: 'evaluation', summary, differences: diffs };
 }
