@@ -213,7 +213,7 @@ async function statistical(s: Session, old: Approach | undefined): Promise<Appro
     sizes: perAttr,
     ...(fpc ? { finitePopulationCorrection: { binomialSampleSize: fpc.binomialSampleSize, correctedSampleSize: fpc.correctedSampleSize } } : {}),
   };
-  const planned = await askPlan(s, { ...plan, single: top.result, oneRate: attrs.every((x) => x.tolerableRate === undefined || x.tolerableRate === tolerableRate) }, wasStat);
+  const planned = await askPlan(s, { ...plan, single: top.result, lowest, oneRate: attrs.every((x) => x.tolerableRate === undefined || x.tolerableRate === tolerableRate) }, wasStat);
   if (planned === 'change') return undefined;
   if (planned !== 'single') return { ...base, plan: planned.plan, sampleSize: planned.sampleSize, rationale: planned.rationale };
   const chosen = await askSizeChoice(s, Math.min(n, N), N, 'computation', wasStat);
@@ -229,8 +229,9 @@ type PlanParams = { confidence: number; tolerableRate: number; expectedRate: num
 type Planned = 'single' | 'change' | { plan: NonNullable<Approach['plan']>; sampleSize: number; rationale: string };
 
 /** The figures of the ordinary single-stage sample, beside which the other plans are shown. */
-function singleRow(single: SampleSizeResult, p: PlanParams): string[] {
-  const atC = overrelianceRisk({ sampleSize: single.sampleSize, deviations: single.acceptanceNumber, tolerableRate: p.tolerableRate, model: p.model, ...(p.model === 'hypergeometric' ? { populationSize: p.populationSize } : {}) });
+function singleRow(single: SampleSizeResult, p: PlanParams & { lowest: number }): string[] {
+  // The one-sample size is that of the lowest tolerable rate (the largest size).
+  const atC = overrelianceRisk({ sampleSize: single.sampleSize, deviations: single.acceptanceNumber, tolerableRate: p.lowest, model: p.model, ...(p.model === 'hypergeometric' ? { populationSize: p.populationSize } : {}) });
   return ['One sample', int(single.sampleSize), `${single.acceptanceNumber}`, pctUp(atC), pctUp(single.underrelianceRisk), int(single.sampleSize), '—'];
 }
 
@@ -282,11 +283,14 @@ function bothRisksWords(b: BothRisksPlanResult, p: PlanParams): string {
  * attribute uses the test's one tolerable rate). Each with the figures needed to choose, computed
  * exactly by the engine (twoStagePlan, planForBothRisks).
  */
-async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; oneRate: boolean }, old: Approach | undefined): Promise<Planned> {
+async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; lowest: number; oneRate: boolean }, old: Approach | undefined): Promise<Planned> {
+  // Both risks are planned at the lowest tolerable rate: the same n and c then keep the risk of
+  // overreliance within β at every attribute's own (higher) rate, and the risk of underreliance is the same.
+  const pb: PlanParams = { ...p, tolerableRate: p.lowest };
   const a = s.asker;
   let two: TwoStagePlanResult | undefined;
   let whyNotTwo: string | undefined;
-  if (!p.oneRate) whyNotTwo = 'Two stages and planning for both risks are not offered: they use one acceptance rule for the test, and some attributes have their own tolerable rates.';
+  if (!p.oneRate) whyNotTwo = 'Two stages are not offered: a two-stage plan is searched for one tolerable rate, and some attributes have their own.';
   else {
     try {
       two = twoStagePlan({ confidence: p.confidence, tolerableRate: p.tolerableRate, expectedRate: p.expectedRate, model: p.model, populationSize: p.populationSize });
@@ -302,9 +306,9 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
   // For both risks, an example at the risk of underreliance offered as the default (it depends on the one given).
   const exampleAlpha = old?.plan?.kind === 'both-risks' ? old.plan.allowedUnderrelianceRisk : 0.1;
   let example: string[] | undefined;
-  if (p.oneRate) {
+  {
     try {
-      const b = planForBothRisks({ confidence: p.confidence, tolerableRate: p.tolerableRate, expectedRate: p.expectedRate, underrelianceRisk: exampleAlpha, model: p.model, populationSize: p.populationSize });
+      const b = planForBothRisks({ confidence: p.confidence, tolerableRate: pb.tolerableRate, expectedRate: p.expectedRate, underrelianceRisk: exampleAlpha, model: p.model, populationSize: p.populationSize });
       if (b.sampleSize <= p.populationSize) example = bothRow(b, `Both risks, ≤ ${pctPlain(exampleAlpha)}`);
     } catch (e) {
       if (!(e instanceof TolrateInputError)) throw e;
@@ -312,7 +316,14 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
   }
   s.heading('Sampling plan');
   s.print(...table(PLAN_HEADER, [singleRow(p.single, p), ...(example ? [example] : []), ...(two ? [twoStageRow(two)] : [])]));
-  if (p.oneRate) s.print(...wrap(`Both risks: ${example ? `the row shows the plan for at most ${pctPlain(exampleAlpha)} risk of underreliance; ` : ''}you give the most risk of underreliance you accept, and the sample is planned for it.`, 92, '  '));
+  s.print(
+    ...wrap(
+      `Both risks: ${example ? `the row shows the plan for at most ${pctPlain(exampleAlpha)} risk of underreliance; ` : ''}you give the most risk of underreliance you accept, and the sample is planned for it` +
+        (p.oneRate ? '.' : ` at the lowest tolerable rate, ${pctPlain(p.lowest)}, so that it serves every attribute.`),
+      92,
+      '  ',
+    ),
+  );
   s.print(
     ...wrap(
       'Overreliance: the chance of relying on the control when its deviation rate is at the tolerable rate. Underreliance: the chance of not relying on it when ' +
@@ -330,10 +341,10 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
       message: 'Sampling plan',
       choices: [
         { value: 'single', name: `One sample (the usual): ${int(p.single.sampleSize)} items` },
-        ...(p.oneRate ? [{ value: 'both-risks' as const, name: 'Planned for both risks (also limit the risk of underreliance)' }] : []),
+        { value: 'both-risks' as const, name: 'Planned for both risks (also limit the risk of underreliance)' },
         ...(two ? [{ value: 'two-stage' as const, name: `Two stages (test ${int(two.plan.firstSampleSize)}; test ${int(two.plan.secondSampleSize)} more only when the first stage is inconclusive)` }] : []),
       ],
-      default: old?.plan?.kind === 'two-stage' && two ? 'two-stage' : old?.plan?.kind === 'both-risks' && p.oneRate ? 'both-risks' : 'single',
+      default: old?.plan?.kind === 'two-stage' && two ? 'two-stage' : old?.plan?.kind === 'both-risks' ? 'both-risks' : 'single',
     });
     if (kind === 'single') return 'single';
     if (kind === 'two-stage') {
@@ -381,7 +392,7 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
     });
     let b: BothRisksPlanResult;
     try {
-      b = planForBothRisks({ confidence: p.confidence, tolerableRate: p.tolerableRate, expectedRate: p.expectedRate, underrelianceRisk: alpha, model: p.model, populationSize: p.populationSize });
+      b = planForBothRisks({ confidence: p.confidence, tolerableRate: pb.tolerableRate, expectedRate: p.expectedRate, underrelianceRisk: alpha, model: p.model, populationSize: p.populationSize });
     } catch (e) {
       if (!(e instanceof TolrateInputError)) throw e;
       s.print('', ...wrap(e.message, 92, '  '));
@@ -392,7 +403,7 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
       continue;
     }
     s.print('', ...table(PLAN_HEADER, [singleRow(p.single, p), bothRow(b, 'Both risks')]));
-    s.print('', ...wrap(bothRisksWords(b, p), 92, '  '));
+    s.print('', ...wrap(bothRisksWords(b, pb), 92, '  '));
     if (b.sizeRemark) s.print(...wrap(b.sizeRemark, 92, '  '));
     const accept = await a.select({
       id: 'plan.approach.plan.accept',
@@ -409,7 +420,8 @@ async function askPlan(s: Session, p: PlanParams & { single: SampleSizeResult; o
     return {
       plan: { kind: 'both-risks', sampleSize: b.sampleSize, acceptanceNumber: b.acceptanceNumber, overrelianceRisk: b.overrelianceRisk, underrelianceRisk: b.underrelianceRisk, allowedUnderrelianceRisk: alpha },
       sampleSize: b.sampleSize,
-      rationale: `Statistical sample planned for both risks: ${bothRisksWords(b, p)} The one-sample plan would be ${int(p.single.sampleSize)} items with a risk of underreliance of ${pctUp(p.single.underrelianceRisk)}.`,
+      rationale: `Statistical sample planned for both risks: ${bothRisksWords(b, pb)} The one-sample plan would be ${int(p.single.sampleSize)} items with a risk of underreliance of ${pctUp(p.single.underrelianceRisk)}.` +
+        (p.oneRate ? '' : ` Planned at the lowest of the attributes' tolerable rates (${pctPlain(p.lowest)}), so the same acceptance number serves every attribute.`),
     };
   }
 }

@@ -1049,7 +1049,8 @@ async function appendixOcSection(c: Ctx): Promise<void> {
     const id = adopted.kind === 'two-stage'
       ? `${a.sizes.map((s) => s.attributeId).join(', ')} (n1 = ${int(adopted.firstSampleSize)}, c1 = ${adopted.firstAcceptanceNumber}, r1 = ${adopted.firstRejectionNumber}; n2 = ${int(adopted.secondSampleSize)}, c2 = ${adopted.secondAcceptanceNumber})`
       : `${a.sizes.map((s) => s.attributeId).join(', ')} (n = ${int(adopted.sampleSize)}, c = ${adopted.acceptanceNumber})`;
-    curves.push({ id, points: pts, tolerableRate: a.tolerableRate, expectedRate: a.expectedRate });
+    // Both risks are planned at the lowest tolerable rate (two stages only with the test's one).
+    curves.push({ id, points: pts, tolerableRate: Math.min(...a.sizes.map((s) => s.tolerableRate)), expectedRate: a.expectedRate });
   }
   for (const s of adopted ? [] : a.sizes) {
     // The plan as adopted: the sample size used, and the most deviations with which it supports

@@ -235,7 +235,10 @@ function planDifferences(wp: Workpaper): { diffs: string[]; words?: string } {
   const N = wp.population?.fingerprint.rowCount;
   const params = { confidence: a.confidence, tolerableRate: a.tolerableRate, expectedRate: a.expectedRate, model: a.model, ...(N !== undefined ? { populationSize: N } : {}) };
   const own = (wp.attributes ?? []).filter((x) => x.tolerableRate !== undefined && x.tolerableRate !== a.tolerableRate);
-  if (own.length > 0) diffs.push(`the ${p.kind} plan uses the test's one tolerable rate, but ${own.map((x) => x.id).join(', ')} ${own.length === 1 ? 'has its' : 'have their'} own`);
+  if (p.kind === 'two-stage' && own.length > 0) diffs.push(`the two-stage plan uses the test's one tolerable rate, but ${own.map((x) => x.id).join(', ')} ${own.length === 1 ? 'has its' : 'have their'} own`);
+  // Both risks: planned at the lowest tolerable rate, which serves every attribute.
+  const rates = (wp.attributes ?? []).map((x) => x.tolerableRate ?? a.tolerableRate);
+  const lowest = rates.length > 0 ? Math.min(...rates) : a.tolerableRate;
   const num = (label: string, rec: number, got: number) => {
     if (!close(rec, got)) diffs.push(`${label}: recorded ${rec}, recomputed ${got}`);
   };
@@ -255,7 +258,7 @@ function planDifferences(wp: Workpaper): { diffs: string[]; words?: string } {
       if (a.sampleSize !== p.firstSampleSize + p.secondSampleSize) diffs.push(`adopted sample size ${a.sampleSize}, the two-stage plan has ${p.firstSampleSize} + ${p.secondSampleSize}`);
       return { diffs, words: `two stages n1 ${t.plan.firstSampleSize}, c1 ${t.plan.firstAcceptanceNumber}, r1 ${t.plan.firstRejectionNumber}, n2 ${t.plan.secondSampleSize}, c2 ${t.plan.secondAcceptanceNumber} (risk of overreliance ${pctUp(t.overrelianceRisk)})` };
     }
-    const b = planForBothRisks({ ...params, underrelianceRisk: p.allowedUnderrelianceRisk });
+    const b = planForBothRisks({ ...params, tolerableRate: lowest, underrelianceRisk: p.allowedUnderrelianceRisk });
     num('sample size planned for both risks', p.sampleSize, b.sampleSize);
     num('acceptance number', p.acceptanceNumber, b.acceptanceNumber);
     num("the plan's risk of overreliance", p.overrelianceRisk, b.overrelianceRisk);

@@ -218,7 +218,7 @@ describe('two-stage plan', () => {
 
   it('is not offered when an attribute has its own tolerable rate, or when no two-stage plan exists, and says why', async () => {
     const own = await planText({ 'plan.approach.model': 'binomial' });
-    expect(own.text).toMatch(/Two stages and planning for both risks are not offered: they use one acceptance rule for the test, and some attributes have their own tolerable rates/);
+    expect(own.text).toMatch(/Two stages are not offered: a two-stage plan is searched for one tolerable rate, and some attributes have their own/);
     expect(own.asker.ids).toContain('plan.approach.plan');
     const zero = await planText({ 'plan.attributes.A2.tolerableRate': '', 'plan.approach.model': 'binomial', 'plan.approach.expectedRate': '0' });
     expect(zero.text).toMatch(/Two stages are not offered: With an expected rate of 0% a second stage is never expected to be needed/);
@@ -259,6 +259,32 @@ describe('plan for both risks', () => {
     expect(a1.achievedRisk).toBeCloseTo(REF_BOTH.overrelianceRiskAchieved, 12);
     expect(await conclude(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(concludeAnswers()), { now: fixedClock() })).toBe(0);
     expect(loadWorkpaper(file).conclusion!.attributes[0]!.reasoning).toMatch(/Sample planned for both risks \(rely on the control with at most 2 deviation\(s\) in 103 items\)/);
+    expect((await reperform(dir)).code).toBe(0);
+  });
+
+  it('with an attribute of its own tolerable rate, is planned at the lowest rate, which serves every attribute', async () => {
+    // The fixture's A1 uses the test's 6%, A2 its own 8%: planned at 6% as above (reference n 103, c 2).
+    const { dir, file } = await plannedTest({ 'plan.approach.model': 'binomial', 'plan.approach.plan': 'both-risks', 'plan.approach.underrelianceRisk': '10', 'plan.approach.plan.accept': 'accept' });
+    const wp = loadWorkpaper(file);
+    expect(wp.approach!.plan).toMatchObject({ kind: 'both-risks', sampleSize: REF_BOTH.sampleSize, acceptanceNumber: REF_BOTH.acceptanceNumber });
+    expect(wp.approach!.rationale).toMatch(/Planned at the lowest of the attributes' tolerable rates \(6%\)/);
+    // Three A2 deviations: within A2's own 8% by the exact risk rule, but more than c = 2, so the plan does not rely.
+    const answers: ScriptAnswers = { ...results([]) };
+    for (const seq of [3, 9, 15]) {
+      Object.assign(answers, {
+        [`record.item.${seq}.A2.result`]: 'deviation',
+        [`record.item.${seq}.A2.found`]: 'No invoice',
+        [`record.item.${seq}.A2.cause`]: 'evidence-missing',
+        [`record.item.${seq}.A2.intent`]: 'no',
+        [`record.item.${seq}.A2.pattern`]: 'isolated',
+      });
+    }
+    expect(await record(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(answers), { now: fixedClock() })).toBe(0);
+    const a2 = evaluate(loadWorkpaper(file)).attributes[1]!;
+    expect(a2.tolerableRate).toBe(0.08);
+    expect(a2.achievedRisk).toBeLessThanOrEqual(0.05);
+    expect(a2.supportedByRates).toBe(false);
+    expect(await conclude(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(concludeAnswers()), { now: fixedClock() })).toBe(0);
     expect((await reperform(dir)).code).toBe(0);
   });
 
