@@ -163,6 +163,15 @@ export class AmountTotal {
     return true;
   }
 
+  /** Add another total to this one (its amounts count as this one's), exactly. */
+  merge(o: AmountTotal): void {
+    this.count += o.count;
+    this.negatives += o.negatives;
+    this.rescale(o.scale);
+    this.flush();
+    this.big += (o.big + BigInt(o.small)) * 10n ** BigInt(this.scale - o.scale);
+  }
+
   /** The exact total as a decimal string with as many decimals as the most precise amount. */
   toString(): string {
     const total = this.big + BigInt(this.small);
