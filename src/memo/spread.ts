@@ -101,7 +101,10 @@ export function spreadView(wp: Workpaper): SpreadView | undefined {
     const a = m.amountTotal !== undefined ? parseAmount(m.amountTotal) : undefined;
     if (a) c.total.add(a);
   }
-  at(pop, UND).count += tally.undated;
+  const und = at(pop, UND);
+  und.count += tally.undated;
+  const ua = tally.undatedAmountTotal !== undefined ? parseAmount(tally.undatedAmountTotal) : undefined;
+  if (ua) und.total.add(ua);
   // The sample: the items drawn as the sample (spares are not part of it unless used, which the
   // results record; the spread is of the selection as drawn).
   const sample = s.items.filter((i) => i.role === 'sample');

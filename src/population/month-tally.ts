@@ -48,6 +48,11 @@ export class MonthTallier {
   result(dateColumn: string, order: DateOrder | undefined): MonthTally {
     const months = new Map<number, TallyBucket>();
     let undated = 0;
+    const undatedAmounts = this.withAmounts ? new AmountTotal() : undefined;
+    const none = (b: TallyBucket) => {
+      undated += b.count;
+      if (undatedAmounts && b.amounts) undatedAmounts.merge(b.amounts);
+    };
     const into = (month: number, b: TallyBucket) => {
       const m = months.get(month);
       if (!m) months.set(month, { count: b.count, amounts: b.amounts ? merged(b.amounts) : undefined });
@@ -58,7 +63,7 @@ export class MonthTallier {
     };
     for (const [key, b] of this.cells) {
       if (key > 0) into(key, b);
-      else if (key === 0) undated += b.count;
+      else if (key === 0) none(b);
       else {
         const n = -key;
         const year = Math.floor(n / 10000);
@@ -66,7 +71,7 @@ export class MonthTallier {
         const second = n % 100;
         const [m, d] = order === 'dmy' ? [second, first] : [first, second];
         if (validYmd(year, m, d)) into(year * 100 + m, b);
-        else undated += b.count;
+        else none(b);
       }
     }
     const list = [...months.entries()].sort((a, b) => a[0] - b[0]).map(([k, b]) => ({
@@ -74,7 +79,7 @@ export class MonthTallier {
       count: b.count,
       ...(b.amounts ? { amountTotal: b.amounts.toString() } : {}),
     }));
-    return { dateColumn, ...(order ? { dateOrder: order } : {}), months: list, undated };
+    return { dateColumn, ...(order ? { dateOrder: order } : {}), months: list, undated, ...(undatedAmounts ? { undatedAmountTotal: undatedAmounts.toString() } : {}) };
   }
 }
 
@@ -112,5 +117,6 @@ export function monthTallyDifferences(recorded: MonthTally, got: MonthTally | un
     }
   }
   if (recorded.undated !== got.undated) out.push(`rows with no readable date: recorded ${recorded.undated}, the population has ${got.undated}`);
+  if ((recorded.undatedAmountTotal ?? '') !== (got.undatedAmountTotal ?? '')) out.push(`amount of the rows with no readable date: recorded ${recorded.undatedAmountTotal ?? '(none)'}, the population has ${got.undatedAmountTotal ?? '(none)'}`);
   return out;
 }

@@ -61,6 +61,8 @@ export interface MonthTally {
   months: Array<{ month: string; count: number; amountTotal?: string }>;
   /** Rows with no readable date (blank, not a date, or not a date in the order found). */
   undated: number;
+  /** With an amount column: the exact total of those rows' readable amounts. */
+  undatedAmountTotal?: string;
 }
 
 /** What a reviewer needs to see that the population read is the one tested, and complete. */

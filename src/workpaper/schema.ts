@@ -129,6 +129,8 @@ export const MonthTally = z.object({
   })),
   /** Rows with no readable date. */
   undated: count,
+  /** With an amount column: the exact total of those rows' readable amounts. */
+  undatedAmountTotal: decimal.optional(),
 });
 
 export const Fingerprint = z.object({

@@ -34,7 +34,10 @@ describe('the rows by month', () => {
         { month: '2026-12', count: 1, amountTotal: '3' },
       ],
       undated: 2,
+      undatedAmountTotal: '15', // J4 and J5: 7 + 8
     });
+    // The months and the undated rows add up to the population's total: 20.50 + 91.50 + 3 + 15.
+    expect(s.fingerprint.amountTotal).toBe('130.00');
     // Every row is in one place: months plus undated.
     const t = s.fingerprint.monthTally!;
     expect(t.months.reduce((a, m) => a + m.count, 0) + t.undated).toBe(s.fingerprint.rowCount);
@@ -88,6 +91,7 @@ describe('the rows by month', () => {
         { month: '2025-02', count: 2, amountTotal: '6' }, // 5 + 1
       ],
       undated: 1,
+      undatedAmountTotal: '2',
     });
   });
 
