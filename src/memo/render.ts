@@ -538,13 +538,12 @@ async function spreadSection(c: Ctx): Promise<void> {
     ],
     v.rows.map((r) => {
       const bold = r.kind === 'total';
-      const gap = r.kind === 'month' && r.population.count > 0 && r.sample.count === 0;
       return [
         { text: label(r), bold, italics: r.kind === 'outside' || r.kind === 'undated' },
         { text: int(r.population.count), bold },
         { text: share(r.population.count, v.populationTotal), bold },
         ...(v.withAmounts ? [{ text: amt(r.population.amount), bold }] : []),
-        { text: int(r.sample.count), bold: bold || gap },
+        { text: int(r.sample.count), bold },
         { text: share(r.sample.count, v.sampleTotal), bold },
         ...(v.withAmounts ? [{ text: r.sample.count > 0 || bold ? amt(r.sample.amount) : '', bold }] : []),
       ];

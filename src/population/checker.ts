@@ -120,7 +120,7 @@ export class RowChecker {
       const am = this.amounts!;
       if (amount < t.count) {
         const k = t.kinds[amount]!;
-        if (k <= 1 && am.addBytes(b, t.starts[amount]!, t.ends[amount]!, this.dec)) cell?.amounts!.addBytes(b, t.starts[amount]!, t.ends[amount]!, this.dec);
+        if (k <= 1 && am.addBytes(b, t.starts[amount]!, t.ends[amount]!, this.dec)) cell?.amounts!.addUnits(am.lastNegative, am.lastUnits, am.lastDecimals);
         else this.amountText(t.field(amount), row, cell);
       } else this.badAmounts.add(row, 'no amount (the row is short)');
     }

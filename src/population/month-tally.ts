@@ -20,31 +20,48 @@ export interface TallyBucket {
  * that is not a date in the order found counts as undated, as the validation counts it as bad.
  */
 export class MonthTallier {
-  private readonly cells = new Map<number, TallyBucket>();
-  private lastKey = Number.NaN;
-  private last: TallyBucket | undefined;
+  /** Dates whose month is known: one array of 13 cells (index = month) per year. */
+  private readonly years = new Map<number, Array<TallyBucket | undefined>>();
+  private lastYear = -1;
+  private lastYearCells: Array<TallyBucket | undefined> = [];
+  /** Dates such as 03/04/2026, by their raw negative key, until the order is known. */
+  private readonly raw = new Map<number, TallyBucket>();
+  private readonly none: TallyBucket;
 
-  constructor(private readonly withAmounts: boolean) {}
+  constructor(private readonly withAmounts: boolean) {
+    this.none = this.bucket();
+  }
+
+  private bucket(): TallyBucket {
+    return { count: 0, amounts: this.withAmounts ? new AmountTotal() : undefined };
+  }
 
   /** The cell of a raw date key (DateTracker.add / addIsoBytes), with one more row counted. */
   take(raw: number): TallyBucket {
-    const key = raw > 0 ? Math.floor(raw / 100) : raw;
     let b: TallyBucket | undefined;
-    if (key === this.lastKey) b = this.last!;
-    else {
-      b = this.cells.get(key);
-      if (!b) {
-        b = { count: 0, amounts: this.withAmounts ? new AmountTotal() : undefined };
-        this.cells.set(key, b);
+    if (raw > 0) {
+      const y = Math.floor(raw / 10000);
+      const m = Math.floor(raw / 100) % 100;
+      let cells = this.lastYearCells;
+      if (y !== this.lastYear) {
+        let got = this.years.get(y);
+        if (!got) this.years.set(y, (got = new Array<TallyBucket | undefined>(13).fill(undefined)));
+        cells = got;
+        this.lastYear = y;
+        this.lastYearCells = cells;
       }
-      this.lastKey = key;
-      this.last = b;
+      b = cells[m];
+      if (!b) b = cells[m] = this.bucket();
+    } else if (raw === 0) b = this.none;
+    else {
+      b = this.raw.get(raw);
+      if (!b) this.raw.set(raw, (b = this.bucket()));
     }
     b.count++;
     return b;
   }
 
-  /** The tally, once the order of day and month is known (undefined when no date needed one). */
+  /** The tally, once the order of day and month is known (`order` undefined when no date needed one). */
   result(dateColumn: string, order: DateOrder | undefined): MonthTally {
     const months = new Map<number, TallyBucket>();
     let undated = 0;
@@ -61,18 +78,16 @@ export class MonthTallier {
         if (m.amounts && b.amounts) m.amounts.merge(b.amounts);
       }
     };
-    for (const [key, b] of this.cells) {
-      if (key > 0) into(key, b);
-      else if (key === 0) none(b);
-      else {
-        const n = -key;
-        const year = Math.floor(n / 10000);
-        const first = Math.floor(n / 100) % 100;
-        const second = n % 100;
-        const [m, d] = order === 'dmy' ? [second, first] : [first, second];
-        if (validYmd(year, m, d)) into(year * 100 + m, b);
-        else none(b);
-      }
+    for (const [y, cells] of this.years) cells.forEach((b, m) => b && into(y * 100 + m, b));
+    none(this.none);
+    for (const [key, b] of this.raw) {
+      const n = -key;
+      const year = Math.floor(n / 10000);
+      const first = Math.floor(n / 100) % 100;
+      const second = n % 100;
+      const [m, d] = order === 'dmy' ? [second, first] : [first, second];
+      if (validYmd(year, m, d)) into(year * 100 + m, b);
+      else none(b);
     }
     const list = [...months.entries()].sort((a, b) => a[0] - b[0]).map(([k, b]) => ({
       month: `${String(Math.floor(k / 100)).padStart(4, '0')}-${String(k % 100).padStart(2, '0')}`,
