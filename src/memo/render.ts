@@ -1064,8 +1064,9 @@ async function appendixOcSection(c: Ctx): Promise<void> {
 }
 
 /**
- * The numbered sections of the memo, in order: a section's number is its place in this list, so
- * a section added or moved renumbers the rest (and the texts that point to one).
+ * The numbered sections of the memo, in order: a section's number is its place in this list
+ * (among the sections whose `when` holds for the memo), so a section added or moved renumbers the
+ * rest (and the texts that point to one).
  */
 const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings']; render: (c: Ctx) => Promise<void>; when?: (m: MemoModel) => boolean }> = [
   { heading: 'objective', render: objectiveSection },
