@@ -21,7 +21,7 @@ export const COMMANDS: readonly CommandInfo[] = [
   { name: 'size', group: 'calculators', usage: 'tolrate size --confidence 95 --tolerable 6 --expected 1', summary: 'Sample size for an attribute test' },
   { name: 'limit', group: 'calculators', usage: 'tolrate limit --sample 78 --deviations 2 --confidence 95', summary: 'Upper deviation limit, risk of overreliance and decision' },
   { name: 'table', group: 'calculators', usage: 'tolrate table --confidence 95', summary: 'Planning table of sample sizes over tolerable and expected rates' },
-  { name: 'select', group: 'calculators', usage: 'tolrate select --population FILE --key COLUMN --size N --out SHEET.csv', summary: 'Select a reproducible sample and write the fieldwork sheet' },
+  { name: 'select', group: 'calculators', usage: 'tolrate select (--population FILE --key COLUMN | --ranges LIST | --every UNIT --from DATE --to DATE) --size N --out SHEET.csv', summary: 'Select a reproducible sample and write the fieldwork sheet' },
   { name: 'demo', group: 'other', usage: 'tolrate demo [--out DIR] [--engagement]', summary: 'Run the whole test on the invented demo scenario, no questions asked' },
 ];
 

@@ -391,6 +391,7 @@ export async function askPopulation(s: Session): Promise<Population> {
       ...(f.amountTotal !== undefined ? { amountTotal: f.amountTotal } : {}),
       format: f.format,
       ...(f.sheet !== undefined ? { sheet: f.sheet } : {}),
+      ...(f.monthTally ? { monthTally: f.monthTally } : {}),
     },
     validation: {
       ok: v.ok,

@@ -247,3 +247,66 @@ export function ocSvg(curves: readonly OcCurve[], labels: { x: string; y: string
   parts.push('</svg>');
   return { svg: parts.join(''), width, height };
 }
+
+/** One month of the spread picture: its share of the population's items and of the sample's. */
+export interface SpreadBar {
+  month: string;
+  populationShare: number;
+  sampleShare: number;
+}
+
+/** The spread's colours: the sample in the colour the rates picture gives the sample, the population in a neutral grey. */
+export const SPREAD_COLORS = { population: '#A6A6A6', sample: COLORS.sample } as const;
+
+/**
+ * The spread of the sample over the period as a picture: for each month, two bars side by side,
+ * its share of the population's items and its share of the sample's, to the same scale, so a month
+ * the sample leaves out or covers heavily stands out. The same figures are in the table beside it.
+ */
+export function spreadSvg(bars: readonly SpreadBar[], labels: { population: string; sample: string }, width = 620): { svg: string; width: number; height: number; geometry: Array<{ month: string; populationTop: number; sampleTop: number; base: number }> } {
+  const left = 48;
+  const right = 16;
+  const top = 34;
+  const plotH = 150;
+  const bottom = 40;
+  const height = top + plotH + bottom;
+  const plotW = width - left - right;
+  const max = Math.max(0, ...bars.flatMap((b) => [b.populationShare, b.sampleShare]));
+  const axis = niceAxis(max);
+  const y = (f: number) => top + plotH - (Math.min(Math.max(f, 0), axis.max) / axis.max) * plotH;
+  const slot = bars.length ? plotW / bars.length : plotW;
+  const barW = Math.max(2, Math.min(18, (slot - 4) / 2));
+  const out: string[] = [];
+  out.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}">`);
+  out.push(`<rect x="0" y="0" width="${width}" height="${height}" fill="#FFFFFF"/>`);
+  const col2 = left + Math.round(plotW / 2);
+  out.push(`<rect x="${left}" y="8" width="18" height="10" fill="${SPREAD_COLORS.population}"/>`);
+  out.push(`<text x="${left + 26}" y="17" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(labels.population)}</text>`);
+  out.push(`<rect x="${col2}" y="8" width="18" height="10" fill="${SPREAD_COLORS.sample}"/>`);
+  out.push(`<text x="${col2 + 26}" y="17" font-family="${FONT}" font-size="11" fill="${COLORS.text}">${esc(labels.sample)}</text>`);
+  const nTicks = Math.round(axis.max / axis.step);
+  for (let i = 0; i <= nTicks; i++) {
+    const v = i * axis.step;
+    const yy = y(v).toFixed(2);
+    out.push(`<line x1="${left}" y1="${yy}" x2="${left + plotW}" y2="${yy}" stroke="${COLORS.grid}" stroke-width="1"/>`);
+    out.push(`<text x="${left - 6}" y="${(y(v) + 3.5).toFixed(2)}" text-anchor="end" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${tickLabel(v)}</text>`);
+  }
+  const base = top + plotH;
+  const geometry: Array<{ month: string; populationTop: number; sampleTop: number; base: number }> = [];
+  bars.forEach((b, i) => {
+    const cx = left + slot * i + slot / 2;
+    const py = y(b.populationShare);
+    const sy = y(b.sampleShare);
+    geometry.push({ month: b.month, populationTop: py, sampleTop: sy, base });
+    out.push(`<rect x="${(cx - barW - 1).toFixed(2)}" y="${py.toFixed(2)}" width="${barW.toFixed(2)}" height="${Math.max(base - py, 0).toFixed(2)}" fill="${SPREAD_COLORS.population}"/>`);
+    out.push(`<rect x="${(cx + 1).toFixed(2)}" y="${sy.toFixed(2)}" width="${barW.toFixed(2)}" height="${Math.max(base - sy, 0).toFixed(2)}" fill="${SPREAD_COLORS.sample}"/>`);
+    // Month number under each slot; the year under the first month and each January.
+    const [yr, mo] = b.month.split('-');
+    if (bars.length <= 36 || i % 3 === 0) out.push(`<text x="${cx.toFixed(2)}" y="${base + 14}" text-anchor="middle" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${esc(mo ?? '')}</text>`);
+    if (i === 0 || mo === '01') out.push(`<text x="${cx.toFixed(2)}" y="${base + 28}" text-anchor="middle" font-family="${FONT}" font-size="10" font-weight="bold" fill="${COLORS.text}">${esc(yr ?? '')}</text>`);
+  });
+  out.push(`<line x1="${left}" y1="${base}" x2="${left + plotW}" y2="${base}" stroke="${COLORS.text}" stroke-width="1"/>`);
+  out.push(`<line x1="${left}" y1="${top}" x2="${left}" y2="${base}" stroke="${COLORS.text}" stroke-width="1"/>`);
+  out.push('</svg>');
+  return { svg: out.join('\n'), width, height, geometry };
+}

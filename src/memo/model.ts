@@ -20,6 +20,7 @@ import type { MemoTemplate } from './template.js';
 import { countResults, evidenceSupports, ratesSupport, testedResults, testState, worklist } from '../control-test/index.js';
 import { stateHash } from '../workpaper/log.js';
 import { tolerableDeviations } from '../stats/index.js';
+import { spreadView, type SpreadView } from './spread.js';
 
 export type Outcome = 'supported' | 'not-supported' | 'draft';
 
@@ -104,6 +105,8 @@ export interface MemoModel {
   missing: string[];
   /** Said in the appendix when characters XML forbids were removed (see cleanForMemo). */
   cleanedNote?: string;
+  /** How the sample spreads over the period; undefined when the population's tally by month was not recorded (older files). */
+  spread: SpreadView | undefined;
 }
 
 /** Thousands separators for a decimal string, without going through a float: "-1234567.5" -> "-1,234,567.5". */
@@ -426,8 +429,17 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     contentHash: stateHash(wp),
   };
 
+  const spread = spreadView(wp);
+  if (spread && spread.kind !== 'no-dates') values.spreadDateColumn = spread.dateColumn;
+  if (spread?.kind === 'table') {
+    values.spreadMonthsUnselected = spread.unselected.join(', ');
+    values.spreadMonthsEmpty = spread.empty.join(', ');
+    values.spreadOutsideCount = int(spread.outside.population);
+    values.spreadUndatedCount = int(spread.undated.population);
+  }
+
   const followUps = (wp.conclusion?.followUps ?? []).map((f) => ({ ...f, kindLabel: L.followUpKinds[f.kind] }));
-  return { wp, draft, notFinal, concluded, evaluation, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing };
+  return { wp, draft, notFinal, concluded, evaluation, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing, spread };
 }
 
 /** Exact figures for the appendix, to 4 decimal places of a percent. */

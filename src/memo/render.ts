@@ -30,9 +30,9 @@ import {
   type IParagraphOptions,
 } from 'docx';
 import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
-import { chartSvg, ocSvg, renderPng, type ChartRow, type OcCurve } from './chart.js';
+import { chartSvg, ocSvg, renderPng, spreadSvg, type ChartRow, type OcCurve } from './chart.js';
 import { acceptanceNumber, operatingCharacteristic } from '../stats/index.js';
-import { exact, type MemoModel } from './model.js';
+import { exact, formatAmount, type MemoModel } from './model.js';
 import { fill, type MemoTemplate } from './template.js';
 import { REVIEW_SECTION_LABELS } from '../control-test/index.js';
 
@@ -572,6 +572,69 @@ async function selectionSection(c: Ctx): Promise<void> {
 
 }
 
+/** How the sample spreads over the period: the population and the sample by month, a table and a picture. */
+async function spreadSection(c: Ctx): Promise<void> {
+  const { b, m, L, H, T } = c;
+  const v = m.spread!;
+  if (v.kind === 'no-dates') {
+    b.ps(v.reason === 'ranges' ? T.spreadNoDates : T.spreadNoDateColumn);
+    return;
+  }
+  if (v.kind === 'no-selection') {
+    b.note(b.f(T.spreadNoSelection));
+    return;
+  }
+  b.ps(T.spreadLead);
+  const share = (n: number, of: number) => (of > 0 ? pct(n / of) : '–');
+  const amt = (a: string) => formatAmount(a) ?? '';
+  const label = (r: (typeof v.rows)[number]) => (r.kind === 'month' ? r.month! : r.kind === 'outside' ? L.outsidePeriod : r.kind === 'undated' ? L.undated : L.spreadTotal);
+  b.table(
+    [
+      { header: L.month, w: 1.3 },
+      { header: L.populationItems, w: 1.1, align: 'right' },
+      { header: L.populationShare, w: 1, align: 'right' },
+      ...(v.withAmounts ? [{ header: L.populationAmount, w: 1.5, align: 'right' as const }] : []),
+      { header: L.sampleItems, w: 1, align: 'right' },
+      { header: L.sampleShare, w: 1, align: 'right' },
+      ...(v.withAmounts ? [{ header: L.sampleAmount, w: 1.4, align: 'right' as const }] : []),
+    ],
+    v.rows.map((r) => {
+      const bold = r.kind === 'total';
+      return [
+        { text: label(r), bold, italics: r.kind === 'outside' || r.kind === 'undated' },
+        { text: int(r.population.count), bold },
+        { text: share(r.population.count, v.populationTotal), bold },
+        ...(v.withAmounts ? [{ text: amt(r.population.amount), bold }] : []),
+        { text: int(r.sample.count), bold },
+        { text: share(r.sample.count, v.sampleTotal), bold },
+        ...(v.withAmounts ? [{ text: r.sample.count > 0 || bold ? amt(r.sample.amount) : '', bold }] : []),
+      ];
+    }),
+    { size: 16 },
+  );
+  b.ps(v.unselected.length ? T.spreadUnselected : T.spreadAllSelected);
+  if (v.empty.length) b.ps(T.spreadEmpty);
+  if (v.outside.population + v.undated.population > 0) b.ps(T.spreadApart);
+  const months = v.rows.filter((r) => r.kind === 'month');
+  if (c.o.chart !== false && months.length > 0) {
+    b.h2(H.spreadChart);
+    const bars = months.map((r) => ({ month: r.month!, populationShare: v.populationTotal ? r.population.count / v.populationTotal : 0, sampleShare: v.sampleTotal ? r.sample.count / v.sampleTotal : 0 }));
+    const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
+    const svg = spreadSvg(bars, { population: L.legendPopulationShare, sample: L.legendSampleShare }, chartW);
+    const png = await renderPng(svg.svg, 2);
+    if (png) {
+      b.children.push(
+        imageParagraph(png, svg, {
+          name: 'spread-chart',
+          title: H.spread,
+          description: months.map((r) => `${r.month}: ${L.populationItems} ${int(r.population.count)}, ${L.sampleItems} ${int(r.sample.count)}`).join('; '),
+        }),
+      );
+      b.p(b.f(T.spreadCaption), { style: 'Caption' });
+    } else b.note(b.f(T.chartUnavailable));
+  }
+}
+
 async function resultsSection(c: Ctx): Promise<void> {
   const { b, m, L, H, T, O, wp, a, evaluated, o } = c;
   if (!wp.results) b.note(b.f(T.resultsMissing));
@@ -1078,15 +1141,18 @@ async function appendixOcSection(c: Ctx): Promise<void> {
 }
 
 /**
- * The numbered sections of the memo, in order: a section's number is its place in this list, so
- * a section added or moved renumbers the rest (and the texts that point to one).
+ * The numbered sections of the memo, in order: a section's number is its place in this list
+ * (among the sections whose `when` holds for the memo), so a section added or moved renumbers the
+ * rest (and the texts that point to one).
  */
-const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings']; render: (c: Ctx) => Promise<void> }> = [
+const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings']; render: (c: Ctx) => Promise<void>; when?: (m: MemoModel) => boolean }> = [
   { heading: 'objective', render: objectiveSection },
   { heading: 'attributes', render: attributesSection },
   { heading: 'population', render: populationSection },
   { heading: 'approach', render: approachSection },
   { heading: 'selection', render: selectionSection },
+  // Only when the population's tally by month is recorded: a memo of an older file keeps its sections and their numbers.
+  { heading: 'spread', render: spreadSection, when: (m) => m.spread !== undefined },
   { heading: 'results', render: resultsSection },
   { heading: 'deviations', render: deviationsSection },
   { heading: 'qualitative', render: qualitativeSection },
@@ -1105,9 +1171,14 @@ const APPENDICES: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings'
   { heading: 'appendixReview', render: appendixReviewSection },
 ];
 
+/** The sections a memo of this model has, in order. */
+function sectionsOf(m: MemoModel): typeof SECTIONS {
+  return SECTIONS.filter((x) => !x.when || x.when(m));
+}
+
 /** The number of a section, as printed (or its heading when headings are not numbered). */
-export function sectionNumber(heading: keyof MemoTemplate['memo']['headings']): number {
-  const i = SECTIONS.findIndex((x) => x.heading === heading);
+export function sectionNumber(heading: keyof MemoTemplate['memo']['headings'], m?: MemoModel): number {
+  const i = (m ? sectionsOf(m) : SECTIONS).findIndex((x) => x.heading === heading);
   if (i < 0) throw new Error(`internal: no numbered memo section ${heading}`);
   return i + 1;
 }
@@ -1116,7 +1187,7 @@ export function sectionNumber(heading: keyof MemoTemplate['memo']['headings']): 
 export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOptions = {}): Promise<Document> {
   const W = t.memo;
   const values = { ...m.values };
-  values.followUpsSection = W.settings.numberHeadings ? String(sectionNumber('followUps')) : W.headings.followUps;
+  values.followUpsSection = W.settings.numberHeadings ? String(sectionNumber('followUps', m)) : W.headings.followUps;
   const b = new Builder(t, m, values);
   const wp = m.wp;
   const c: Ctx = {
@@ -1126,7 +1197,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
     o,
   };
   await titleBlock(c);
-  for (const sec of SECTIONS) {
+  for (const sec of sectionsOf(m)) {
     b.h1(W.headings[sec.heading]);
     await sec.render(c);
   }

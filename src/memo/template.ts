@@ -138,6 +138,11 @@ export const PLACEHOLDERS = {
   logEntries: 'the number of change-log entries',
   lastLogHash: 'the hash of the last change-log entry',
   contentHash: 'SHA-256 of the workpaper\'s content as it is now (without its log); equal to the state hash of the last log entry unless the file was changed outside tolrate',
+  spreadDateColumn: 'the date column the population and the sample are counted by month from',
+  spreadMonthsUnselected: 'the months of the period whose population holds items but from which no item was selected, comma separated',
+  spreadMonthsEmpty: 'the months of the period in which the population holds no item, comma separated',
+  spreadOutsideCount: 'the number of population items dated outside the period',
+  spreadUndatedCount: 'the number of population items with no readable date',
 } as const;
 
 /** Placeholders of the paragraphs written once per attribute (see ATTRIBUTE_SCOPED_KEYS). */
@@ -227,6 +232,9 @@ export const MemoFile = z.strictObject({
     amendments: para.default('Amendments after sign-off'),
     appendixReview: para.default('Appendix C — Review notes'),
     appendixOc: para.default('Appendix D — Operating characteristic'),
+    // Added with the spread of the sample over the period.
+    spread: para.default('Spread of the sample over the period'),
+    spreadChart: para.default('The months in a picture'),
   }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
@@ -292,6 +300,19 @@ export const MemoFile = z.strictObject({
       'accepted-at-second': 'Relied on after the second stage',
       'rejected-at-second': 'Not relied on after the second stage',
     }),
+    // Added with the spread of the sample over the period.
+    month: para.default('Month'),
+    populationItems: para.default('Population items'),
+    sampleItems: para.default('Sample items'),
+    populationShare: para.default('Share of population'),
+    sampleShare: para.default('Share of sample'),
+    spreadTotal: para.default('Total'),
+    populationAmount: para.default('Population amount'),
+    sampleAmount: para.default('Sample amount'),
+    outsidePeriod: para.default('Outside the period'),
+    undated: para.default('No readable date'),
+    legendPopulationShare: para.default("Share of the population's items"),
+    legendSampleShare: para.default("Share of the sample's items"),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
@@ -309,6 +330,16 @@ export const MemoFile = z.strictObject({
     planBothRisks: para.default('The sample is planned for both risks: {{planSize}} items, supporting reliance with at most {{planAcceptance}} deviation(s). Its risk of overreliance at the tolerable rate is {{planOverrelianceRisk}} and its risk of underreliance (the chance of not relying on a control that works at the expected rate) {{planUnderrelianceRisk}}, within the {{planAllowedUnderrelianceRisk}} the practitioner accepted.'),
     resultsTwoStage: para.default('Under the two-stage plan the decision follows the plan stage by stage (below). The risk of overreliance shown above is the plan\'s, exact over both stages; the sample deviation rate and the upper deviation limit are those of the items tested, shown for information.'),
     reviewLead: para.default('The reviewer\'s notes, each with its whole thread: raised, answered, re-opened and cleared, with who and when.'),
+    // Added with the spread of the sample over the period.
+    spreadLead: para.default("The population and the sample by month of the column {{spreadDateColumn}}, for each month of the period {{period}}: the items each month holds, their amount, and each month's share of all the items. The population's months were counted when it was read; the sample's come from the dates of the items selected (spares not included)."),
+    spreadUnselected: para.default('No item was selected from these months, in which the population holds items: {{spreadMonthsUnselected}}. Whether that matters for the test is for the practitioner to judge.'),
+    spreadAllSelected: para.default('Every month of the period in which the population holds items has at least one item selected.'),
+    spreadEmpty: para.default('The population holds no item in these months of the period: {{spreadMonthsEmpty}}.'),
+    spreadApart: para.default('Population items dated outside the period ({{spreadOutsideCount}}) and with no readable date ({{spreadUndatedCount}}) are counted on their own rows.'),
+    spreadCaption: para.default("Each month's share of the population's items beside its share of the sample's items."),
+    spreadNoDates: para.default('The population is a list of document numbers, which carry no dates, so the memo cannot show how the sample spreads over the period.'),
+    spreadNoDateColumn: para.default('No date column was named for the population, so the memo cannot show how the sample spreads over the period.'),
+    spreadNoSelection: para.default('The population by month is recorded; the sample beside it is shown once the items are selected.'),
   }),
 });
 

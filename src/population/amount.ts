@@ -86,6 +86,10 @@ export class AmountTotal {
   private scale = 0;
   private big = 0n;
   private small = 0;
+  /** The amount the last successful addBytes read, as addUnits takes it (so a second total can add it without reading it again). */
+  lastNegative = false;
+  lastUnits = 0;
+  lastDecimals = 0;
 
   private rescale(f: number): void {
     if (f <= this.scale) return;
@@ -159,8 +163,21 @@ export class AmountTotal {
       } else return false;
     }
     if (digits === 0 || digits > 15) return false;
-    this.addUnits(negative, v, f < 0 ? 0 : f);
+    const decimals = f < 0 ? 0 : f;
+    this.addUnits(negative, v, decimals);
+    this.lastNegative = negative;
+    this.lastUnits = v;
+    this.lastDecimals = decimals;
     return true;
+  }
+
+  /** Add another total to this one (its amounts count as this one's), exactly. */
+  merge(o: AmountTotal): void {
+    this.count += o.count;
+    this.negatives += o.negatives;
+    this.rescale(o.scale);
+    this.flush();
+    this.big += (o.big + BigInt(o.small)) * 10n ** BigInt(this.scale - o.scale);
   }
 
   /** The exact total as a decimal string with as many decimals as the most precise amount. */

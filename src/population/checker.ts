@@ -1,10 +1,11 @@
 import { AmountTotal, parseAmount } from './amount.js';
 import { DateTracker, type DateSummary } from './date.js';
+import { MonthTallier, type TallyBucket } from './month-tally.js';
 import type { CsvTokenizer } from './csv-tokenizer.js';
 import { confirmParts, DuplicateCollector, hashBytes, KeyHashes, mergeDuplicates, utf8Of, type DuplicateResult } from './key-index.js';
 
 export type { DuplicateResult } from './key-index.js';
-import type { DateOrder, PopulationValidation, ProblemCount, RowExample } from './types.js';
+import type { DateOrder, MonthTally, PopulationValidation, ProblemCount, RowExample } from './types.js';
 import { hasControl, visible } from '../io/text.js';
 
 export const EXAMPLES = 5;
@@ -55,6 +56,8 @@ export class RowChecker {
   readonly blankLines = new Problems();
   readonly amounts: AmountTotal | undefined;
   readonly dates: DateTracker | undefined;
+  /** The rows by month of the date column (with their amounts), when there is one. */
+  readonly tally: MonthTallier | undefined;
   private scratch = new Uint8Array(256);
   private lastLen = -1;
   private readonly dec: number;
@@ -62,6 +65,7 @@ export class RowChecker {
   constructor(readonly cols: CheckColumns) {
     this.amounts = cols.amount !== undefined ? new AmountTotal() : undefined;
     this.dates = cols.date !== undefined ? new DateTracker(cols.dateOrder, cols.decimalComma ? 'dmy' : 'mdy') : undefined;
+    this.tally = cols.date !== undefined ? new MonthTallier(cols.amount !== undefined) : undefined;
     this.dec = cols.decimalComma ? 0x2c : 0x2e;
   }
 
@@ -100,21 +104,25 @@ export class RowChecker {
         if (pos === 0) this.firstKey = b.toString('utf8', s, e);
       } else this.slowKey(t.field(key).trim(), row, pos);
     } else this.slowKey('', row, pos);
-    // Amount
+    // Date, then the amount (added to the date's month too)
+    let cell: TallyBucket | undefined;
+    if (date !== undefined) {
+      const dt = this.dates!;
+      let raw: number;
+      if (date < t.count) {
+        const k = t.kinds[date]!;
+        raw = k <= 1 ? dt.addIsoBytes(b, t.starts[date]!, t.ends[date]!) : 0;
+        if (raw === 0) raw = dt.add(t.field(date), row);
+      } else raw = dt.add('', row);
+      cell = this.tally!.take(raw);
+    }
     if (amount !== undefined) {
       const am = this.amounts!;
       if (amount < t.count) {
         const k = t.kinds[amount]!;
-        if (!(k <= 1 && am.addBytes(b, t.starts[amount]!, t.ends[amount]!, this.dec))) this.amountText(t.field(amount), row);
+        if (k <= 1 && am.addBytes(b, t.starts[amount]!, t.ends[amount]!, this.dec)) cell?.amounts!.addUnits(am.lastNegative, am.lastUnits, am.lastDecimals);
+        else this.amountText(t.field(amount), row, cell);
       } else this.badAmounts.add(row, 'no amount (the row is short)');
-    }
-    // Date
-    if (date !== undefined) {
-      const dt = this.dates!;
-      if (date < t.count) {
-        const k = t.kinds[date]!;
-        if (!(k <= 1 && dt.addIsoBytes(b, t.starts[date]!, t.ends[date]!))) dt.add(t.field(date), row);
-      } else dt.add('', row);
     }
   }
 
@@ -141,10 +149,12 @@ export class RowChecker {
     this.lastLen = -1;
   }
 
-  private amountText(text: string, row: number): void {
+  private amountText(text: string, row: number, cell: TallyBucket | undefined): void {
     const p = parseAmount(text, { decimalComma: this.cols.decimalComma });
-    if (p) this.amounts!.add(p);
-    else this.badAmounts.add(row, text.trim() === '' ? 'blank amount' : 'not an amount', text);
+    if (p) {
+      this.amounts!.add(p);
+      cell?.amounts!.add(p);
+    } else this.badAmounts.add(row, text.trim() === '' ? 'blank amount' : 'not an amount', text);
   }
 
   /** One row given as texts (XLSX). `extra` tells that cells lie beyond the last named column. */
@@ -153,8 +163,13 @@ export class RowChecker {
     const { key, amount, date } = this.cols;
     if (extra) this.badRows.add(row, 'values beyond the last named column');
     this.slowKey((values[key] ?? '').trim(), row, pos);
-    if (amount !== undefined) this.amountText(values[amount] ?? '', row);
-    if (date !== undefined) this.dates!.add(values[date] ?? '', row);
+    const cell = date !== undefined ? this.tally!.take(this.dates!.add(values[date] ?? '', row)) : undefined;
+    if (amount !== undefined) this.amountText(values[amount] ?? '', row, cell);
+  }
+
+  /** The rows by month, once the scan has ended (the day/month order is known only then). */
+  monthTally(dateColumn: string, dates: DateSummary): MonthTally {
+    return this.tally!.result(dateColumn, dates.order);
   }
 
   /** The key of the last data row. */

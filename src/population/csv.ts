@@ -6,6 +6,7 @@ import { basename, resolve as resolvePath } from 'node:path';
 import { FileInputError, TolrateInputError } from '../errors.js';
 import { CsvTokenizer } from './csv-tokenizer.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
+import { noDates } from './month-tally.js';
 import { buildValidation, confirmDuplicates, csvKeyText, Problems, RowChecker } from './checker.js';
 import { fileError, forEachChunk, openFile } from './file.js';
 import type { Reporter } from './progress.js';
@@ -307,6 +308,7 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
         keyColumn: src.keyColumn,
         ...(src.amountColumn !== undefined ? { amountColumn: src.amountColumn, amountTotal: '0', amountCount: 0 } : {}),
         ...(src.dateColumn !== undefined ? { dateColumn: src.dateColumn } : {}),
+        monthTally: src.dateColumn !== undefined ? { dateColumn: src.dateColumn, months: [], undated: 0 } : noDates(0),
       },
       validation,
     };
@@ -366,6 +368,7 @@ export async function scanCsv(src: CsvSource, report: Reporter): Promise<Populat
       ...(dateColumn !== undefined ? { dateColumn } : {}),
       ...(dates?.earliest ? { dateRange: { earliest: dates.earliest, latest: dates.latest! } } : {}),
       ...(dates?.order ? { dateOrder: dates.order } : {}),
+      monthTally: dateColumn !== undefined && dates ? c.monthTally(dateColumn, dates) : noDates(c.rows),
     },
     validation,
   };

@@ -132,15 +132,20 @@ export class DateTracker {
     private readonly defaultOrder: DateOrder = 'mdy',
   ) {}
 
-  add(text: string, row: number): void {
+  /**
+   * Take one date. Returns its raw key for a tally that must not guess the day/month order before
+   * the end of the file (see month-tally.ts): the yyyymmdd number of a date whose order is known,
+   * minus (year × 10000 + first × 100 + second) of one such as 03/04/2024, 0 when unreadable.
+   */
+  add(text: string, row: number): number {
     const p = parseDate(text);
     if (!p) {
       this.exact.fail(row, text, text.trim() === '' ? 'blank date' : 'not a date');
-      return;
+      return 0;
     }
     if (p.kind === 'exact') {
       this.exact.take(p.ymd);
-      return;
+      return p.ymd;
     }
     this.numericRows++;
     const { first, second, year } = p;
@@ -151,25 +156,27 @@ export class DateTracker {
     if (asMdy) this.mdy.take(year * 10000 + first * 100 + second);
     else this.mdy.fail(row, text, 'not a date when read as month/day/year');
     if (asDmy && asMdy && first !== second) this.ambiguousRows++;
+    return -(year * 10000 + first * 100 + second);
   }
 
-  /** Fast lane for exactly `yyyy-mm-dd`; false when the bytes have another shape. */
-  addIsoBytes(b: Uint8Array, s: number, e: number): boolean {
-    if (e - s !== 10 || b[s + 4] !== 0x2d || b[s + 7] !== 0x2d) return false;
+  /** Fast lane for exactly `yyyy-mm-dd`: its yyyymmdd number; 0 (nothing taken) when the bytes have another shape. */
+  addIsoBytes(b: Uint8Array, s: number, e: number): number {
+    if (e - s !== 10 || b[s + 4] !== 0x2d || b[s + 7] !== 0x2d) return 0;
     let y = 0;
     let m = 0;
     let d = 0;
     for (let i = 0; i < 10; i++) {
       if (i === 4 || i === 7) continue;
       const c = b[s + i]! - 0x30;
-      if (c < 0 || c > 9) return false;
+      if (c < 0 || c > 9) return 0;
       if (i < 4) y = y * 10 + c;
       else if (i < 7) m = m * 10 + c;
       else d = d * 10 + c;
     }
-    if (!validYmd(y, m, d)) return false;
-    this.exact.take(y * 10000 + m * 100 + d);
-    return true;
+    if (!validYmd(y, m, d)) return 0;
+    const ymd = y * 10000 + m * 100 + d;
+    this.exact.take(ymd);
+    return ymd;
   }
 
   summary(): DateSummary {
@@ -202,4 +209,26 @@ export class DateTracker {
     }
     return out;
   }
+}
+
+/**
+ * The month ('2026-03') of a date as the population reader takes it, with the day/month order the
+ * scan found (`order`) for dates such as 03/04/2026; undefined when it is not a readable date.
+ */
+export function monthOfDate(text: string, order: DateOrder | undefined): string | undefined {
+  const p = parseDate(text);
+  if (!p) return undefined;
+  let y: number;
+  let m: number;
+  if (p.kind === 'exact') {
+    y = Math.floor(p.ymd / 10000);
+    m = Math.floor(p.ymd / 100) % 100;
+  } else {
+    const o = order ?? 'mdy';
+    y = p.year;
+    m = o === 'dmy' ? p.second : p.first;
+    const d = o === 'dmy' ? p.first : p.second;
+    if (!validYmd(y, m, d)) return undefined;
+  }
+  return `${String(y).padStart(4, '0')}-${String(m).padStart(2, '0')}`;
 }

@@ -2,7 +2,8 @@
 export { scanPopulation, readRowsAt, findKeys } from './scan.js';
 export { parseAmount, amountText, groupDigits, AmountTotal } from './amount.js';
 export type { ParsedAmount, AmountOptions } from './amount.js';
-export { parseDate, ymdText } from './date.js';
+export { parseDate, ymdText, monthOfDate } from './date.js';
+export { monthTallyDifferences } from './month-tally.js';
 export { detectDelimiter, delimiterOption, delimiterName } from './csv.js';
 export { parseRanges, RANGES_COLUMN } from './ranges.js';
 export { parsePeriods, parseNonWorkingDays, describePeriods, PERIOD_FREQUENCIES, PERIOD_COLUMNS } from './periods.js';
@@ -16,6 +17,7 @@ export type {
   RangesSource,
   PeriodsSource,
   DateOrder,
+  MonthTally,
   PopulationScan,
   PopulationFingerprint,
   PopulationValidation,

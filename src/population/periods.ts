@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { TolrateInputError } from '../errors.js';
 import { buildValidation, Problems } from './checker.js';
 import { lookupKeys } from './ranges.js';
-import type { KeyLookup, PeriodsSource, PopulationRow, PopulationScan } from './types.js';
+import type { KeyLookup, MonthTally, PeriodsSource, PopulationRow, PopulationScan } from './types.js';
 
 /**
  * The population of a periodic control, made from the period under test and the control's
@@ -164,9 +164,22 @@ export function scanPeriods(src: PeriodsSource): PopulationScan {
       canonical: p.canonical,
       excludedCount: p.excluded,
       ...(n ? { dateRange: { earliest: iso(p.units[0]!.from), latest: iso(p.units[n - 1]!.to) }, dateColumn: 'from' } : {}),
+      monthTally: periodMonths(p.units),
     },
     validation,
   };
+}
+
+/** The occurrences by month of their first day (the `from` column, cut to the period). */
+function periodMonths(units: readonly Unit[]): MonthTally {
+  const months: MonthTally['months'] = [];
+  for (const u of units) {
+    const month = iso(u.from).slice(0, 7);
+    const last = months[months.length - 1];
+    if (last && last.month === month) last.count++;
+    else months.push({ month, count: 1 });
+  }
+  return { dateColumn: 'from', months, undated: 0 };
 }
 
 /** A unit the period covers whole (a full month, quarter or week). */

@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import { TolrateInputError } from '../errors.js';
+import { noDates } from './month-tally.js';
 import { buildValidation, EXAMPLES, Problems } from './checker.js';
 import type { DuplicateKeyExample, KeyLookup, PopulationRow, PopulationScan, RangesSource } from './types.js';
 
@@ -227,6 +228,8 @@ export function scanRanges(src: RangesSource): PopulationScan {
       keyColumn: RANGES_COLUMN,
       canonical: p.canonical,
       excludedCount,
+      // Document numbers carry no dates.
+      monthTally: noDates(p.rowCount),
     },
     validation,
   };

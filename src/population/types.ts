@@ -51,6 +51,20 @@ export interface PeriodsSource {
 
 export type PopulationSource = CsvSource | XlsxSource | RangesSource | PeriodsSource;
 
+/** The population by month of its date column, counted when it was read (month-tally.ts). */
+export interface MonthTally {
+  /** The column the months come from; absent when the population has no dates (ranges, no date column). */
+  dateColumn?: string;
+  /** How dates such as 03/04/2024 were read, when the column has any. */
+  dateOrder?: DateOrder;
+  /** Every month holding at least one row, in order: its rows and, with an amount column, the exact total of their readable amounts. */
+  months: Array<{ month: string; count: number; amountTotal?: string }>;
+  /** Rows with no readable date (blank, not a date, or not a date in the order found). */
+  undated: number;
+  /** With an amount column: the exact total of those rows' readable amounts. */
+  undatedAmountTotal?: string;
+}
+
 /** What a reviewer needs to see that the population read is the one tested, and complete. */
 export interface PopulationFingerprint {
   /** SHA-256 (hex) of the file's bytes; for ranges, of `canonical`. */
@@ -86,6 +100,8 @@ export interface PopulationFingerprint {
   canonical?: string;
   /** Ranges: how many numbers the exclusions removed. */
   excludedCount?: number;
+  /** The rows by month of the date column (every row undated when there is none). */
+  monthTally?: MonthTally;
 }
 
 /** A row (or line) with a problem, for the report. */

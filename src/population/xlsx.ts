@@ -1,4 +1,5 @@
 import { basename } from 'node:path';
+import { noDates } from './month-tally.js';
 import { buildValidation, confirmDuplicates, offerText, Problems, RowChecker } from './checker.js';
 import { resolveColumns, type ResolvedColumns } from './columns.js';
 import { hashFileHere, type FileHash } from './hash.js';
@@ -213,6 +214,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
         keyColumn: src.keyColumn,
         ...(src.amountColumn !== undefined ? { amountColumn: src.amountColumn, amountTotal: '0', amountCount: 0 } : {}),
         ...(src.dateColumn !== undefined ? { dateColumn: src.dateColumn } : {}),
+        monthTally: src.dateColumn !== undefined ? { dateColumn: src.dateColumn, months: [], undated: 0 } : noDates(0),
       },
       validation: buildValidation({
         rowCount: 0,
@@ -258,6 +260,7 @@ export async function scanXlsx(src: XlsxSource, report: Reporter): Promise<Popul
       ...(dateColumn !== undefined ? { dateColumn } : {}),
       ...(dates?.earliest ? { dateRange: { earliest: dates.earliest, latest: dates.latest! } } : {}),
       ...(dates?.order ? { dateOrder: dates.order } : {}),
+      monthTally: dateColumn !== undefined && dates ? cc.monthTally(dateColumn, dates) : noDates(cc.rows),
     },
     validation: buildValidation({
       rowCount: cc.rows,

@@ -5,7 +5,7 @@
  *
  *  1. the workpaper's change log: hash chain intact, and the file is what its log says (an edit
  *     made outside tolrate is named by its path);
- *  2. the population: SHA-256, row count, first and last key, amount total;
+ *  2. the population: SHA-256, row count, first and last key, amount total, the rows by month;
  *  3. the selection: drawn again from the recorded method, seed and algorithm and compared item
  *     by item (position, key, source row); a haphazard list is checked against the population;
  *  4. the sample size: recomputed from the recorded confidence, rates and model;
@@ -117,11 +117,13 @@ async function checkPopulation(wp: Workpaper, opts: ReperformOptions): Promise<{
   if (rec.amountTotal !== undefined && got.amountTotal !== rec.amountTotal) {
     diffs.push(`amount total differs: recorded ${rec.amountTotal}, file has ${got.amountTotal ?? '(none)'}`);
   }
+  // The rows by month, counted again (files written before it was recorded have none to compare).
+  if (rec.monthTally !== undefined) diffs.push(...pop.monthTallyDifferences(rec.monthTally, got.monthTally));
   const rel = path ? relative(dirname(resolve(opts.workpaperPath)), path) : undefined;
   const ws = wp.population.source;
   const where = path ? (rel && !rel.startsWith('..') ? rel : path) : ws.kind === 'periods' ? `periods: ${pop.describePeriods(ws)}` : `ranges ${(ws as { ranges: string }).ranges}`;
   const summary = diffs.length === 0
-    ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${groupDigits(got.amountTotal)}` : ''} — as recorded`
+    ? `${where}: SHA-256 ${got.sha256.slice(0, 16)}…, ${got.rowCount.toLocaleString('en-US')} rows, first ${got.firstKey}, last ${got.lastKey}${got.amountTotal ? `, total ${groupDigits(got.amountTotal)}` : ''}${rec.monthTally?.dateColumn !== undefined ? `, ${rec.monthTally.months.length} month${rec.monthTally.months.length === 1 ? '' : 's'} by ${rec.monthTally.dateColumn}` : ''} — as recorded`
     : `${where}: ${diffs.length} difference(s)`;
   return { check: { area: 'population', summary, differences: diffs }, source, rowCount: got.rowCount };
 }

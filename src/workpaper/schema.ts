@@ -116,6 +116,24 @@ export const PopulationSource = z.discriminatedUnion('kind', [
   }),
 ]);
 
+/** The population by month of its date column, counted when it was read; every row undated when it has no dates. */
+export const MonthTally = z.object({
+  /** Absent when the population has no dates (number ranges, a file without a date column). */
+  dateColumn: z.string().optional(),
+  /** How dates such as 03/04/2026 were read. */
+  dateOrder: z.enum(['dmy', 'mdy']).optional(),
+  months: z.array(z.object({
+    month: z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'must be a month written YYYY-MM'),
+    count: positive,
+    /** The exact total of the month's readable amounts, with an amount column. */
+    amountTotal: decimal.optional(),
+  })),
+  /** Rows with no readable date. */
+  undated: count,
+  /** With an amount column: the exact total of those rows' readable amounts. */
+  undatedAmountTotal: decimal.optional(),
+});
+
 export const Fingerprint = z.object({
   sha256: z.string().regex(/^[0-9a-f]{64}$/, 'must be a SHA-256 in hexadecimal'),
   rowCount: count,
@@ -135,6 +153,8 @@ export const Fingerprint = z.object({
   /** Ranges: the canonical text hashed, and how many numbers the exclusions removed. */
   canonical: z.string().optional(),
   excludedCount: count.optional(),
+  /** The rows by month (absent in files written before it was recorded). */
+  monthTally: MonthTally.optional(),
 });
 
 export const Population = z.object({

@@ -136,7 +136,7 @@ describe('tolrate select', () => {
       [['--population', 'invoices.csv', '--key', 'invoice_no', '--size', '5', '--out', 'x.csv', '--method', 'systematic', '--starts', '2'], /must be a multiple of 2/],
       [['--population', 'invoices.csv', '--key', 'invoice_no', '--size', '5'], /--out SHEET is required/],
       [['--population', 'invoices.csv', '--size', '5', '--out', 'x.csv'], /--key COLUMN is required/],
-      [['--size', '5', '--out', 'x.csv'], /--population FILE \(or --ranges LIST\) is required/],
+      [['--size', '5', '--out', 'x.csv'], /--population FILE \(or --ranges LIST, or --every UNIT --from DATE --to DATE\) is required/],
       [['--population', 'invoices.csv', '--key', 'invoice_no', '--size', '5', '--out', 'x.csv', '--seed', 'sé'], /plain ASCII/],
       [['--population', 'invoices.csv', '--key', 'invoice_no', '--size', '5', '--out', 'x.csv', '--method', 'stratified'], /--method must be random, systematic or haphazard/],
       [['--population', 'invoices.csv', '--key', 'invoice_no', '--size', '5', '--out', 'x.csv', '--spars', '1'], /unknown option --spars\. Did you mean --spares\?/],

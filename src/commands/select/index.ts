@@ -2,7 +2,8 @@ import { existsSync, statSync } from 'node:fs';
 import { extname, isAbsolute, relative, resolve } from 'node:path';
 import { parseFlags, str, type FlagSpec, type ParsedArgs } from '../args.js';
 import { FileInputError, UsageError } from '../../errors.js';
-import { findKeys, readRowsAt, scanPopulation } from '../../population/index.js';
+import { describePeriods, findKeys, parseNonWorkingDays, parsePeriods, readRowsAt, scanPopulation } from '../../population/index.js';
+import type { PeriodFrequency } from '../../population/periods.js';
 import type { DateOrder, PopulationScan, PopulationSource, ProgressStream } from '../../population/types.js';
 import {
   fieldworkItems,
@@ -23,6 +24,10 @@ const SPEC: FlagSpec = {
   population: { type: 'string' },
   ranges: { type: 'string' },
   exclude: { type: 'string', multiple: true },
+  every: { type: 'string' },
+  from: { type: 'string' },
+  to: { type: 'string' },
+  except: { type: 'string', multiple: true },
   key: { type: 'string' },
   sheet: { type: 'string' },
   amount: { type: 'string' },
@@ -56,6 +61,8 @@ export function help(): string {
 
 Usage: tolrate select --population FILE --key COLUMN --size N --out SHEET.csv [options]
        tolrate select --ranges LIST [--exclude LIST] --size N --out SHEET.csv [options]
+       tolrate select --every month|quarter|week|day --from DATE --to DATE --size N
+                      --out SHEET.csv [options]
 
 The population is read twice, streaming: once for its fingerprint (SHA-256, row count, first
 and last key, columns, exact amount total) and validation, once for the selected rows only.
@@ -75,6 +82,14 @@ Population:
   --date-order dmy|mdy  how to read dates such as 03/04/2024 (default: found from the data)
   --ranges LIST         document numbers instead of a file, e.g. 40001-52650,60001-61200
   --exclude LIST        numbers or ranges to leave out of --ranges (e.g. voided documents);
+                        may be given more than once
+  --every UNIT          the occurrences of a periodic control instead of a file: one sampling
+                        unit for each month, quarter, week (Monday to Sunday) or day (a working
+                        day, Monday to Friday) of the period from --from to --to
+  --from DATE           the first day of the period, YYYY-MM-DD (with --every)
+  --to DATE             the last day of the period, YYYY-MM-DD (with --every)
+  --except DATES        --every day: days the control does not run besides Saturdays and
+                        Sundays (public holidays, closures), YYYY-MM-DD separated by commas;
                         may be given more than once
 
 Selection:
@@ -110,6 +125,9 @@ Examples:
   tolrate select --population invoices.xlsx --sheet "FY2024" --key "Invoice no" --size 25 \\
                  --method systematic --seed 48213 --out fieldwork.xlsx
   tolrate select --ranges 40001-52650,60001-61200 --exclude 40017,40233 --size 40 --out sheet.csv
+  tolrate select --every month --from 2025-01-01 --to 2025-12-31 --size 2 --seed 7 --out months.csv
+  tolrate select --every day --from 2025-01-01 --to 2025-12-31 --except 2025-01-01,2025-12-25 \
+                 --size 25 --out days.csv
 
 ${CAUTION}
 `;
@@ -148,16 +166,51 @@ interface Plan {
   out: string;
 }
 
+const EVERY: Record<string, PeriodFrequency> = {
+  month: 'monthly', monthly: 'monthly', quarter: 'quarterly', quarterly: 'quarterly',
+  week: 'weekly', weekly: 'weekly', day: 'daily', daily: 'daily',
+};
+const WORD: Record<PeriodFrequency, string> = { monthly: 'month', quarterly: 'quarter', weekly: 'week', daily: 'day' };
+
+/** --every, --from, --to, --except: the periods of a periodic control (checked as the interview checks them). */
+function periodsFrom(p: ParsedArgs): PopulationSource {
+  const every = str(p, 'every')!;
+  const frequency = EVERY[every.trim().toLowerCase()];
+  if (!frequency) throw usage(`--every must be month, quarter, week or day, not "${every}".`);
+  const from = str(p, 'from');
+  const to = str(p, 'to');
+  if (from === undefined || to === undefined) throw usage('--every needs the period: --from DATE and --to DATE (YYYY-MM-DD).');
+  const except = (p.values.except as string[] | undefined) ?? [];
+  if (except.length && frequency !== 'daily') throw usage(`--except applies to --every day; a ${WORD[frequency]} is one sampling unit whatever days it holds.`);
+  const nonWorkingDays = except.length ? parseNonWorkingDays(except.join(',')) : [];
+  const source: PopulationSource = { kind: 'periods', frequency, start: from.trim(), end: to.trim(), nonWorkingDays };
+  // The dates and their order are checked here, before anything is read or written.
+  parsePeriods(source);
+  return source;
+}
+
 function sourceFrom(p: ParsedArgs, ctx: CommandContext): Plan {
   const file = str(p, 'population');
   const ranges = str(p, 'ranges');
+  const every = str(p, 'every');
   const excludes = (p.values.exclude as string[] | undefined) ?? [];
-  if (file !== undefined && ranges !== undefined) throw usage('give either --population or --ranges, not both.');
-  if (file === undefined && ranges === undefined) throw usage('--population FILE (or --ranges LIST) is required.');
+  const given = [file !== undefined && '--population', ranges !== undefined && '--ranges', every !== undefined && '--every'].filter(Boolean);
+  if (given.length > 1) throw usage(`give one population: ${given.join(' or ')}, not ${given.length === 2 ? 'both' : 'several'}.`);
+  if (given.length === 0) throw usage('--population FILE (or --ranges LIST, or --every UNIT --from DATE --to DATE) is required.');
+  if (every === undefined) {
+    const extra = (['from', 'to', 'except'] as const).find((f) => p.values[f] !== undefined);
+    if (extra) throw usage(`--${extra} applies to --every (a periodic control's occurrences).`);
+  }
   const outRaw = str(p, 'out');
   if (outRaw === undefined || outRaw === '') throw usage('--out SHEET is required (the fieldwork sheet to write, .csv or .xlsx).');
   const out = resolve(ctx.cwd, outRaw);
   const fileOnly = ['key', 'sheet', 'amount', 'date', 'delimiter', 'decimal-comma', 'date-order'] as const;
+  if (every !== undefined) {
+    const extra = fileOnly.find((f) => p.values[f] !== undefined) ?? (excludes.length ? 'exclude' : undefined);
+    if (extra) throw usage(`--${extra} applies to a population file${extra === 'exclude' ? ' or ranges' : ''}, not to --every.`);
+    const source = periodsFrom(p);
+    return { source, label: `periods: ${describePeriods(source as Extract<PopulationSource, { kind: 'periods' }>)}`, out };
+  }
   if (ranges !== undefined) {
     const extra = fileOnly.find((f) => p.values[f] !== undefined);
     if (extra) throw usage(`--${extra} applies to a population file, not to --ranges.`);
@@ -218,7 +271,8 @@ function againCommand(plan: Plan, sel: Selection, ctx: CommandContext): string {
     words.push('--ranges', s.ranges);
     for (const e of s.exclusions ?? []) words.push('--exclude', e);
   } else if (s.kind === 'periods') {
-    throw new Error('internal: tolrate select makes no periodic population');
+    words.push('--every', WORD[s.frequency], '--from', s.start, '--to', s.end);
+    if (s.nonWorkingDays?.length) words.push('--except', s.nonWorkingDays.join(','));
   } else {
     words.push('--population', rel(s.path), '--key', s.keyColumn);
     if (s.kind === 'xlsx' && s.sheet !== undefined) words.push('--sheet', s.sheet);

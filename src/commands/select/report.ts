@@ -27,6 +27,16 @@ export function populationText(scan: PopulationScan, label: string): string[] {
     rows.push(['SHA-256', `${f.sha256} (of the canonical text of the ranges and exclusions)`]);
     rows.push(['Numbers', int(f.rowCount)]);
     rows.push(['First, last', f.rowCount ? `${f.firstKey}, ${f.lastKey}` : '-']);
+  } else if (f.format === 'periods') {
+    const lines = f.canonical?.split('\n') ?? [];
+    const off = lines[3]?.replace(/^non-working days: ?/, '') ?? 'none';
+    rows.push(['Format', 'the occurrences of a periodic control (no file)']);
+    rows.push(['Each', lines[1]?.replace(/^frequency: /, '') ?? '']);
+    rows.push(['Period', lines[2]?.replace(/^period: /, '') ?? '']);
+    if (off !== 'none') rows.push(['Non-working', `${off} (${int(f.excludedCount ?? 0)} of them on a working day of the period, left out)`]);
+    rows.push(['SHA-256', `${f.sha256} (of the canonical text of the frequency, the period and the non-working days)`]);
+    rows.push(['Occurrences', int(f.rowCount)]);
+    rows.push(['First, last', f.rowCount ? `${f.firstKey}, ${f.lastKey}` : '-']);
   } else {
     rows.push([
       'Format',
