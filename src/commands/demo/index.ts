@@ -28,7 +28,7 @@ Usage: tolrate demo [--out DIR] [--scenario main|small] [--verbose]
                      folder file (entity, period, team), both scenarios planned in it, and a
                      third test carried forward from an invented prior year's workpaper (planned,
                      not yet tested); then print \`tolrate status\` and write \`tolrate summary\`
-                     as of ${'$'}{ENGAGEMENT_DEMO_AS_OF}
+                     as of ${ENGAGEMENT_DEMO_AS_OF}
   -h, --help         show this help
 
 The demo runs the same interview as \`tolrate plan\`, \`record\` and \`conclude\`, answered from
