@@ -7,7 +7,7 @@ import type { AttributeEvaluation, Conclusion, Evaluation, FollowUp, Workpaper }
 import { pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
 import { countResults, evaluate, isIllustrative, type DeviationRecord } from './evaluate.js';
 import { CAUSE_LABELS } from './labels.js';
-import { bothRisksOf, STAGE_DECISION_WORDS, twoStageOf } from './plan.js';
+import { bothRisksOf, plannedTolerableRate, STAGE_DECISION_WORDS, twoStageOf } from './plan.js';
 import { TolrateInputError } from '../errors.js';
 
 /** What the rates alone say. An illustrative evaluation (non-statistical, haphazard) supports reliance only without deviations. */
@@ -110,7 +110,7 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
     } else {
       const both = bothRisksOf(wp);
       parts.push(
-        (both ? `Sample planned for both risks (rely on the control with at most ${both.acceptanceNumber} deviation(s) in ${both.sampleSize} items). ` : '') +
+        (both ? bothRisksWords(both, plannedTolerableRate(wp) ?? ev.tolerableRate, ev.tolerableRate) : '') +
         `${ev.deviations} deviation(s) in ${ev.sampleSize} items: sample deviation rate ${pct(ev.sampleRate)}, upper deviation limit ${pctLimit(ev.upperLimit, ev.tolerableRate)} at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; risk of overreliance ${pctUp(ev.achievedRisk)} against ${pctPlain(beta)} allowed.`,
       );
       parts.push(byRates ? 'The rates support the planned reliance.' : 'The rates do not support the planned reliance.');
@@ -255,4 +255,10 @@ export function conclusionProblems(wp: Workpaper): string[] {
   if (wp.conclusion.qualitative.intentionalFound !== proposal.qualitative.intentionalFound) diffs.push(`recorded that intentional deviations were ${wp.conclusion.qualitative.intentionalFound ? '' : 'not '}found; the results say otherwise`);
   if (wp.conclusion.qualitative.systemicFound !== proposal.qualitative.systemicFound) diffs.push(`recorded that systemic deviations were ${wp.conclusion.qualitative.systemicFound ? '' : 'not '}found; the results say otherwise`);
   return diffs;
+}
+
+/** The plan for both risks in the reasoning of one attribute, and at which rate that attribute is judged. */
+function bothRisksWords(both: { sampleSize: number; acceptanceNumber: number }, plannedAt: number, own: number): string {
+  const plan = `Sample planned for both risks at a tolerable rate of ${pctPlain(plannedAt)} (rely on the control with at most ${both.acceptanceNumber} deviation(s) in ${both.sampleSize} items at that rate)`;
+  return own > plannedAt ? `${plan}; this attribute is judged at its own tolerable rate of ${pctPlain(own)} by the exact risk rule. ` : `${plan}. `;
 }

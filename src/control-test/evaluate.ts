@@ -6,7 +6,7 @@
 import { extensionRisk, extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
 import { NoPracticalSizeError, TolrateInputError } from '../errors.js';
 import { progress, testedResults, testedWork, worklist } from './worklist.js';
-import { bothRisksOf, stageDecision, twoStageOf, twoStageRisk } from './plan.js';
+import { stageDecision, twoStageOf, twoStageRisk } from './plan.js';
 import type {
   Attribute,
   AttributeEvaluation,
@@ -163,8 +163,11 @@ export function attributeFigures(args: {
  * accepts, k1 ≥ r1 rejects, otherwise k1 + k2 ≤ c2 accepts (plan.ts: stageDecision); the risk of
  * overreliance shown is the plan's exact one over both stages, the sample rate and the upper limit
  * are those of the items tested, and no extension is offered after a rejection (the plan already
- * had its second look). Both risks: k ≤ c, which with the planned n is the exact risk rule; both
- * are required, so a sample left short by voids is judged by the stricter of the two.
+ * had its second look). Both risks: the plan chose n and its acceptance number c at the lowest
+ * tolerable rate; with the planned n, k ≤ c is the exact risk rule at that rate, so each attribute
+ * is judged by the exact risk rule at its own tolerable rate (an attribute with a higher tolerable
+ * rate than the one planned at may rely with more than c deviations; a sample left short by voids
+ * is judged at the items tested, which is stricter than c).
  */
 function byPlan(wp: Workpaper, f: AttributeEvaluation, c: AttributeCounts): AttributeEvaluation {
   const two = twoStageOf(wp);
@@ -189,13 +192,6 @@ function byPlan(wp: Workpaper, f: AttributeEvaluation, c: AttributeCounts): Attr
         decision,
       },
     };
-  }
-  const both = bothRisksOf(wp);
-  if (both) {
-    const supported = f.deviations <= both.acceptanceNumber && f.supportedByRates;
-    if (supported === f.supportedByRates) return f;
-    // k > c although the exact risk is within β: only when a tested sample exceeds the plan's n.
-    return { ...f, supportedByRates: supported, extension: null };
   }
   return f;
 }

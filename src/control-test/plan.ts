@@ -21,6 +21,16 @@ export function bothRisksOf(wp: Pick<Workpaper, 'approach'>): BothRisksRecord | 
   return p?.kind === 'both-risks' ? p : undefined;
 }
 
+/**
+ * The tolerable rate a planned plan is computed at: the lowest that applies to an attribute
+ * (the one that needs the most items, so the plan serves every attribute).
+ */
+export function plannedTolerableRate(wp: Pick<Workpaper, 'approach' | 'attributes'>): number | undefined {
+  const a = wp.approach;
+  if (!a) return undefined;
+  return Math.min(a.tolerableRate, ...(wp.attributes ?? []).map((x) => x.tolerableRate ?? a.tolerableRate));
+}
+
 /** The plan's parameters in the form of the engine (src/stats). */
 export function statsPlan(p: TwoStageRecord): TwoStagePlan {
   return {

@@ -193,6 +193,12 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   const plan = a?.kind === 'statistical' ? a.plan : undefined;
   const two = plan?.kind === 'two-stage' ? plan : undefined;
   const both = plan?.kind === 'both-risks' ? plan : undefined;
+  // The tolerable rate a planned plan is computed at: the lowest that applies to an attribute.
+  const planRates = (wp.attributes ?? []).map((x) => ({ id: x.id, rate: x.tolerableRate ?? a?.tolerableRate ?? 1 }));
+  const planLowest = planRates.length ? planRates.reduce((lo, x) => (x.rate < lo.rate ? x : lo)) : undefined;
+  const planTolerableRate = plan && a && planLowest
+    ? planLowest.rate < a.tolerableRate ? `${pct(planLowest.rate)} (${planLowest.id}'s own, the lowest that applies to an attribute, so the plan serves every attribute)` : pct(a.tolerableRate)
+    : undefined;
   const sizes = a?.sizes ?? [];
   const planned = sizes.find((x) => x.sampleSize === a?.sampleSize) ?? [...sizes].sort((x, y) => y.sampleSize - x.sampleSize)[0];
 
@@ -390,6 +396,7 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     planSecondAcceptance: two ? int(two.secondAcceptanceNumber) : undefined,
     planMaxSize: two ? int(two.firstSampleSize + two.secondSampleSize) : undefined,
     planSize: both ? int(both.sampleSize) : undefined,
+    planTolerableRate,
     planAcceptance: both ? int(both.acceptanceNumber) : undefined,
     planOverrelianceRisk: plan ? pctUp(plan.overrelianceRisk) : undefined,
     planUnderrelianceRisk: plan ? pctUp(plan.underrelianceRisk) : undefined,

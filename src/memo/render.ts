@@ -677,7 +677,10 @@ async function resultsSection(c: Ctx): Promise<void> {
       // in place of the summary that would claim every attribute passed.
       const against = m.attributes.some((x) => x.againstEvidence);
       if (against) b.ps(T.againstEvidence);
-      else if (m.concluded && !m.illustrative) b.ps(m.outcome === 'supported' ? O.supported.resultsSummary : O['not-supported'].resultsSummary);
+      else if (m.concluded && !m.illustrative) {
+        const staged = m.attributes.some((x) => x.evaluation?.stage);
+        b.ps(m.outcome === 'supported' ? (staged ? T.supportedTwoStage : O.supported.resultsSummary) : O['not-supported'].resultsSummary);
+      }
       for (const x of m.attributes) {
         const ev = x.evaluation!;
         if (!ev.illustrative && !ev.supportedByRates && ev.extension !== null && ev.extension > 0) b.ps(T.extension, x.values);

@@ -151,6 +151,11 @@ describe('two-stage plan', () => {
     expect(rows).toContain('A2 | 0 / 62 | not needed: the first stage decided | 1 | Relied on at the first stage');
     expect(rows.some((r) => /^63 \| PV-\d+ \| \d+ \| Sample, stage 2 \| Conforms \| — \| Second stage: A1$/.test(r))).toBe(true);
     expect(text).toMatch(/planned in two stages, both selected in advance: 62 items are tested first/);
+    // The plan is named with the rate it is computed at, and an accepted two-stage test is summed up by
+    // the plan's rule, never by "the upper deviation limit does not exceed the tolerable rate".
+    expect(text).toMatch(/risk of overreliance at the tolerable rate of 6\.0% is 5\.0%/);
+    expect(text).toMatch(/meet the two-stage plan's rule for reliance, stage by stage/);
+    expect(text).not.toMatch(/upper deviation limit does not exceed the tolerable rate/);
     expect(rows.some((r) => r.includes('A1, A2 (n1 = 62, c1 = 0, r1 = 2; n2 = 18, c2 = 1)'))).toBe(true);
     // The chance of relying at 6% is the plan's risk of overreliance (reference table: 4.96%, shown to one decimal).
     expect(rows).toContain('6.0% | 5.0%');
@@ -258,17 +263,18 @@ describe('plan for both risks', () => {
     expect(a1.supportedByRates).toBe(true);
     expect(a1.achievedRisk).toBeCloseTo(REF_BOTH.overrelianceRiskAchieved, 12);
     expect(await conclude(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(concludeAnswers()), { now: fixedClock() })).toBe(0);
-    expect(loadWorkpaper(file).conclusion!.attributes[0]!.reasoning).toMatch(/Sample planned for both risks \(rely on the control with at most 2 deviation\(s\) in 103 items\)/);
+    expect(loadWorkpaper(file).conclusion!.attributes[0]!.reasoning).toMatch(/Sample planned for both risks at a tolerable rate of 6% \(rely on the control with at most 2 deviation\(s\) in 103 items at that rate\)/);
     expect((await reperform(dir)).code).toBe(0);
   });
 
-  it('with an attribute of its own tolerable rate, is planned at the lowest rate, which serves every attribute', async () => {
+  it('with an attribute of its own tolerable rate, is planned at the lowest rate, and each attribute is judged at its own', async () => {
     // The fixture's A1 uses the test's 6%, A2 its own 8%: planned at 6% as above (reference n 103, c 2).
     const { dir, file } = await plannedTest({ 'plan.approach.model': 'binomial', 'plan.approach.plan': 'both-risks', 'plan.approach.underrelianceRisk': '10', 'plan.approach.plan.accept': 'accept' });
     const wp = loadWorkpaper(file);
     expect(wp.approach!.plan).toMatchObject({ kind: 'both-risks', sampleSize: REF_BOTH.sampleSize, acceptanceNumber: REF_BOTH.acceptanceNumber });
     expect(wp.approach!.rationale).toMatch(/Planned at the lowest of the attributes' tolerable rates \(6%\)/);
-    // Three A2 deviations: within A2's own 8% by the exact risk rule, but more than c = 2, so the plan does not rely.
+    // Three A2 deviations: more than c = 2 (planned at 6%), but A2 is judged at its own 8%, where the
+    // exact risk P(X ≤ 3 | 103, 8%) is within 5%: supported, as a sample planned for A2 alone would be.
     const answers: ScriptAnswers = { ...results([]) };
     for (const seq of [3, 9, 15]) {
       Object.assign(answers, {
@@ -283,8 +289,9 @@ describe('plan for both risks', () => {
     const a2 = evaluate(loadWorkpaper(file)).attributes[1]!;
     expect(a2.tolerableRate).toBe(0.08);
     expect(a2.achievedRisk).toBeLessThanOrEqual(0.05);
-    expect(a2.supportedByRates).toBe(false);
+    expect(a2.supportedByRates).toBe(true);
     expect(await conclude(['t1.tolrate.json'], captureContext(dir), new ScriptedAsker(concludeAnswers()), { now: fixedClock() })).toBe(0);
+    expect(loadWorkpaper(file).conclusion!.attributes[1]!.reasoning).toMatch(/planned for both risks at a tolerable rate of 6% .*judged at its own tolerable rate of 8% by the exact risk rule/);
     expect((await reperform(dir)).code).toBe(0);
   });
 
