@@ -4,8 +4,9 @@
  * accepts it. The tool never classifies the severity of a deficiency; it asks the questions.
  */
 import type { AttributeEvaluation, Conclusion, Evaluation, FollowUp, Workpaper } from '../workpaper/schema.js';
-import { pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
-import { countResults, evaluate, isIllustrative, type DeviationRecord } from './evaluate.js';
+import { int, pct, pctLimit, pctPlain, pctUp } from '../util/format.js';
+import { deviationRecordsByAttribute, evaluate, isIllustrative, type DeviationRecord } from './evaluate.js';
+import { PART_LABELS } from './parts.js';
 import { CAUSE_LABELS } from './labels.js';
 import { bothRisksOf, plannedTolerableRate, STAGE_DECISION_WORDS, twoStageOf } from './plan.js';
 import { TolrateInputError } from '../errors.js';
@@ -74,10 +75,10 @@ function causesText(devs: DeviationRecord[]): string {
 
 /** Per-attribute findings: the rates, then the qualitative review that may override them. */
 export function attributeFindings(wp: Workpaper, evaluation: Evaluation): AttributeFinding[] {
-  const counts = countResults(wp);
+  const byAttribute = deviationRecordsByAttribute(wp);
   const illustrative = isIllustrative(wp);
   return evaluation.attributes.map((ev) => {
-    const devs = counts.find((c) => c.attributeId === ev.attributeId)?.deviationRecords ?? [];
+    const devs = byAttribute.get(ev.attributeId) ?? [];
     const intentional = devs.filter((d) => escalates(d.result).intentional);
     const systemic = devs.filter((d) => escalates(d.result).systemic);
     const beta = 1 - ev.confidence;
@@ -95,6 +96,18 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
             ? `No deviations in ${ev.sampleSize} items. The selection was haphazard, so the result cannot support a statistical conclusion and sampling risk is not quantified.`
             : `${ev.deviations} deviation(s) in ${ev.sampleSize} items. The selection was haphazard, so sampling risk is not quantified and the result does not support the planned reliance without a larger, randomly selected sample or other evidence.`,
       );
+    } else if (ev.parts && ev.combined) {
+      // A test in parts: each part's own figures, then the whole period's combined limit.
+      for (const p of ev.parts) {
+        parts.push(`${PART_LABELS[p.part]} part: ${p.deviations} deviation(s) in ${int(p.sampleSize)} of ${int(p.populationSize)} items, sample deviation rate ${pct(p.sampleRate)}, its own upper limit ${pctUp(p.upperLimit)}.`);
+      }
+      const cons = `the conservative bound (the two parts' own limits added, each at ${pctPlain(1 - beta / 2)} confidence) is ${pctUp(ev.combined.conservativeRate)}`;
+      parts.push(
+        ev.combined.rate !== null
+          ? `Whole period: ${ev.deviations} deviation(s) in ${int(ev.sampleSize)} items; the upper deviation limit over both parts is ${pctLimit(ev.combined.rate, ev.tolerableRate)} (${int(ev.combined.deviationsInPopulation!)} deviations in the ${int(ev.parts.reduce((s, p) => s + p.populationSize, 0))} items) at ${pctPlain(ev.confidence)} confidence against a tolerable rate of ${pctPlain(ev.tolerableRate)}; ${cons}.`
+          : `Whole period: ${ev.deviations} deviation(s) in ${int(ev.sampleSize)} items; the exact limit over both parts could not be computed (${ev.combined.note ?? 'the search is too large'}), so ${cons}, which is used for the decision against a tolerable rate of ${pctPlain(ev.tolerableRate)}.`,
+      );
+      parts.push(byRates ? 'The rates support the planned reliance for the whole period.' : 'The rates do not support the planned reliance for the whole period.');
     } else if (ev.stage) {
       const two = twoStageOf(wp);
       const st = ev.stage;
@@ -118,7 +131,7 @@ export function attributeFindings(wp: Workpaper, evaluation: Evaluation): Attrib
     let supports = byRates;
     let overridden = false;
     if (intentional.length > 0) {
-      parts.push(`${intentional.length} deviation(s) are or may be intentional (${intentional.map((d) => d.key).join(', ')}): this is escalated whatever the rates say, and reliance is not supported.`);
+      parts.push(`${intentional.length} deviation(s) are or may be intentional (${intentional.map((d) => (d.part ? `${d.key}, ${d.part}` : d.key)).join(', ')}): this is escalated whatever the rates say, and reliance is not supported.`);
       if (supports) overridden = true;
       supports = false;
     }
@@ -170,7 +183,7 @@ export function proposeFollowUps(wp: Workpaper, evaluation: Evaluation, findings
         kind: 'other',
         description: `No extension of the sample is proposed for ${f.attributeId}: the two-stage plan already had its second look${ev.stage.reached === 1 ? ' (here the first stage alone decided)' : ''}, and testing more items after it would raise the risk of overreliance above the planned ${pctPlain(1 - ev.confidence)}.`,
       });
-    } else if (!ev.illustrative && ev.extension === null && !intentional) {
+    } else if (!ev.illustrative && ev.extension === null && !intentional && !ev.parts) {
       out.push({
         kind: 'other',
         description: `Extending the sample for ${f.attributeId} is not practical: even with no further deviations no reasonable extension reaches the planned risk.`,

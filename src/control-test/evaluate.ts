@@ -3,7 +3,8 @@
  * limit at the planned confidence, the achieved risk of overreliance at the tolerable rate, the
  * decision the rates alone give, and the extension that would be needed. Pure: no I/O.
  */
-import { extensionRisk, extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
+import { combinedUpperLimit, extensionRisk, extensionSize, overrelianceRisk, upperLimit, withinRisk } from '../stats/index.js';
+import { PART_LABELS, partView, type Part } from './parts.js';
 import { NoPracticalSizeError, TolrateInputError } from '../errors.js';
 import { progress, testedResults, testedWork, worklist } from './worklist.js';
 import { stageDecision, twoStageOf, twoStageRisk } from './plan.js';
@@ -12,6 +13,7 @@ import type {
   AttributeEvaluation,
   AttributeResult,
   Evaluation,
+  PartEvaluation,
   ItemResult,
   Model,
   Workpaper,
@@ -22,6 +24,8 @@ export interface DeviationRecord {
   seq: number;
   attributeId: string;
   result: Extract<AttributeResult, { result: 'deviation' }>;
+  /** In a test done in parts: the part the item belongs to. */
+  part?: Part;
 }
 
 export interface AttributeCounts {
@@ -49,9 +53,9 @@ export function modelPopulationSize(wp: Workpaper): number | undefined {
   return wp.population?.fingerprint.rowCount;
 }
 
-/** True when the figures cannot support a statistical conclusion. */
+/** True when the figures cannot support a statistical conclusion (non-statistical, or any part selected haphazardly). */
 export function isIllustrative(wp: Workpaper): boolean {
-  return wp.approach?.kind === 'non-statistical' || wp.selection?.method === 'haphazard';
+  return wp.approach?.kind === 'non-statistical' || wp.selection?.method === 'haphazard' || wp.rollForward?.selection?.method === 'haphazard';
 }
 
 /**
@@ -98,6 +102,26 @@ export function countResults(wp: Workpaper): AttributeCounts[] {
     }
     return out;
   });
+}
+
+/**
+ * The deviations of every attribute over the whole test: for a test in parts, each part's
+ * (marked with its part), interim first. Used by the qualitative review, which looks at every
+ * deviation found in the period.
+ */
+export function deviationRecordsByAttribute(wp: Workpaper): Map<string, DeviationRecord[]> {
+  const out = new Map<string, DeviationRecord[]>();
+  const parts: Part[] = wp.rollForward ? ['interim', 'roll-forward'] : ['interim'];
+  for (const p of parts) {
+    const view = wp.rollForward ? partView(wp, p) : wp;
+    if (!view.selection) continue;
+    for (const c of countResults(view)) {
+      const list = out.get(c.attributeId) ?? [];
+      list.push(...c.deviationRecords.map((d) => (wp.rollForward ? { ...d, part: p } : d)));
+      out.set(c.attributeId, list);
+    }
+  }
+  return out;
 }
 
 /** Figures for one attribute from n and k (used by evaluation and by re-performance). */
@@ -196,24 +220,36 @@ function byPlan(wp: Workpaper, f: AttributeEvaluation, c: AttributeCounts): Attr
   return f;
 }
 
-/** Evaluate every attribute of a workpaper whose results are recorded. */
+/** Evaluate every attribute of a workpaper whose results are recorded (both parts of a test done in parts). */
 export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
+  if (wp.rollForward) return { attributes: evaluateInParts(wp), evaluatedAt: now.toISOString() };
+  return { attributes: evaluateOne(wp), evaluatedAt: now.toISOString() };
+}
+
+/** The evaluation of one test (or one part's view of it), each attribute from its own results. */
+function evaluateOne(wp: Workpaper, part?: Part): AttributeEvaluation[] {
+  const which = part === 'roll-forward' ? `${PART_LABELS[part]} part: ` : '';
   if (!wp.approach) throw new TolrateInputError('The workpaper has no approach: plan the test first.');
-  if (!wp.results) throw new TolrateInputError('No results are recorded yet: run `tolrate record FILE` first.');
+  if (!wp.results) {
+    throw new TolrateInputError(
+      part === 'roll-forward' ? 'No roll-forward results are recorded yet: run `tolrate record FILE --part roll-forward` first.' : 'No results are recorded yet: run `tolrate record FILE` first.',
+      'RESULTS_INCOMPLETE',
+    );
+  }
   const next = worklist(wp).next;
   if (next) {
     const p = progress(wp);
-    throw new TolrateInputError(`Some items have no result yet (${p.total - p.recorded} of ${p.total}, from ${next.item.key}); record them before evaluating.`, 'RESULTS_INCOMPLETE');
+    throw new TolrateInputError(`${which}Some items have no result yet (${p.total - p.recorded} of ${p.total}, from ${next.item.key}); record them before evaluating.`, 'RESULTS_INCOMPLETE');
   }
   const counts = countResults(wp);
   const incomplete = counts.filter((c) => c.missing.length > 0);
   if (incomplete.length > 0) {
     const lines = incomplete.map((c) => `${c.attributeId}: no result for ${c.missing.slice(0, 8).join(', ')}${c.missing.length > 8 ? ` and ${c.missing.length - 8} more` : ''}`);
-    throw new TolrateInputError('Some tested items have no result yet; record them before evaluating:', 'RESULTS_INCOMPLETE', lines);
+    throw new TolrateInputError(`${which}Some tested items have no result yet; record them before evaluating:`, 'RESULTS_INCOMPLETE', lines);
   }
   const illustrative = isIllustrative(wp);
   const populationSize = modelPopulationSize(wp);
-  const attributes = (wp.attributes ?? []).map((a, i) => {
+  return (wp.attributes ?? []).map((a, i) => {
     const c = counts[i]!;
     const figures = attributeFigures({
       attributeId: a.id,
@@ -228,7 +264,77 @@ export function evaluate(wp: Workpaper, now = new Date()): Evaluation {
     });
     return illustrative ? figures : byPlan(wp, figures, c);
   });
-  return { attributes, evaluatedAt: now.toISOString() };
+}
+
+/**
+ * A test done in parts: each part evaluated on its own (its n, k, sample rate and its own limit
+ * under the test's model), and the whole period from the exact upper limit over both parts
+ * (stats/combined-upper-limit.ts: the exact test inverted over the parts, the allocation of the
+ * deviations across them taken at its worst), with the conservative Bonferroni bound beside it.
+ * The attribute's own figures are then the whole period's: n and k added, the combined limit,
+ * the combined risk of overreliance, and the decision the combined limit gives against the
+ * tolerable rate. When the exact search is too large, the decision uses the conservative bound
+ * and the note says so. No extension is computed for a test in parts (which part to extend is
+ * the practitioner's call).
+ */
+function evaluateInParts(wp: Workpaper): AttributeEvaluation[] {
+  const rf = wp.rollForward!;
+  if (!rf.selection || !rf.population || rf.sampleSize === undefined) {
+    throw new TolrateInputError('The roll-forward part is not planned yet: run `tolrate rollforward FILE` to plan it.', 'RESULTS_INCOMPLETE');
+  }
+  const views = { interim: partView(wp, 'interim'), 'roll-forward': partView(wp, 'roll-forward') };
+  const interim = evaluateOne(views.interim, 'interim');
+  const later = evaluateOne(views['roll-forward'], 'roll-forward');
+  const illustrative = isIllustrative(wp);
+  return interim.map((a, i) => {
+    const b = later[i]!;
+    const sizes = { interim: views.interim.population!.fingerprint.rowCount, 'roll-forward': views['roll-forward'].population!.fingerprint.rowCount };
+    const part = (p: Part, ev: AttributeEvaluation): PartEvaluation => ({
+      part: p,
+      populationSize: sizes[p],
+      sampleSize: ev.sampleSize,
+      deviations: ev.deviations,
+      sampleRate: ev.sampleRate,
+      upperLimit: ev.upperLimit,
+      ...(ev.deviationsInPopulation !== undefined ? { deviationsInPopulation: ev.deviationsInPopulation } : {}),
+    });
+    const c = combinedUpperLimit({
+      parts: [
+        { populationSize: sizes.interim, sampleSize: a.sampleSize, deviations: a.deviations },
+        { populationSize: sizes['roll-forward'], sampleSize: b.sampleSize, deviations: b.deviations },
+      ],
+      confidence: a.confidence,
+      tolerableRate: a.tolerableRate,
+    });
+    const exact = c.deviationsInPopulation !== null && c.rate !== null;
+    const n = a.sampleSize + b.sampleSize;
+    const k = a.deviations + b.deviations;
+    const out: AttributeEvaluation = {
+      attributeId: a.attributeId,
+      model: a.model,
+      confidence: a.confidence,
+      tolerableRate: a.tolerableRate,
+      sampleSize: n,
+      deviations: k,
+      sampleRate: k / n,
+      upperLimit: exact ? c.rate! : c.conservative.rate,
+      deviationsInPopulation: exact ? c.deviationsInPopulation! : c.conservative.deviationsInPopulation,
+      achievedRisk: exact && c.achievedRisk != null ? c.achievedRisk : c.conservativeRisk!,
+      supportedByRates: c.supported!,
+      illustrative,
+      extension: null,
+      parts: [part('interim', a), part('roll-forward', b)],
+      combined: {
+        deviationsInPopulation: c.deviationsInPopulation,
+        rate: c.rate,
+        conservativeDeviations: c.conservative.deviationsInPopulation,
+        conservativeRate: c.conservative.rate,
+        supported: c.supported!,
+        ...(c.note ? { note: `${c.note} The whole-period decision uses the conservative bound.` } : {}),
+      },
+    };
+    return out;
+  });
 }
 
 /** The figures of a recorded evaluation that differ from a fresh one, each named (empty when they agree). */
@@ -264,9 +370,45 @@ export function evaluationDifferences(recorded: Evaluation, fresh: Evaluation, s
     if ((r.deviationsInPopulation ?? null) !== (f.deviationsInPopulation ?? null)) {
       diffs.push(`${id}: recorded upper limit count ${r.deviationsInPopulation ?? '(none)'}, recomputed ${f.deviationsInPopulation ?? '(none)'}`);
     }
+    diffs.push(...partDifferences(id, r, f, show, close));
   }
   for (const r of recorded.attributes) {
     if (!fresh.attributes.some((f) => f.attributeId === r.attributeId)) diffs.push(`${r.attributeId}: evaluated, but the test has no such attribute`);
   }
+  return diffs;
+}
+
+/** A test in parts: each part's figures and the whole-period limit, recorded against recomputed, each named. */
+function partDifferences(
+  id: string,
+  r: AttributeEvaluation,
+  f: AttributeEvaluation,
+  show: { pct: (x: number) => string; exact: (x: number) => string },
+  close: (a: number, b: number) => boolean,
+): string[] {
+  const diffs: string[] = [];
+  if (!f.parts && !r.parts) return diffs;
+  if (!r.parts || !r.combined) return [`${id}: the figures of the interim and roll-forward parts are not recorded`];
+  if (!f.parts || !f.combined) return [`${id}: recorded as a test in parts, but the workpaper has no roll-forward part`];
+  for (const fp of f.parts) {
+    const rp = r.parts.find((x) => x.part === fp.part);
+    const w = `${id}, ${fp.part} part`;
+    if (!rp) {
+      diffs.push(`${w}: not recorded`);
+      continue;
+    }
+    if (rp.populationSize !== fp.populationSize) diffs.push(`${w}: recorded population ${rp.populationSize}, the population gives ${fp.populationSize}`);
+    if (rp.sampleSize !== fp.sampleSize) diffs.push(`${w}: recorded n = ${rp.sampleSize}, the results give ${fp.sampleSize}`);
+    if (rp.deviations !== fp.deviations) diffs.push(`${w}: recorded ${rp.deviations} deviation(s), the results give ${fp.deviations}`);
+    if (!close(rp.sampleRate, fp.sampleRate)) diffs.push(`${w}: recorded sample deviation rate ${show.exact(rp.sampleRate)}, recomputed ${show.exact(fp.sampleRate)}`);
+    if (!close(rp.upperLimit, fp.upperLimit)) diffs.push(`${w}: recorded upper deviation limit ${show.exact(rp.upperLimit)}, recomputed ${show.exact(fp.upperLimit)}`);
+  }
+  const rc = r.combined;
+  const fc = f.combined;
+  if ((rc.deviationsInPopulation ?? null) !== (fc.deviationsInPopulation ?? null)) {
+    diffs.push(`${id}, whole period: recorded combined limit ${rc.deviationsInPopulation ?? '(none)'} deviation(s), recomputed ${fc.deviationsInPopulation ?? '(none)'}`);
+  }
+  if (rc.conservativeDeviations !== fc.conservativeDeviations) diffs.push(`${id}, whole period: recorded conservative bound ${rc.conservativeDeviations} deviation(s), recomputed ${fc.conservativeDeviations}`);
+  if (rc.supported !== fc.supported) diffs.push(`${id}, whole period: recorded that the combined limit ${rc.supported ? 'supports' : 'does not support'} reliance; recomputed: it ${fc.supported ? 'does' : 'does not'}`);
   return diffs;
 }

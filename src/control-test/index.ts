@@ -15,3 +15,4 @@ export * from './state.js';
 export * from './review.js';
 export * from './evidence.js';
 export * from './plan.js';
+export * from './parts.js';

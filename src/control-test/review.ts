@@ -24,11 +24,11 @@ export const REVIEW_SECTION_LABELS: Record<ReviewSection, string> = {
 export const SECTION_STEPS: Record<ReviewSection, StepName[]> = {
   engagement: ['plan.engagement', 'plan.control'],
   attributes: ['plan.attributes'],
-  population: ['plan.population'],
-  approach: ['plan.approach'],
-  selection: ['plan.selection'],
-  results: ['record'],
-  evaluation: ['record', 'conclude'],
+  population: ['plan.population', 'rollforward.period', 'rollforward.population'],
+  approach: ['plan.approach', 'rollforward.size'],
+  selection: ['plan.selection', 'rollforward.selection'],
+  results: ['record', 'rollforward.record'],
+  evaluation: ['record', 'rollforward.record', 'conclude'],
   conclusion: ['conclude'],
   severity: ['conclude'],
 };
@@ -123,7 +123,7 @@ export function addSitting(wp: Workpaper, by: string, at: Date, warning?: string
 const NOT_RECORD = new Set(['signoffs', 'review', 'amendments', 'memos', 'updatedAt', 'unfinishedStep', 'earlierConclusion', 'log']);
 
 /** The order of the record's members, for listing changes as the test runs. */
-const ORDER = ['engagement', 'control', 'attributes', 'population', 'approach', 'selection', 'results', 'evaluation', 'conclusion'];
+const ORDER = ['engagement', 'control', 'attributes', 'population', 'approach', 'selection', 'results', 'rollForward', 'evaluation', 'conclusion'];
 /** When a step was answered: it changes with every answer, so it is not listed as a change. */
 const TIMES = new Set(['scannedAt', 'selectedAt', 'recordedAt', 'evaluatedAt', 'concludedAt']);
 

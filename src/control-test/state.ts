@@ -11,6 +11,7 @@ import { evaluate, evaluationDifferences } from './evaluate.js';
 import { conclusionProblems } from './conclude.js';
 import { clearSteps, openSteps, STEP_LABELS, type StepName } from './steps.js';
 import { worklistProblems } from './worklist.js';
+import { partView } from './parts.js';
 import { notes, noteStatus } from './review.js';
 
 export interface TestState {
@@ -33,7 +34,11 @@ export interface TestState {
 export function testState(wp: Workpaper): TestState {
   const open = openSteps(wp);
   const integrity = verifyLog(wp);
-  const worklist = worklistProblems(wp, { requireComplete: wp.evaluation !== undefined || wp.conclusion !== undefined });
+  const requireComplete = wp.evaluation !== undefined || wp.conclusion !== undefined;
+  const worklist = [
+    ...worklistProblems(wp, { requireComplete }),
+    ...(wp.rollForward ? worklistProblems(partView(wp, 'roll-forward'), { requireComplete }).map((p) => `roll-forward part: ${p}`) : []),
+  ];
   let evaluation: string[] = [];
   let fresh: Evaluation | undefined;
   if (wp.evaluation && wp.results) {

@@ -5,9 +5,14 @@
 import { canonicalJson } from '../workpaper/log.js';
 import type { Workpaper } from '../workpaper/schema.js';
 import { recordingComplete } from './worklist.js';
+import { partView } from './parts.js';
 
 export const PLAN_STEPS = ['plan.engagement', 'plan.control', 'plan.attributes', 'plan.population', 'plan.approach', 'plan.selection'] as const;
-export const STEPS = [...PLAN_STEPS, 'record', 'conclude', 'signoff'] as const;
+/** The roll-forward part's steps (a test done at an interim date): open only when `rollForward` is recorded. */
+export const ROLL_FORWARD_STEPS = ['rollforward.period', 'rollforward.population', 'rollforward.size', 'rollforward.selection', 'rollforward.record'] as const;
+/** The roll-forward's planning steps (everything before its results). */
+export const ROLL_FORWARD_PLAN_STEPS = ['rollforward.period', 'rollforward.population', 'rollforward.size', 'rollforward.selection'] as const;
+export const STEPS = [...PLAN_STEPS, 'record', ...ROLL_FORWARD_STEPS, 'conclude', 'signoff'] as const;
 export type StepName = (typeof STEPS)[number];
 
 export const STEP_LABELS: Record<StepName, string> = {
@@ -18,6 +23,11 @@ export const STEP_LABELS: Record<StepName, string> = {
   'plan.approach': 'Approach and sample size',
   'plan.selection': 'Selection',
   record: 'Results',
+  'rollforward.period': 'Roll-forward: interim date',
+  'rollforward.population': 'Roll-forward: population',
+  'rollforward.size': 'Roll-forward: sample size',
+  'rollforward.selection': 'Roll-forward: selection',
+  'rollforward.record': 'Roll-forward: results',
   conclude: 'Evaluation and conclusion',
   signoff: 'Sign-off',
 };
@@ -31,12 +41,54 @@ export const STEP_MEMBERS: Record<StepName, ReadonlyArray<keyof Workpaper>> = {
   'plan.approach': ['approach'],
   'plan.selection': ['selection'],
   record: ['results'],
+  // The roll-forward steps write parts of the one member `rollForward` (ROLL_FORWARD_MEMBERS).
+  'rollforward.period': ['rollForward'],
+  'rollforward.population': ['rollForward'],
+  'rollforward.size': ['rollForward'],
+  'rollforward.selection': ['rollForward'],
+  'rollforward.record': ['rollForward'],
   conclude: ['evaluation', 'conclusion'],
   signoff: ['signoffs'],
 };
 
+type RollForwardStep = (typeof ROLL_FORWARD_STEPS)[number];
+
+/** The members of `rollForward` each roll-forward step writes (the dates step writes the part itself). */
+export const ROLL_FORWARD_MEMBERS: Record<RollForwardStep, readonly string[]> = {
+  'rollforward.period': ['interimDate', 'periodStart', 'periodEnd'],
+  'rollforward.population': ['population'],
+  'rollforward.size': ['sampleSize', 'rationale', 'sizing'],
+  'rollforward.selection': ['selection'],
+  'rollforward.record': ['results'],
+};
+
+function isRollForwardStep(step: StepName): step is RollForwardStep {
+  return (ROLL_FORWARD_STEPS as readonly string[]).includes(step);
+}
+
+/** True when the workpaper holds something a step writes (a step revisited, or one a change would clear). */
+export function hasStepMembers(wp: Workpaper, step: StepName): boolean {
+  if (isRollForwardStep(step)) {
+    const rf = wp.rollForward as Record<string, unknown> | undefined;
+    return rf !== undefined && ROLL_FORWARD_MEMBERS[step].some((m) => rf[m] !== undefined);
+  }
+  return STEP_MEMBERS[step].some((m) => (wp as Record<string, unknown>)[m] !== undefined);
+}
+
 export function isAnswered(wp: Workpaper, step: StepName): boolean {
+  const rf = wp.rollForward;
   switch (step) {
+    // The roll-forward part is optional: without one its steps are not open.
+    case 'rollforward.period':
+      return true;
+    case 'rollforward.population':
+      return !rf || rf.population !== undefined;
+    case 'rollforward.size':
+      return !rf || rf.sampleSize !== undefined;
+    case 'rollforward.selection':
+      return !rf || rf.selection !== undefined;
+    case 'rollforward.record':
+      return !rf || recordingComplete(partView(wp, 'roll-forward'));
     case 'plan.engagement':
       return wp.engagement !== undefined;
     case 'plan.control':
@@ -75,16 +127,39 @@ export function openSteps(wp: Workpaper, steps: readonly StepName[] = STEPS): St
  * change the population (only the sizes, the sheet's result columns and what follows).
  */
 export function dependents(step: StepName, wp?: Workpaper, value?: unknown): StepName[] {
+  // The roll-forward's steps depend on anything only in a test that has a roll-forward part.
+  return dependentSteps(step, wp, value).filter((x) => wp?.rollForward !== undefined || !isRollForwardStep(x));
+}
+
+function dependentSteps(step: StepName, wp?: Workpaper, value?: unknown): StepName[] {
   const from = (first: StepName) => STEPS.slice(STEPS.indexOf(first)).filter((x) => x !== 'signoff');
-  if (step === 'plan.engagement') return [];
+  // The roll-forward part depends on the interim part only through the approach (its size uses
+  // the test's parameters); its dates, population and selection are its own.
+  const rfFrom = (first: RollForwardStep): StepName[] => [...ROLL_FORWARD_STEPS.slice(ROLL_FORWARD_STEPS.indexOf(first)), 'conclude'];
+  const interim = (...steps: StepName[]): StepName[] => STEPS.filter((x) => steps.includes(x));
+  if (step === 'plan.engagement') {
+    // A changed period moves the period end the roll-forward runs to: the roll-forward is planned again.
+    const e = value as { periodStart?: string; periodEnd?: string } | undefined;
+    const was = wp?.engagement;
+    return wp?.rollForward && e && was && (e.periodStart !== was.periodStart || e.periodEnd !== was.periodEnd) ? rfFrom('rollforward.period') : [];
+  }
   if (step === 'plan.control') {
     const freq = (value as { frequency?: string } | undefined)?.frequency;
     const ap = wp?.approach;
-    return ap?.kind === 'non-statistical' && ap.policy && freq !== undefined && freq !== ap.policy.frequency ? from('plan.approach') : [];
+    return ap?.kind === 'non-statistical' && ap.policy && freq !== undefined && freq !== ap.policy.frequency ? interim('plan.approach', 'plan.selection', 'record', 'rollforward.size', 'rollforward.selection', 'rollforward.record', 'conclude') : [];
   }
-  if (step === 'plan.attributes') return from('plan.approach');
+  if (step === 'plan.attributes' || step === 'plan.population') {
+    return interim('plan.approach', 'plan.selection', 'record', 'rollforward.size', 'rollforward.selection', 'rollforward.record', 'conclude');
+  }
+  if (step === 'plan.approach') return interim('plan.selection', 'record', 'rollforward.size', 'rollforward.selection', 'rollforward.record', 'conclude');
+  if (step === 'plan.selection') return interim('record', 'conclude');
+  if (step === 'record') return ['conclude'];
+  if (isRollForwardStep(step)) {
+    const i = ROLL_FORWARD_STEPS.indexOf(step);
+    return i + 1 < ROLL_FORWARD_STEPS.length ? rfFrom(ROLL_FORWARD_STEPS[i + 1]!) : ['conclude'];
+  }
   const i = STEPS.indexOf(step);
-  return STEPS.slice(i + 1).filter((x) => x !== 'signoff');
+  return from(STEPS[i + 1] ?? step).filter((x) => x !== step);
 }
 
 /**
@@ -95,7 +170,20 @@ export function dependents(step: StepName, wp?: Workpaper, value?: unknown): Ste
  */
 export function clearSteps(wp: Workpaper, steps: readonly StepName[]): Workpaper {
   const out: Record<string, unknown> = { ...wp };
-  for (const st of steps) for (const m of STEP_MEMBERS[st]) delete out[m];
+  for (const st of steps) {
+    if (isRollForwardStep(st)) {
+      if (!wp.rollForward) continue;
+      // The dates step clears the whole part; the others only what they wrote.
+      if (st === 'rollforward.period') delete out.rollForward;
+      else if (out.rollForward) {
+        const rf: Record<string, unknown> = { ...(out.rollForward as Record<string, unknown>) };
+        for (const m of ROLL_FORWARD_MEMBERS[st]) delete rf[m];
+        out.rollForward = rf;
+      }
+      continue;
+    }
+    for (const m of STEP_MEMBERS[st]) delete out[m];
+  }
   if (steps.includes('conclude') && wp.conclusion) out.earlierConclusion = wp.conclusion;
   if (steps.length > 0) delete out.signoffs;
   return out as Workpaper;

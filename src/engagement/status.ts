@@ -41,6 +41,8 @@ export interface TestEntry {
   controlDescription?: string;
   approach?: 'statistical' | 'non-statistical';
   sampleSize?: number;
+  /** A test done at an interim date: the interim date and the roll-forward's size (sampleSize is the interim part's). */
+  rollForward?: { interimDate: string; sampleSize?: number };
   attributes: AttributeStatus[];
   /** The first step not answered, or "complete". */
   stepReached: string;
@@ -106,6 +108,7 @@ export function testEntry(wp: Workpaper, path: string, asOf: string): TestEntry 
     ...(wp.engagement ? { reference: wp.engagement.reference } : {}),
     ...(wp.control ? { control: wp.control.id, controlDescription: wp.control.description } : {}),
     ...(wp.approach ? { approach: wp.approach.kind, sampleSize: wp.approach.sampleSize } : {}),
+    ...(wp.rollForward ? { rollForward: { interimDate: wp.rollForward.interimDate, ...(wp.rollForward.sampleSize !== undefined ? { sampleSize: wp.rollForward.sampleSize } : {}) } } : {}),
     attributes,
     stepReached: open ? STEP_LABELS[open] : 'complete',
     review: rv,

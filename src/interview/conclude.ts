@@ -25,6 +25,7 @@ export { FOLLOW_UP_LABELS };
 
 /** The evaluation table as text lines (also used by the demo narrative). */
 export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
+  if (ev.attributes.some((a) => a.parts)) return partsEvaluationLines(ev);
   const rows = ev.attributes.map((a) => [
     a.attributeId,
     int(a.sampleSize),
@@ -57,6 +58,45 @@ export function evaluationLines(wp: Workpaper, ev: Evaluation): string[] {
         '  ',
       ),
     );
+  }
+  return lines;
+}
+
+/** A test done in parts: each part's figures, then the whole period's limit over both parts. */
+function partsEvaluationLines(ev: Evaluation): string[] {
+  const rows: string[][] = [];
+  for (const a of ev.attributes) {
+    for (const p of a.parts ?? []) {
+      rows.push([a.attributeId, p.part, int(p.populationSize), int(p.sampleSize), int(p.deviations), pct(p.sampleRate), pctUp(p.upperLimit), '', '']);
+    }
+    const c = a.combined!;
+    rows.push([
+      a.attributeId,
+      'whole period',
+      int((a.parts ?? []).reduce((s, p) => s + p.populationSize, 0)),
+      int(a.sampleSize),
+      int(a.deviations),
+      pct(a.sampleRate),
+      c.rate !== null ? pctLimit(c.rate, a.tolerableRate) : 'not computed',
+      `${pctUp(c.conservativeRate)}`,
+      a.illustrative ? 'illustrative' : a.supportedByRates ? 'supported' : 'not supported',
+    ]);
+  }
+  const lines = table(['Attribute', 'Part', 'N', 'n', 'k', 'Sample rate', 'Upper limit', 'Conservative', 'By the rates'], rows);
+  const first = ev.attributes[0];
+  if (first) {
+    lines.push(
+      ...wrap(
+        `Upper limits at ${pct(first.confidence, 0)} confidence, rounded up: each part's own (${first.model}), and for the whole period the exact limit over both parts ` +
+          `(the split of the deviations between the parts taken at its worst), with the conservative bound beside it (the parts' own limits at ${pct(1 - (1 - first.confidence) / 2)} confidence, added). ` +
+          'The whole-period decision compares the exact limit with the tolerable rate (the conservative bound when the exact one cannot be computed).',
+        92,
+        '  ',
+      ),
+    );
+  }
+  if (ev.attributes.some((a) => a.illustrative)) {
+    lines.push(...wrap('The sample is non-statistical or was selected haphazardly: sampling risk cannot be quantified, so these figures are illustrative only and cannot support a statistical conclusion.', 92, '  '));
   }
   return lines;
 }

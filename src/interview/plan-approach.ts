@@ -23,7 +23,7 @@ export const MODEL_LABELS: Record<Model, string> = {
   poisson: 'Poisson (approximation to the binomial; the factor method)',
 };
 
-function modelWords(model: Model, N: number): string {
+export function modelWords(model: Model, N: number): string {
   return model === 'hypergeometric' ? `hypergeometric model, N = ${int(N)}` : `${model} model`;
 }
 
@@ -65,7 +65,7 @@ export function neighbourGrid(plan: { confidence: number; tolerableRate: number;
   return table(['Expected \\ Tolerable', ...tdrs.map((t) => (t <= 0 ? '—' : pctPlain(t)))], rows.filter((r) => r[0] !== '—'));
 }
 
-async function askSizeChoice(
+export async function askSizeChoice(
   s: Session,
   computed: number,
   N: number,

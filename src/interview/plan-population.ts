@@ -10,6 +10,7 @@ import { TolrateInputError } from '../errors.js';
 import type { Population, PopulationSource } from '../workpaper/schema.js';
 import { int } from '../util/format.js';
 import type { Session } from './session.js';
+import { partPeriod } from '../control-test/index.js';
 import { AnswerError, existingFile, NONE_ANSWER, optionalCount, optionalDecimal, optionalText, requiredText } from './parse.js';
 import { csvColumns, sheetList, xlsxColumns, xlsxSheets } from './columns.js';
 import { wrap } from './show.js';
@@ -72,7 +73,9 @@ function guessColumn(columns: readonly string[], re: RegExp): string | undefined
  */
 async function askPeriods(s: Session, old: Extract<PopulationSource, { kind: 'periods' }> | undefined): Promise<SourceTry> {
   const a = s.asker;
-  const e = s.wp.engagement!;
+  // The dates of the part being planned: the interim part ends at the interim date of a test done in parts.
+  const period = partPeriod(s.wp, 'interim')!;
+  const e = { periodStart: period.start, periodEnd: period.end };
   const fromControl = s.wp.control?.frequency;
   const frequency = await a.select({
     id: 'plan.population.frequency',
@@ -122,9 +125,10 @@ type SourceTry = { ok: true; source: PopulationSource; read: ReadSource; scan: P
  * answered (it failed, or was not accepted): its answers are the defaults, so a retry only
  * changes what was wrong. Without one, the saved population's answers are the defaults.
  */
-async function askSource(s: Session, previous?: PopulationSource): Promise<SourceTry> {
+async function askSource(s: Session, previous?: PopulationSource, defaultKind?: PopulationSource['kind']): Promise<SourceTry> {
   const a = s.asker;
   const old = previous ?? s.wp.population?.source;
+  const preset = old?.kind ?? defaultKind;
   const kind = await a.select({
     id: 'plan.population.kind',
     message: 'Where is the population?',
@@ -133,7 +137,7 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
       { value: 'ranges', name: 'Document-number ranges (e.g. 40001-52650), less voided numbers' },
       { value: 'periods', name: 'The occurrences of a periodic control: each month, quarter, week or working day of the period' },
     ],
-    default: old?.kind === 'ranges' ? 'ranges' : old?.kind === 'periods' ? 'periods' : 'file',
+    default: preset === 'ranges' ? 'ranges' : preset === 'periods' ? 'periods' : 'file',
   });
   if (kind === 'periods') return askPeriods(s, old?.kind === 'periods' ? old : undefined);
   if (kind === 'ranges') {
@@ -267,15 +271,16 @@ async function askSource(s: Session, previous?: PopulationSource): Promise<Sourc
   }
 }
 
-export async function askPopulation(s: Session): Promise<Population> {
+/** The population step. `defaultKind`: the kind of source offered first (the roll-forward offers the interim part's). */
+export async function askPopulation(s: Session, o: { defaultKind?: PopulationSource['kind']; heading?: string } = {}): Promise<Population> {
   const a = s.asker;
   const old = s.wp.population;
-  s.heading('Population');
+  s.heading(o.heading ?? 'Population');
   let got: Extract<SourceTry, { ok: true }>;
   let acceptedReason: string | undefined;
   let previous: PopulationSource | undefined;
   for (;;) {
-    const tried = await askSource(s, previous);
+    const tried = await askSource(s, previous, o.defaultKind);
     if (!tried.ok) {
       previous = tried.tried;
       s.print('  Choose the population again (your answers are kept as the defaults).');
@@ -284,10 +289,10 @@ export async function askPopulation(s: Session): Promise<Population> {
     got = tried;
     previous = got.source;
     s.print('', ...scanLines(got.scan));
-    const e = s.wp.engagement;
+    const pp = partPeriod(s.wp, 'interim');
     const dr = got.scan.fingerprint.dateRange;
-    if (e && dr && (dr.earliest < e.periodStart || dr.latest > e.periodEnd)) {
-      s.print(...wrap(`Warning: the dates run from ${dr.earliest} to ${dr.latest}, outside the period ${e.periodStart} to ${e.periodEnd}.`, 92, '  '));
+    if (pp && dr && (dr.earliest < pp.start || dr.latest > pp.end)) {
+      s.print(...wrap(`Warning: the dates run from ${dr.earliest} to ${dr.latest}, outside the period ${pp.start} to ${pp.end}.`, 92, '  '));
     }
     if (got.scan.fingerprint.rowCount === 0) {
       s.print('  The population is empty: there is nothing to sample.');

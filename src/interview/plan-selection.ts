@@ -175,14 +175,15 @@ async function haphazard(s: Session, n: number): Promise<Drawn> {
   }
 }
 
-export async function askSelection(s: Session): Promise<Selection> {
+/** The selection step. `defaultSheet`: the fieldwork sheet offered (the roll-forward part has its own). */
+export async function askSelection(s: Session, o: { defaultSheet?: string; sheetTitle?: string; heading?: string } = {}): Promise<Selection> {
   const a = s.asker;
   const pop = s.wp.population;
   const approach = s.wp.approach;
   if (!pop || !approach || !s.wp.attributes) throw new AnswerError('plan the population and the approach first');
   const N = pop.fingerprint.rowCount;
   const n = approach.sampleSize;
-  s.heading('Selection');
+  s.heading(o.heading ?? 'Selection');
   s.print(`  ${int(n)} items to select from ${int(N)}.`);
   let drawn: Drawn;
   for (;;) {
@@ -215,7 +216,7 @@ export async function askSelection(s: Session): Promise<Selection> {
   s.print(...table(['Seq', 'Role', 'Key', 'Row'], shown));
   if (items.length > 12) s.print(`  ... and ${int(items.length - 12)} more (all on the fieldwork sheet)`);
 
-  const suggested = s.wp.selection?.fieldworkSheet ?? defaultSheetName(s.path);
+  const suggested = s.wp.selection?.fieldworkSheet ?? o.defaultSheet ?? defaultSheetName(s.path);
   const sheetParse = (t: string): string => {
     const v = requiredText('The sheet')(t);
     const ext = extname(v).toLowerCase();
@@ -254,7 +255,7 @@ export async function askSelection(s: Session): Promise<Selection> {
     resultColumns: [...resultColumns(s.wp.attributes), ...FIELDWORK_COLUMNS],
     pickLists: pickLists(s.wp.attributes),
     notes: [
-      `${s.wp.engagement?.entity ?? ''} ${s.wp.control?.id ?? ''}: fieldwork sheet`,
+      `${s.wp.engagement?.entity ?? ''} ${s.wp.control?.id ?? ''}: ${o.sheetTitle ?? 'fieldwork sheet'}`,
       `Selection ${drawn.algorithm}`,
       ...(drawn.seed ? [`Seed ${drawn.seed}`] : []),
       ...(two ? [`Two-stage plan: test the ${two.firstSampleSize} stage-1 items first; test the ${two.secondSampleSize} stage-2 items only when the first stage is inconclusive (the interview says so, and for which attributes).`] : []),

@@ -394,9 +394,9 @@ export function recordSummary(wp: Workpaper): string[] {
 }
 
 /** The record step. Returns 'stopped' when the user chose to stop before every item was recorded. */
-export async function runRecordStep(s: Session): Promise<'done' | 'stopped'> {
+export async function runRecordStep(s: Session, title = 'Record the results'): Promise<'done' | 'stopped'> {
   const a = s.asker;
-  s.heading('Record the results');
+  s.heading(title);
   const wl = worklist(s.wp);
   const recorded = progress(s.wp).recorded;
   s.print(`  ${int(wl.items.length)} item(s) to test${recorded > 0 ? `; ${recorded} recorded so far, continuing at item ${wl.next ? wl.next.item.key : '-'}` : ''}.`);

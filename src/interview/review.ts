@@ -257,7 +257,8 @@ export async function answerOpenNotes(s: Session, runStep: (st: StepName) => Pro
   s.heading(`Review notes to answer (${open.length})`);
   for (const n of open) {
     s.print('', ...threadLines(n));
-    const steps = SECTION_STEPS[n.section];
+    // The roll-forward's steps only for a test that has a roll-forward part.
+    const steps = SECTION_STEPS[n.section].filter((st) => !st.startsWith('rollforward.') || s.wp.rollForward !== undefined);
     const what = await s.asker.select({
       id: `notes.${n.id}.action`,
       message: `${n.id}: how do you answer it?`,

@@ -11,6 +11,8 @@ import { int } from '../util/format.js';
 import { InterviewStopped, isStop, type Asker } from './asker.js';
 import { sessionFor, workpaperPath, type InterviewOptions } from './command.js';
 import { chooseRevisit, firstOpen, isAnswered, PLAN_STEPS, runOpenSteps, runStep, STEP_LABELS, STEPS, statusLines, type StepName } from './flow.js';
+import { hasStepMembers, partView, recordingComplete, ROLL_FORWARD_PLAN_STEPS, ROLL_FORWARD_STEPS, type Part } from '../control-test/index.js';
+import { interimPlanOpen, rollForwardBlocked } from './rollforward.js';
 import { loadPolicy } from './policy.js';
 import { requiredText } from './parse.js';
 import { progress } from './record.js';
@@ -26,6 +28,8 @@ export interface StageOptions extends InterviewOptions {
   policy?: string | undefined;
   /** Last year's workpaper to carry forward into a new file (`plan NEW --from LAST`). */
   from?: string | undefined;
+  /** `record --part`: which part of a test done in parts to record. */
+  part?: Part | undefined;
 }
 
 function shown(ctx: CommandContext, path: string): string {
@@ -114,14 +118,26 @@ function next(ctx: CommandContext, s: Session): void {
       s.print(...wrap(`The reviewer reviews it with: ${s.command('review', f)} (until the review is signed off, the memo is a DRAFT: ${s.command('memo', f)}).`));
     }
   }
-  else if (st === 'record') {
+  else if ((ROLL_FORWARD_PLAN_STEPS as readonly string[]).includes(st)) {
+    s.print('', `The interim part is recorded; the roll-forward part is not planned yet (next: ${STEP_LABELS[st]}).`, `Plan it with: ${s.command('rollforward', f)}`);
+  } else if (st === 'rollforward.record') {
+    const sheet = s.wp.rollForward?.selection?.fieldworkSheet;
+    s.print(
+      '',
+      `The roll-forward part is planned.${sheet ? ` Its fieldwork sheet is ${sheet} (beside the workpaper).` : ''}`,
+      `Test its items, then record the results with: ${s.command('record', f)} --part roll-forward`,
+    );
+  } else if (st === 'record') {
     const sheet = s.wp.selection?.fieldworkSheet;
     s.print(
       '',
       `Planning is complete.${sheet ? ` The fieldwork sheet is ${sheet} (beside the workpaper).` : ''}`,
       `Test the items, then record the results with: ${s.command('record', f)}`,
     );
-  } else if (st === 'conclude' || st === 'signoff') s.print('', `Next: ${s.command('conclude', f)}`);
+  } else if (st === 'conclude' || st === 'signoff') {
+    s.print('', `Next: ${s.command('conclude', f)}`);
+    if (st === 'conclude' && !s.wp.rollForward) s.print(`(Tested to an interim date? Add the roll-forward part first: ${s.command('rollforward', f)})`);
+  }
   else s.print('', `Next step: ${STEP_LABELS[st]}. Continue with: ${s.command('plan', f)}`);
 }
 
@@ -142,8 +158,19 @@ export async function planInterview(ctx: CommandContext, asker: Asker, o: StageO
     if (typeof s === 'number') return s;
     if (!s) return 1;
     const wasComplete = PLAN_STEPS.every((st) => isAnswered(s.wp, st));
-    await runOpenSteps(s, PLAN_STEPS);
-    if (wasComplete) {
+    const planned = await runOpenSteps(s, PLAN_STEPS);
+    // A test with a roll-forward part: its planning steps follow when they are open.
+    if (planned === 'done' && !firstOpen(s.wp, PLAN_STEPS) && firstOpen(s.wp, ROLL_FORWARD_PLAN_STEPS)) {
+      const rf = s.wp.rollForward!;
+      const over = s.now().toISOString().slice(0, 10) > rf.periodEnd;
+      const now = await s.asker.confirm({
+        id: 'plan.rollforward.now',
+        message: `Plan the roll-forward part (${rf.periodStart} to ${rf.periodEnd}) now?`,
+        help: over ? 'The period has ended: the roll-forward population can be complete.' : `The period runs to ${rf.periodEnd}: a population of the roll-forward's transactions is complete only after it (a periodic control's occurrences can be planned now).`,
+        default: over,
+      });
+      if (now) await runOpenSteps(s, ROLL_FORWARD_PLAN_STEPS);
+    } else if (wasComplete) {
       s.print('', 'Every planning step is answered.');
       await revisits(s, PLAN_STEPS, 'plan.revisit');
     }
@@ -152,7 +179,7 @@ export async function planInterview(ctx: CommandContext, asker: Asker, o: StageO
   });
 }
 
-/** `tolrate record FILE`. */
+/** `tolrate record FILE [--part interim|roll-forward]`. */
 export async function recordInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
   return guarded(async (hold) => {
     const s = await open(ctx, asker, o, true, hold);
@@ -164,7 +191,77 @@ export async function recordInterview(ctx: CommandContext, asker: Asker, o: Stag
         `Continue planning with: ${s.command('plan', shown(ctx, s.path))}`,
       ]);
     }
-    await runStep(s, 'record');
+    const part = await whichPart(ctx, s, o.part);
+    await runStep(s, part === 'roll-forward' ? 'rollforward.record' : 'record');
+    next(ctx, s);
+    return 0;
+  });
+}
+
+/**
+ * The part to record: the one asked for; else the interim part until it is complete, then the
+ * roll-forward part until it is; when both are complete, the user chooses.
+ */
+async function whichPart(ctx: CommandContext, s: Session, asked: Part | undefined): Promise<Part> {
+  const rf = s.wp.rollForward;
+  const rfPlanned = rf !== undefined && firstOpen(s.wp, ROLL_FORWARD_PLAN_STEPS) === undefined;
+  if (asked === 'roll-forward' && !rfPlanned) {
+    const st = rf ? firstOpen(s.wp, ROLL_FORWARD_PLAN_STEPS) : undefined;
+    throw new TolrateInputError(
+      rf ? `The roll-forward part is not planned yet (next: ${STEP_LABELS[st!]}), so there is nothing to record in it.` : 'This test has no roll-forward part.',
+      'PLAN_INCOMPLETE',
+      [rf ? `Plan it with: ${s.command('rollforward', shown(ctx, s.path))}` : `To test the rest of the period after an interim date, add one with: ${s.command('rollforward', shown(ctx, s.path))}`],
+    );
+  }
+  if (asked) return asked;
+  if (!rf || !rfPlanned) return 'interim';
+  if (!recordingComplete(s.wp)) {
+    s.print('', 'Interim part (its results come first; the roll-forward part follows).');
+    return 'interim';
+  }
+  if (!recordingComplete(partView(s.wp, 'roll-forward'))) {
+    s.print('', 'The interim part is recorded: recording the roll-forward part.');
+    return 'roll-forward';
+  }
+  return s.asker.select<Part>({
+    id: 'record.part',
+    message: 'Both parts are recorded. Which part do you want to change?',
+    choices: [
+      { value: 'interim', name: `Interim part (${s.wp.engagement!.periodStart} to ${rf.interimDate})` },
+      { value: 'roll-forward', name: `Roll-forward part (${rf.periodStart} to ${rf.periodEnd})` },
+    ],
+    default: 'roll-forward',
+  });
+}
+
+/** `tolrate rollforward FILE`: the interim date and the roll-forward part's plan. */
+export async function rollForwardInterview(ctx: CommandContext, asker: Asker, o: StageOptions): Promise<number> {
+  return guarded(async (hold) => {
+    const s = await open(ctx, asker, o, true, hold);
+    if (typeof s === 'number') return s;
+    if (!s) return 1;
+    const blocked = rollForwardBlocked(s.wp);
+    if (blocked) {
+      throw new TolrateInputError(`A roll-forward part cannot be added: ${blocked}.`, 'ROLL_FORWARD_REFUSED', [
+        s.wp.engagement ? 'Test the whole period in one sample instead.' : `Start with: ${s.command('plan', shown(ctx, s.path))}`,
+      ]);
+    }
+    const f = shown(ctx, s.path);
+    if (!hasStepMembers(s.wp, 'rollforward.period')) {
+      const got = await runStep(s, 'rollforward.period');
+      if (got !== 'done') return 0;
+    }
+    const interimOpen = interimPlanOpen(s.wp);
+    if (interimOpen) {
+      s.print('', `The interim part is not planned yet (next: ${interimOpen}).`, `Plan it with: ${s.command('plan', f)} (the roll-forward part's planning follows it).`);
+      return 0;
+    }
+    const wasPlanned = firstOpen(s.wp, ROLL_FORWARD_PLAN_STEPS) === undefined;
+    await runOpenSteps(s, ROLL_FORWARD_PLAN_STEPS);
+    if (wasPlanned) {
+      s.print('', 'The roll-forward part is planned.');
+      await revisits(s, ROLL_FORWARD_PLAN_STEPS, 'rollforward.revisit');
+    }
     next(ctx, s);
     return 0;
   });
@@ -176,18 +273,28 @@ export async function concludeInterview(ctx: CommandContext, asker: Asker, o: St
     const s = await open(ctx, asker, o, true, hold);
     if (typeof s === 'number') return s;
     if (!s) return 1;
-    const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record']);
+    const open1 = firstOpen(s.wp, [...PLAN_STEPS, 'record', ...ROLL_FORWARD_STEPS]);
     if (open1) {
+      const f = shown(ctx, s.path);
+      const counted = (wp: typeof s.wp, what: string) => {
+        const p = progress(wp);
+        return `${int(p.total - p.recorded)} of ${int(p.total)} ${what}items have no result yet`;
+      };
       const detail =
         open1 === 'record' && s.wp.selection
-          ? (() => {
-              const p = progress(s.wp);
-              return `${int(p.total - p.recorded)} of ${int(p.total)} items have no result yet`;
-            })()
-          : `next: ${STEP_LABELS[open1]}`;
-      throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [
-        open1 === 'record' ? `Record the results with: ${s.command('record', shown(ctx, s.path))}` : `Continue planning with: ${s.command('plan', shown(ctx, s.path))}`,
-      ]);
+          ? counted(s.wp, s.wp.rollForward ? 'interim ' : '')
+          : open1 === 'rollforward.record'
+            ? counted(partView(s.wp, 'roll-forward'), 'roll-forward ')
+            : `next: ${STEP_LABELS[open1]}`;
+      const how =
+        open1 === 'record'
+          ? `Record the results with: ${s.command('record', f)}`
+          : open1 === 'rollforward.record'
+            ? `Record the roll-forward results with: ${s.command('record', f)} --part roll-forward`
+            : (ROLL_FORWARD_STEPS as readonly string[]).includes(open1)
+              ? `Plan the roll-forward part with: ${s.command('rollforward', f)}`
+              : `Continue planning with: ${s.command('plan', f)}`;
+      throw new TolrateInputError(`The test cannot be concluded yet (${detail}).`, 'NOT_READY', [how]);
     }
     if (s.wp.conclusion) {
       const again = await asker.confirm({

@@ -17,7 +17,7 @@ import type {
   Workpaper,
 } from '../workpaper/schema.js';
 import type { MemoTemplate } from './template.js';
-import { countResults, evidenceSupports, ratesSupport, testedResults, testState, worklist } from '../control-test/index.js';
+import { countResults, evidenceSupports, PART_LABELS, partView, ratesSupport, testedResults, testState, worklist, type Part } from '../control-test/index.js';
 import { stateHash } from '../workpaper/log.js';
 import { tolerableDeviations } from '../stats/index.js';
 import { spreadView, type SpreadView } from './spread.js';
@@ -55,6 +55,8 @@ export interface DeviationView {
   /** The item's date and amount from the population (its date and amount columns), when known. */
   date: string;
   amount: string;
+  /** A test done in parts: the part of the item. */
+  part?: Part;
 }
 
 export interface ItemView {
@@ -103,6 +105,11 @@ export interface MemoModel {
   followUps: Array<FollowUp & { kindLabel: string }>;
   /** Names of the figures not yet available, for the command's summary. */
   missing: string[];
+  /**
+   * A test done in parts: the roll-forward part, as the memo of its own view would show it (its
+   * items, spares, values), beside the main model, which is the interim part and the whole period.
+   */
+  rollForward?: MemoModel;
   /** Said in the appendix when characters XML forbids were removed (see cleanForMemo). */
   cleanedNote?: string;
   /** How the sample spreads over the period; undefined when the population's tally by month was not recorded (older files). */
@@ -233,6 +240,12 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     }
   }
   deviations.sort((x, y) => x.seq - y.seq || x.attributeId.localeCompare(y.attributeId, 'en', { numeric: true }));
+  // A test in parts: the roll-forward part's own model (from its view), and its deviations after the interim ones.
+  const rfModel = wp.rollForward ? buildModel(partView(wp, 'roll-forward'), t, opts) : undefined;
+  if (rfModel) {
+    for (const d of deviations) d.part = 'interim';
+    deviations.push(...rfModel.deviations.map((d) => ({ ...d, part: 'roll-forward' as const })));
+  }
 
   const spares: SpareView[] = [];
   for (const it of resultItems) {
@@ -434,9 +447,11 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     logEntries: int(wp.log.length),
     lastLogHash: last?.hash,
     contentHash: stateHash(wp),
+    ...partValues(wp, rfModel),
   };
 
-  const spread = spreadView(wp);
+  // A test in parts: the spread shown is the interim part's, over the interim months.
+  const spread = spreadView(wp.rollForward ? partView(wp, 'interim') : wp);
   if (spread && spread.kind !== 'no-dates') values.spreadDateColumn = spread.dateColumn;
   if (spread?.kind === 'table') {
     values.spreadMonthsUnselected = spread.unselected.join(', ');
@@ -446,7 +461,26 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
   }
 
   const followUps = (wp.conclusion?.followUps ?? []).map((f) => ({ ...f, kindLabel: L.followUpKinds[f.kind] }));
-  return { wp, draft, notFinal, concluded, evaluation, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing, spread };
+  return { wp, draft, notFinal, concluded, evaluation, outcome, nonStatistical, haphazard, illustrative, values, attributes, deviations, items, spares, followUps, missing, spread, ...(rfModel ? { rollForward: rfModel } : {}) };
+}
+
+/** The placeholders of a test done in parts (undefined members for a test without a roll-forward). */
+function partValues(wp: Workpaper, rf: MemoModel | undefined): Record<string, string | undefined> {
+  const r = wp.rollForward;
+  if (!r || !rf) return {};
+  const N = (wp.population?.fingerprint.rowCount ?? 0) + (r.population?.fingerprint.rowCount ?? 0);
+  return {
+    interimDate: r.interimDate,
+    rollForwardStart: r.periodStart,
+    rollForwardEnd: r.periodEnd,
+    rollForwardPopulationCount: r.population ? int(r.population.fingerprint.rowCount) : undefined,
+    rollForwardSha256: r.population?.fingerprint.sha256,
+    rollForwardSampleSize: r.sampleSize !== undefined ? int(r.sampleSize) : undefined,
+    rollForwardRationale: r.rationale,
+    rollForwardSeed: r.selection?.seed,
+    rollForwardSparesUsed: rf.values.sparesUsed,
+    wholePeriodPopulation: r.population && wp.population ? int(N) : undefined,
+  };
 }
 
 /** Exact figures for the appendix, to 4 decimal places of a percent. */

@@ -367,6 +367,7 @@ async function attributesSection(c: Ctx): Promise<void> {
 
 async function populationSection(c: Ctx): Promise<void> {
   const { b, L, H, T, values, pop } = c;
+  if (c.wp.rollForward) b.ps(T.interimPartNote);
   if (pop) {
     b.ps(T.population);
     const src = pop.source;
@@ -525,6 +526,7 @@ function stagePart(c: Ctx): void {
 
 async function selectionSection(c: Ctx): Promise<void> {
   const { b, m, L, H, T, O, wp, values, fs, pop, s } = c;
+  if (wp.rollForward) b.ps(T.interimPartNote);
   if (s) {
     b.ps(s.method === 'random' ? T.selectionRandom : s.method === 'systematic' ? T.selectionSystematic : T.selectionHaphazard);
     if (s.method === 'haphazard') b.p(b.f(O.haphazard.selectionNote), { bold: true });
@@ -668,9 +670,13 @@ async function resultsSection(c: Ctx): Promise<void> {
     );
     if (evaluated) {
       const model = m.evaluation?.attributes[0]?.model ?? a?.model ?? 'binomial';
-      b.ps(model === 'hypergeometric' ? T.limitRuleHypergeometric : model === 'poisson' ? T.limitRulePoisson : T.limitRuleBinomial);
-      if (!m.illustrative && !m.attributes.some((x) => x.evaluation?.stage)) b.ps(T.decisionRule);
-      if (!m.illustrative) stagePart(c);
+      // A test in parts: the figures are the whole period's, its limit the one over both parts.
+      if (wp.rollForward) b.ps(T.resultsParts);
+      else {
+        b.ps(model === 'hypergeometric' ? T.limitRuleHypergeometric : model === 'poisson' ? T.limitRulePoisson : T.limitRuleBinomial);
+        if (!m.illustrative && !m.attributes.some((x) => x.evaluation?.stage)) b.ps(T.decisionRule);
+        if (!m.illustrative) stagePart(c);
+      }
       if (caveat) b.p(b.f(caveat.resultsNote), { bold: true });
       if (m.nonStatistical && m.haphazard) b.p(b.f(O.haphazard.resultsNote), { bold: true });
       // A conclusion of reliance that the recorded evaluation does not bear out is said plainly,
@@ -734,7 +740,7 @@ async function deviationsSection(c: Ctx): Promise<void> {
         { header: L.intentional, w: 1.0 },
         { header: L.pattern, w: 0.9 },
       ],
-      m.deviations.map((d) => [{ text: d.key, bold: true }, d.date, d.amount, d.attributeId, d.found, d.cause, d.intentional, d.pattern]),
+      m.deviations.map((d) => [{ text: d.part ? `${d.key} (${d.part === 'interim' ? L.partInterim : L.partRollForward})` : d.key, bold: true }, d.date, d.amount, d.attributeId, d.found, d.cause, d.intentional, d.pattern]),
       { size: 16 },
     );
   }
@@ -886,11 +892,31 @@ async function signoffSection(c: Ctx): Promise<void> {
 }
 
 async function appendixItemsSection(c: Ctx): Promise<void> {
-  const { b, m, L, H, T, a, evaluated } = c;
+  const { b, m, H, T } = c;
   b.h2(H.appendixItemsList);
   if (m.items.length === 0) b.note(b.f(T.appendixItemsMissing));
   else {
     b.ps(T.appendixItems);
+    if (m.rollForward) b.p(b.f(T.appendixItemsInterim), { bold: true, keepNext: true });
+    itemsTables(c, m);
+  }
+  evidenceTable(c, m);
+  if (m.rollForward) {
+    b.h2(H.appendixItemsRollForward);
+    if (m.rollForward.items.length === 0) b.note(b.f(T.rollForwardMissing));
+    else {
+      b.ps(T.appendixItemsRollForward);
+      itemsTables(c, m.rollForward);
+      evidenceTable(c, m.rollForward);
+    }
+  }
+  exactFigures(c);
+}
+
+/** The items of one part (or of a test in one part) and their results, as tables of as many attribute columns as fit. */
+function itemsTables(c: Ctx, m: MemoModel): void {
+  const { b, L } = c;
+  {
     // Widths in twips: fixed columns, one column per attribute wide enough for the longest result
     // word in bold at 8 pt on one line, the rest for void reasons. More attributes than fit go to a
     // further table with the same rows.
@@ -929,7 +955,11 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
       );
     }
   }
-  // Who tested each item, when, and the evidence: every tested item, conforming or not.
+}
+
+/** Who tested each item, when, and the evidence: every tested item of the part, conforming or not. */
+function evidenceTable(c: Ctx, m: MemoModel): void {
+  const { b, L, T } = c;
   const tested = m.items.filter((it) => it.tested);
   if (m.items.length > 0) {
     b.p(L.evidencePerItem, { bold: true, keepNext: true });
@@ -950,6 +980,11 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
       );
     }
   }
+}
+
+/** The exact figures of the evaluation and of the plan, and the state of the workpaper the memo shows. */
+function exactFigures(c: Ctx): void {
+  const { b, m, L, H, T, a, evaluated } = c;
   b.h2(H.appendixExact);
   if (evaluated) {
     b.ps(T.appendixExact);
@@ -1008,6 +1043,7 @@ async function appendixItemsSection(c: Ctx): Promise<void> {
 async function appendixReperformSection(c: Ctx): Promise<void> {
   const { b, m, H, T, a } = c;
   b.ps(T.reperform);
+  if (m.rollForward) b.ps(T.reperformRollForward);
   b.h2(H.reperformCommand);
   b.ps(T.reperformCommand);
   b.h2(H.reperformManual);
@@ -1143,6 +1179,136 @@ async function appendixOcSection(c: Ctx): Promise<void> {
   b.p(b.f(T.ocCaption), { style: 'Caption' });
 }
 
+/** The roll-forward part of a test done at an interim date: its dates, population, size and selection. */
+async function rollForwardSection(c: Ctx): Promise<void> {
+  const { b, m, L, H, T, wp, fs } = c;
+  const rf = wp.rollForward!;
+  const rm = m.rollForward!;
+  b.ps(T.rollForwardLead);
+  b.kv([
+    [L.interimDate, rf.interimDate],
+    [L.partDates, `${rf.periodStart} – ${rf.periodEnd}`],
+  ]);
+  const pop = rf.population;
+  if (!pop) {
+    b.note(b.f(T.rollForwardMissing));
+    return;
+  }
+  b.h2(H.population);
+  const src = pop.source;
+  const tie = pop.tieOut;
+  b.kv([
+    [L.populationDescription, pop.description],
+    [L.samplingUnit, pop.samplingUnit],
+    [L.source, b.v(rm.values.populationSource)],
+    [L.keyColumn, src.kind === 'csv' || src.kind === 'xlsx' ? src.keyColumn : undefined],
+    [L.rowCount, int(pop.fingerprint.rowCount)],
+    [L.amountTotal, rm.values.populationTotal],
+    [L.sha256, { text: pop.fingerprint.sha256, mono: true }],
+    [L.firstKey, pop.fingerprint.firstKey],
+    [L.lastKey, pop.fingerprint.lastKey],
+    [`${L.ledger}: ${L.count}`, rm.values.ledgerCount],
+    [`${L.ledger}: ${L.total}`, rm.values.ledgerTotal],
+    [L.difference, [rm.values.countDifference, rm.values.totalDifference].filter((x) => x !== undefined).join('; ') || undefined],
+    [L.explanation, tie.explanation],
+    [L.ledgerSource, tie.ledgerSource],
+  ]);
+  if (pop.validation.ok) b.ps(T.validationOk);
+  else {
+    b.ps(T.validationProblems);
+    b.bullets(pop.validation.messages.length ? pop.validation.messages : [L.notRecorded]);
+  }
+  if (rf.sampleSize === undefined) {
+    b.note(b.f(T.rollForwardMissing));
+    return;
+  }
+  b.h2(H.approach);
+  b.ps(T.rollForwardSize);
+  b.kv([
+    [L.sizeRule, rf.sizing ? (rf.sizing.kind === 'policy-pro-rata' ? L.sizeRulePolicyProRata : L.sizeRuleStatistical) : undefined],
+    [L.sampleSize, { text: int(rf.sampleSize), bold: true }],
+  ]);
+  const sel = rf.selection;
+  b.h2(H.selection);
+  if (!sel) {
+    b.note(b.f(T.rollForwardMissing));
+    return;
+  }
+  b.kv([
+    [L.method, L.methods[sel.method]],
+    [L.algorithm, { paragraphs: b.cellParagraphs({ text: b.v(rm.values.algorithm), mono: true, bold: true }, 'left', (fs - 1) * 2) }],
+    [L.seed, sel.seed !== undefined ? { text: sel.seed, mono: true } : undefined],
+    [L.interval, rm.values.interval],
+    [L.selectedBy, sel.haphazard?.selectedBy],
+    [L.how, sel.haphazard?.how],
+    [L.sampleSize, int(sel.sampleSize)],
+    [L.spares, int(sel.spares)],
+    [L.selectedAt, rm.values.selectedAt],
+  ]);
+  b.h2(H.spares);
+  if (!rf.results) b.note(b.f(T.rollForwardResultsMissing));
+  else if (rm.spares.length === 0) b.ps(T.sparesNone);
+  else {
+    b.table(
+      [
+        { header: L.sparesUsed, w: 1.4 },
+        { header: L.replaces, w: 1.4 },
+        { header: L.voidReason, w: 3.7 },
+      ],
+      rm.spares.map((x) => [x.spareKey, x.replacesKey, x.reason]),
+    );
+  }
+}
+
+/** Each part's figures per attribute, and the whole period's limit over both parts with the conservative bound beside it. */
+async function wholePeriodSection(c: Ctx): Promise<void> {
+  const { b, m, L, T } = c;
+  const evs = m.attributes.map((x) => x.evaluation).filter((e): e is NonNullable<typeof e> => e?.parts !== undefined && e.combined !== undefined);
+  if (evs.length === 0) {
+    b.note(b.f(T.wholePeriodMissing));
+    return;
+  }
+  b.ps(T.wholePeriodLead);
+  const partName = (p: string) => (p === 'interim' ? L.partInterim : L.partRollForward);
+  const rows: Cell[][] = [];
+  for (const ev of evs) {
+    for (const p of ev.parts!) {
+      rows.push([{ text: ev.attributeId, bold: true }, partName(p.part), int(p.populationSize), int(p.sampleSize), int(p.deviations), pct(p.sampleRate), pctUp(p.upperLimit), '', '']);
+    }
+    const cmb = ev.combined!;
+    const N = ev.parts!.reduce((x, p) => x + p.populationSize, 0);
+    rows.push([
+      { text: ev.attributeId, bold: true },
+      { text: L.wholePeriod, bold: true },
+      int(N),
+      int(ev.sampleSize),
+      int(ev.deviations),
+      pct(ev.sampleRate),
+      { text: cmb.rate !== null ? `${pctLimit(cmb.rate, ev.tolerableRate)} (${int(cmb.deviationsInPopulation!)})` : L.notComputed, bold: true },
+      `${pctUp(cmb.conservativeRate)} (${int(cmb.conservativeDeviations)})`,
+      { text: ev.illustrative ? L.illustrative : cmb.supported ? L.decisionSupported : L.decisionNotSupported, bold: true },
+    ]);
+  }
+  b.table(
+    [
+      { header: L.attribute, w: 0.8 },
+      { header: L.part, w: 1.05 },
+      { header: 'N', w: 0.6, align: 'right' },
+      { header: L.n, w: 0.5, align: 'right' },
+      { header: L.deviations, w: 0.95, align: 'right' },
+      { header: L.sampleRate, w: 0.8, align: 'right' },
+      { header: `${L.upperLimit} / ${L.combinedLimit}`, w: 1.25, align: 'right' },
+      { header: L.conservativeBound, w: 1.2, align: 'right' },
+      { header: L.decision, w: 1.1 },
+    ],
+    rows,
+    { size: 16 },
+  );
+  for (const ev of evs) if (ev.combined!.note) b.note(`${ev.attributeId}: ${ev.combined!.note}`);
+  b.ps(T.wholePeriodDecision);
+  b.ps(T.wholePeriodJudgement);
+}
+
 /**
  * The numbered sections of the memo, in order: a section's number is its place in this list
  * (among the sections whose `when` holds for the memo), so a section added or moved renumbers the
@@ -1156,7 +1322,10 @@ const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings'];
   { heading: 'selection', render: selectionSection },
   // Only when the population's tally by month is recorded: a memo of an older file keeps its sections and their numbers.
   { heading: 'spread', render: spreadSection, when: (m) => m.spread !== undefined },
+  // A test done at an interim date only: the roll-forward part, and the figures per part and for the whole period.
+  { heading: 'rollForward', render: rollForwardSection, when: (m) => m.wp.rollForward !== undefined },
   { heading: 'results', render: resultsSection },
+  { heading: 'wholePeriod', render: wholePeriodSection, when: (m) => m.wp.rollForward !== undefined },
   { heading: 'deviations', render: deviationsSection },
   { heading: 'qualitative', render: qualitativeSection },
   { heading: 'conclusion', render: conclusionSection },
@@ -1191,6 +1360,7 @@ export async function buildDocument(m: MemoModel, t: MemoTemplate, o: RenderOpti
   const W = t.memo;
   const values = { ...m.values };
   values.followUpsSection = W.settings.numberHeadings ? String(sectionNumber('followUps', m)) : W.headings.followUps;
+  if (m.wp.rollForward) values.wholePeriodSection = W.settings.numberHeadings ? String(sectionNumber('wholePeriod', m)) : W.headings.wholePeriod;
   const b = new Builder(t, m, values);
   const wp = m.wp;
   const c: Ctx = {

@@ -144,6 +144,17 @@ export const PLACEHOLDERS = {
   spreadMonthsEmpty: 'the months of the period in which the population holds no item, comma separated',
   spreadOutsideCount: 'the number of population items dated outside the period',
   spreadUndatedCount: 'the number of population items with no readable date',
+  interimDate: 'a test done in parts: the interim date, the last day of the interim part (YYYY-MM-DD)',
+  rollForwardStart: 'the first day of the roll-forward part (YYYY-MM-DD)',
+  rollForwardEnd: 'the last day of the roll-forward part, the period end (YYYY-MM-DD)',
+  rollForwardPopulationCount: 'number of items (rows) in the roll-forward population',
+  rollForwardSha256: 'SHA-256 of the roll-forward population',
+  rollForwardSampleSize: 'the sample size adopted for the roll-forward part',
+  rollForwardRationale: 'why that roll-forward size, in words',
+  rollForwardSeed: 'the seed of the roll-forward selection',
+  rollForwardSparesUsed: 'number of roll-forward spares that replaced voided items',
+  wholePeriodPopulation: 'the items of both parts\' populations together',
+  wholePeriodSection: 'the number of the section with the results by part and for the whole period',
 } as const;
 
 /** Placeholders of the paragraphs written once per attribute (see ATTRIBUTE_SCOPED_KEYS). */
@@ -236,6 +247,10 @@ export const MemoFile = z.strictObject({
     // Added with the spread of the sample over the period.
     spread: para.default('Spread of the sample over the period'),
     spreadChart: para.default('The months in a picture'),
+    // Added with the roll-forward part (a test done at an interim date).
+    rollForward: para.default('Roll-forward part'),
+    wholePeriod: para.default('Results by part and for the whole period'),
+    appendixItemsRollForward: para.default('Roll-forward items and their results'),
   }),
   labels: z.strictObject({
     ...(Object.fromEntries(LABELS.map((k) => [k, para])) as Record<(typeof LABELS)[number], z.ZodString>),
@@ -314,6 +329,19 @@ export const MemoFile = z.strictObject({
     undated: para.default('No readable date'),
     legendPopulationShare: para.default("Share of the population's items"),
     legendSampleShare: para.default("Share of the sample's items"),
+    // Added with the roll-forward part.
+    part: para.default('Part'),
+    partInterim: para.default('Interim'),
+    partRollForward: para.default('Roll-forward'),
+    wholePeriod: para.default('Whole period'),
+    interimDate: para.default('Interim date'),
+    partDates: para.default('Dates'),
+    conservativeBound: para.default('Conservative bound'),
+    combinedLimit: para.default('Limit over both parts'),
+    notComputed: para.default('not computed'),
+    sizeRule: para.default('Size rule'),
+    sizeRulePolicyProRata: para.default('Firm policy, pro rata to the months remaining'),
+    sizeRuleStatistical: para.default('Statistical, on the roll-forward population'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
@@ -342,6 +370,20 @@ export const MemoFile = z.strictObject({
     spreadNoDates: para.default('The population is a list of document numbers, which carry no dates, so the memo cannot show how the sample spreads over the period.'),
     spreadNoDateColumn: para.default('No date column was named for the population, so the memo cannot show how the sample spreads over the period.'),
     spreadNoSelection: para.default('The population by month is recorded; the sample beside it is shown once the items are selected.'),
+    // Added with the roll-forward part (a test done at an interim date).
+    interimPartNote: para.default('This test was done in two parts. The population and selection in this section are those of the interim part, from {{periodStart}} to {{interimDate}}; the roll-forward part, from {{rollForwardStart}} to {{rollForwardEnd}}, has its own section.'),
+    rollForwardLead: para.default('The roll-forward part covers {{rollForwardStart}} to {{rollForwardEnd}}, the rest of the period after the interim date {{interimDate}}. It has its own population, agreed to the ledger and fingerprinted, its own sample size and its own selection with its own seed; its items were tested and recorded like the interim ones. The test\'s attributes, deviation definitions, confidence and tolerable rates apply to both parts.'),
+    rollForwardSize: para.default('Sample size of the roll-forward part: **{{rollForwardSampleSize}}** items. {{rollForwardRationale}}'),
+    resultsParts: para.default('The test was done in two parts: n and the deviations are those of both parts together, the upper deviation limit is the limit over both parts and the risk of overreliance the whole-period risk at the tolerable rate (the split of the deviations between the parts taken at its worst). Each part\'s own figures are in section {{wholePeriodSection}}.'),
+    rollForwardMissing: para.default('The roll-forward part is not planned yet.'),
+    rollForwardResultsMissing: para.default('No roll-forward results are recorded yet.'),
+    wholePeriodLead: para.default('For each attribute, the figures of each part (its population N, the items tested n, the deviations k, the sample deviation rate and the part\'s own upper deviation limit at {{confidence}} confidence) and of the whole period. The whole-period upper deviation limit is computed exactly over both parts: it is the largest number of deviations in the whole population of {{wholePeriodPopulation}} items that is still consistent, at {{confidence}} confidence, with the results of both samples, whatever the split of those deviations between the interim and the roll-forward populations (the split least favourable to the control is taken). Beside it is the conservative bound: the two parts\' own limits, each at the higher confidence that keeps the overall confidence (Bonferroni), added together; it is always at least as wide.'),
+    wholePeriodDecision: para.default('The whole-period decision compares the limit over both parts with the tolerable rate: the results support the planned reliance for the period when it is below the tolerable number of deviations in the whole population. Where the exact limit cannot be computed (the search is too large), the conservative bound is used for the decision and the table says so.'),
+    wholePeriodJudgement: para.default('These figures are computed. Whether the interim results, the roll-forward results and the limit over the whole period support reliance on the control for the period is the practitioner\'s judgement, under the auditing standards and the firm\'s methodology that apply.'),
+    wholePeriodMissing: para.default('The whole period is evaluated once both parts are recorded.'),
+    appendixItemsRollForward: para.default('The items of the roll-forward part ({{rollForwardStart}} to {{rollForwardEnd}}), in draw order, each voided item followed by the spare that replaced it, with their results.'),
+    appendixItemsInterim: para.default('Interim part, {{periodStart}} to {{interimDate}}:'),
+    reperformRollForward: para.default('The roll-forward part is re-performed the same way: its population ({{rollForwardPopulationCount}} units, SHA-256 {{rollForwardSha256}}) is read again, its size recomputed by its rule, its selection drawn again from its own seed {{rollForwardSeed}}, and its results checked against its worklist; then each part\'s figures and the whole-period limit over both parts are recomputed from the recorded results. {{reperformCommand}} does all of it.'),
   }),
 });
 

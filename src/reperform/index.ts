@@ -23,7 +23,7 @@ import { FileInputError, TolrateInputError } from '../errors.js';
 import { planForBothRisks, sampleSize as computeSampleSize, twoStagePlan } from '../stats/index.js';
 import { stageOfDraw } from '../selection/index.js';
 import { twoStageOf } from '../control-test/index.js';
-import { conclusionProblems, evaluate, evaluationDifferences, evidenceDifferences, progress, worklist, worklistProblems } from '../control-test/index.js';
+import { conclusionProblems, evaluate, evaluationDifferences, evidenceDifferences, monthsTouched, partView, progress, proRataSize, worklist, worklistProblems } from '../control-test/index.js';
 import { parseWorkpaper, verifyLog, type Workpaper } from '../workpaper/index.js';
 import { replay } from '../workpaper/log.js';
 import { compareMemoBlocks, readMemoBlocks } from '../memo/read.js';
@@ -366,7 +366,13 @@ function checkEvaluation(wp: Workpaper): Check {
   }
   const diffs = evaluationDifferences(wp.evaluation, fresh, { pct, exact: (x: number) => pctExact(x) });
   const summary = diffs.length === 0
-    ? fresh.attributes.map((f) => `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctLimit(f.upperLimit, f.tolerableRate)}${f.stage ? `, stage ${f.stage.reached} reached, ${f.stage.decision}` : ''}`).join('; ') + ' — as recorded'
+    ? fresh.attributes
+        .map((f) =>
+          f.parts && f.combined
+            ? `${f.attributeId} whole period ${f.deviations}/${f.sampleSize} (${f.parts.map((p) => `${p.part} ${p.deviations}/${p.sampleSize}, limit ${pctUp(p.upperLimit)}`).join('; ')}), limit over both parts ${f.combined.rate !== null ? pctLimit(f.combined.rate, f.tolerableRate) : 'not computed'}, conservative ${pctUp(f.combined.conservativeRate)}`
+            : `${f.attributeId} ${f.deviations}/${f.sampleSize}, limit ${pctLimit(f.upperLimit, f.tolerableRate)}${f.stage ? `, stage ${f.stage.reached} reached, ${f.stage.decision}` : ''}`,
+        )
+        .join('; ') + ' — as recorded'
     : `${diffs.length} difference(s)`;
   return { area: 'evaluation', summary, differences: diffs };
 }
@@ -378,6 +384,81 @@ function checkConclusion(wp: Workpaper): Check {
     ? `${wp.conclusion.control.supportsReliance ? 'supports' : 'does not support'} reliance — consistent with the figures and causes`
     : `${diffs.length} difference(s)`;
   return { area: 'conclusion', summary, differences: diffs };
+}
+
+/**
+ * The roll-forward part of a test done in parts, re-derived as the interim part is: its dates,
+ * its population re-read, its size recomputed by its own rule, its selection re-drawn, its
+ * results against its worklist and its evidence files. Each check is named "roll-forward".
+ */
+async function checkRollForward(wp: Workpaper, opts: ReperformOptions): Promise<Check[]> {
+  const rf = wp.rollForward!;
+  const view = partView(wp, 'roll-forward');
+  const named = (c: Check): Check => ({ ...c, summary: `roll-forward part: ${c.summary}` });
+  const out: Check[] = [];
+  const dates: string[] = [];
+  const e = wp.engagement;
+  if (e && rf.periodEnd !== e.periodEnd) dates.push(`the roll-forward ends on ${rf.periodEnd}, the period on ${e.periodEnd}`);
+  const src = wp.population?.source;
+  if (src?.kind === 'periods' && src.end !== rf.interimDate) dates.push(`the interim population's periods end on ${src.end}, the interim date is ${rf.interimDate}`);
+  const rsrc = rf.population?.source;
+  if (rsrc?.kind === 'periods' && (rsrc.start !== rf.periodStart || rsrc.end !== rf.periodEnd)) {
+    dates.push(`the roll-forward population's periods run ${rsrc.start} to ${rsrc.end}, the roll-forward ${rf.periodStart} to ${rf.periodEnd}`);
+  }
+  out.push({ area: 'population', summary: `roll-forward part: interim date ${rf.interimDate}, roll-forward ${rf.periodStart} to ${rf.periodEnd}${dates.length ? '' : ' — dates consistent'}`, differences: dates });
+  if (!rf.population) {
+    out.push({ area: 'population', summary: 'roll-forward part: population not recorded yet', differences: [], skipped: true });
+    return out;
+  }
+  // The roll-forward population as its own test's (its path is relative to the workpaper, as the interim one's).
+  const { populationPath: _interimOnly, ...rest } = opts;
+  const { check: popCheck, source, rowCount } = await checkPopulation(view, { ...rest, workpaper: view });
+  out.push(named(popCheck));
+  out.push(named(checkRollForwardSize(wp)));
+  out.push(named(await checkSelection(view, source, rowCount)));
+  out.push(named(checkResults(view)));
+  const ev = checkEvidence(view, opts.workpaperPath);
+  out.push(named(ev));
+  return out;
+}
+
+/** The roll-forward's size recomputed by the rule it records (policy pro rata, or statistical on its population). */
+function checkRollForwardSize(wp: Workpaper): Check {
+  const rf = wp.rollForward!;
+  const a = wp.approach;
+  if (!a || rf.sampleSize === undefined || !rf.sizing || !rf.population) return { area: 'sample size', summary: 'not planned yet', differences: [], skipped: true };
+  const N = rf.population.fingerprint.rowCount;
+  const diffs: string[] = [];
+  let computed: number;
+  if (rf.sizing.kind === 'policy-pro-rata') {
+    const e = wp.engagement!;
+    const periodMonths = monthsTouched(e.periodStart, e.periodEnd);
+    const rfMonths = monthsTouched(rf.periodStart, rf.periodEnd);
+    const policySize = a.policy?.size ?? a.sampleSize;
+    if (rf.sizing.periodMonths !== periodMonths || rf.sizing.rollForwardMonths !== rfMonths) {
+      diffs.push(`recorded ${rf.sizing.rollForwardMonths} of ${rf.sizing.periodMonths} month(s) remaining, the dates give ${rfMonths} of ${periodMonths}`);
+    }
+    if (rf.sizing.policySize !== policySize) diffs.push(`recorded policy size ${rf.sizing.policySize}, the approach gives ${policySize}`);
+    computed = proRataSize(policySize, periodMonths, rfMonths, N);
+  } else {
+    const M = a.model === 'hypergeometric' ? N : undefined;
+    const attrs = wp.attributes ?? [];
+    computed = 0;
+    for (const at of attrs) {
+      try {
+        const r = computeSampleSize({ confidence: a.confidence, tolerableRate: at.tolerableRate ?? a.tolerableRate, expectedRate: a.expectedRate, model: a.model, ...(M !== undefined ? { populationSize: M } : {}) });
+        computed = Math.max(computed, r.sampleSize);
+      } catch (e) {
+        if (e instanceof TolrateInputError) diffs.push(`${at.id}: the recorded parameters give no roll-forward size: ${e.message}`);
+        else throw e;
+      }
+    }
+    computed = Math.min(computed, N);
+  }
+  if (rf.sizing.computed !== computed) diffs.push(`recorded computed size ${rf.sizing.computed}, recomputed ${computed}`);
+  if (rf.sampleSize < computed) diffs.push(`adopted roll-forward size ${rf.sampleSize} is below the ${computed} its rule gives`);
+  const how = rf.sizing.kind === 'policy-pro-rata' ? `policy pro rata (${rf.sizing.policySize} × ${rf.sizing.rollForwardMonths}/${rf.sizing.periodMonths} months)` : `statistical on N = ${N.toLocaleString('en-US')}`;
+  return { area: 'sample size', summary: diffs.length === 0 ? `${how}: ${computed} required, ${rf.sampleSize} adopted — as recorded` : `${diffs.length} difference(s)`, differences: diffs };
 }
 
 /** The workpaper as it stood after log entry `seq` (content replayed from the log, log cut there). */
@@ -459,6 +540,7 @@ export async function reperform(opts: ReperformOptions): Promise<ReperformReport
   checks.push(await checkSelection(wp, source, rowCount));
   checks.push(checkResults(wp));
   checks.push(checkEvidence(wp, opts.workpaperPath));
+  if (wp.rollForward) checks.push(...(await checkRollForward(wp, opts)));
   checks.push(checkEvaluation(wp));
   checks.push(checkConclusion(wp));
   if (opts.memoPath) checks.push(await checkMemo(wp, opts.memoPath, opts.workpaperPath, opts.templateDir, opts.memoLabel));

@@ -89,12 +89,35 @@ export function combinedUpperLimit(options: CombinedUpperLimitOptions): Combined
     result.tolerableRate = tolerableRate;
     const Mt = tolerableCount(N, tolerableRate);
     result.supported = (result.deviationsInPopulation ?? consM) < Mt;
+    result.achievedRisk = search === undefined ? null : search.riskAt(Mt);
+    result.conservativeRisk = conservativeRisk(parts, Mt);
   }
   return result;
 }
 
+/**
+ * The smallest β' at which the Bonferroni bound (the sum of the parts' hypergeometric limits at
+ * confidence 1 − β'/P) falls below mt, by bisection on β' (the bound falls as β' grows); 1 when
+ * even β' = 1 leaves it at mt or above.
+ */
+function conservativeRisk(parts: readonly PopulationPart[], mt: number): number {
+  const P = parts.length;
+  const bound = (b: number) => parts.reduce((s, p) => s + upperLimit({ sampleSize: p.sampleSize, deviations: p.deviations, confidence: 1 - b / P, populationSize: p.populationSize }).deviationsInPopulation!, 0);
+  const tiny = 1e-12;
+  if (bound(tiny) < mt) return tiny;
+  if (bound(1 - tiny) >= mt) return 1;
+  let lo = tiny;
+  let hi = 1 - tiny;
+  for (let i = 0; i < 50 && hi - lo > 1e-10; i++) {
+    const mid = (lo + hi) / 2;
+    if (bound(mid) < mt) hi = mid;
+    else lo = mid;
+  }
+  return hi;
+}
+
 /** The exact limit, or undefined when the enumeration would exceed the work limit. */
-function exactSearch(parts: readonly PopulationPart[], beta: number, upper: number): { limit: number; allocation: number[] | null } | undefined {
+function exactSearch(parts: readonly PopulationPart[], beta: number, upper: number): { limit: number; allocation: number[] | null; riskAt: (m: number) => number } | undefined {
   const P = parts.length;
   // Exact weights: N_i·x·(L/n_i) with L the least common multiple of the n_i.
   let L = 1n;
@@ -175,12 +198,15 @@ function exactSearch(parts: readonly PopulationPart[], beta: number, upper: numb
   const highest = parts.reduce((s, p) => s + p.populationSize - (p.sampleSize - p.deviations), 0);
   // Start at the conservative bound (usually above the exact limit), then bisect; if it is still
   // plausible, double the step upwards first.
+  // The risk of overreliance at a total m: the worst allocation's P(T ≤ t); 1 at or below the
+  // deviations seen, 0 beyond what the untested units can hold.
+  const riskAt = (m: number): number => (m <= lowest ? 1 : m > highest ? 0 : Math.min(1, worst(m).value));
   let lo = lowest;
   let hi = Math.min(Math.max(upper, lowest + 1), highest);
   let step = Math.max(1, hi - lo);
   while (plausible(hi)) {
     lo = hi;
-    if (hi === highest) return { limit: highest, allocation: null };
+    if (hi === highest) return { limit: highest, allocation: null, riskAt };
     step *= 2;
     hi = Math.min(highest, hi + step);
   }
@@ -189,7 +215,7 @@ function exactSearch(parts: readonly PopulationPart[], beta: number, upper: numb
     if (plausible(mid)) lo = mid;
     else hi = mid;
   }
-  return { limit: lo, allocation: worst(lo + 1).allocation };
+  return { limit: lo, allocation: worst(lo + 1).allocation, riskAt };
 }
 
 function lcm(a: bigint, b: bigint): bigint {

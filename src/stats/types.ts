@@ -373,6 +373,17 @@ export interface CombinedUpperLimitResult {
   /** With tolerableRate: whether the exact limit (or, without it, the conservative one) is below ⌈TDR·N⌉. */
   supported?: boolean;
   tolerableRate?: number;
+  /**
+   * With tolerableRate: the risk of overreliance over the whole population, the largest chance,
+   * over every allocation of ⌈TDR·N⌉ deviations across the parts, of a result as good as the one
+   * observed (null when the exact search is too large).
+   */
+  achievedRisk?: number | null;
+  /**
+   * With tolerableRate: the risk the conservative bound achieves, the smallest β' at which the sum
+   * of the parts' limits at confidence 1 − β'/P falls below ⌈TDR·N⌉ (1 when none does).
+   */
+  conservativeRisk?: number;
   note?: string;
 }
 

@@ -334,6 +334,36 @@ export const Results = z.object({
   recordedAt: isoTime,
 });
 
+/** The figures of one part of a test done in parts (the interim part and the roll-forward part). */
+export const PartEvaluation = z.object({
+  part: z.enum(['interim', 'roll-forward']),
+  populationSize: positive,
+  sampleSize: count,
+  deviations: count,
+  sampleRate: z.number().min(0).max(1),
+  /** The part's own upper deviation limit at the planned confidence (the test's model). */
+  upperLimit: z.number().min(0).max(1),
+  /** Hypergeometric: the part's own limit as a count of deviations in its population. */
+  deviationsInPopulation: count.optional(),
+});
+
+/**
+ * The whole period of a test done in parts: the exact upper limit over both parts (the worst
+ * allocation of the deviations across them), the conservative bound beside it, and the decision.
+ */
+export const CombinedEvaluation = z.object({
+  /** The exact limit as a count of deviations in the whole population; null when the search was too large. */
+  deviationsInPopulation: count.nullable(),
+  rate: z.number().min(0).max(1).nullable(),
+  /** The sum of the parts' own limits, each at confidence 1 − β/2 (Bonferroni). */
+  conservativeDeviations: count,
+  conservativeRate: z.number().min(0).max(1),
+  /** The whole-period limit (the exact one, or the conservative bound when it is null) is below the tolerable count. */
+  supported: z.boolean(),
+  /** Why the exact limit is missing, when it is. */
+  note: optText,
+});
+
 export const AttributeEvaluation = z.object({
   attributeId: z.string(),
   model: z.enum(MODELS),
@@ -372,6 +402,15 @@ export const AttributeEvaluation = z.object({
       decision: z.enum(STAGE_DECISIONS),
     })
     .optional(),
+  /**
+   * A test done in parts (interim and roll-forward): the figures of each part. The attribute's
+   * sampleSize, deviations and sampleRate are then the whole period's (both parts added), its
+   * upperLimit and deviationsInPopulation the whole-period limit, achievedRisk the whole-period
+   * risk of overreliance at the tolerable count (worst allocation), and supportedByRates the
+   * whole-period decision (combined.supported).
+   */
+  parts: z.array(PartEvaluation).optional(),
+  combined: CombinedEvaluation.optional(),
 });
 
 export const Evaluation = z.object({
@@ -520,6 +559,37 @@ export const CarriedForward = z.object({
   }),
 });
 
+/**
+ * The roll-forward part of a test done at an interim date: the top-level population, selection
+ * and results are the interim part (period start to interimDate); this part runs from the day
+ * after interimDate to the period end, with its own population, size, selection and results.
+ * Saved step by step, so every member after the dates is optional.
+ */
+export const RollForward = z.object({
+  /** The last day of the interim part. */
+  interimDate: isoDate,
+  /** The roll-forward part: interimDate + 1 day to the engagement's period end. */
+  periodStart: isoDate,
+  periodEnd: isoDate,
+  population: Population.optional(),
+  /** The size adopted for the roll-forward part, and why (in words). */
+  sampleSize: positive.optional(),
+  rationale: optText,
+  /** How the size was reached: the policy pro rata to the months remaining, or statistically on the roll-forward population. */
+  sizing: z.object({
+    kind: z.enum(['policy-pro-rata', 'statistical']),
+    /** The size the rule gives (the adopted size may be larger, with a reason). */
+    computed: positive,
+    /** Policy pro rata: the policy's size for the period and the months of the period and of the roll-forward. */
+    policySize: positive.optional(),
+    periodMonths: positive.optional(),
+    rollForwardMonths: positive.optional(),
+    reason: optText,
+  }).optional(),
+  selection: Selection.optional(),
+  results: Results.optional(),
+}).refine((r) => r.periodStart <= r.periodEnd, { message: 'the roll-forward must not end before it starts', path: ['periodEnd'] });
+
 export const Workpaper = z.object({
   schemaVersion: z.literal(SCHEMA_VERSION),
   tool: z.object({ name: z.literal('tolrate'), version: z.string() }),
@@ -553,6 +623,8 @@ export const Workpaper = z.object({
   memos: z.array(MemoRecord).optional(),
   /** The earlier test this one was carried forward from (optional: absent for a test started afresh). */
   carriedForward: CarriedForward.optional(),
+  /** A test done at an interim date: the roll-forward part (absent for a test over the whole period at once). */
+  rollForward: RollForward.optional(),
   log: z.array(LogEntry).default([]),
 }).superRefine((wp, ctx) => {
   const ids = new Set((wp.attributes ?? []).map((a) => a.id));
@@ -567,6 +639,27 @@ export const Workpaper = z.object({
         }
       }
     });
+  }
+  const rf = wp.rollForward;
+  if (rf) {
+    const e = wp.engagement;
+    const next = new Date(Date.parse(`${rf.interimDate}T00:00:00Z`) + 86_400_000).toISOString().slice(0, 10);
+    if (rf.periodStart !== next) ctx.addIssue({ code: 'custom', message: `the roll-forward must start the day after the interim date (${next})`, path: ['rollForward', 'periodStart'] });
+    if (e && (rf.interimDate < e.periodStart || rf.interimDate >= e.periodEnd)) {
+      ctx.addIssue({ code: 'custom', message: `the interim date must fall inside the period, before its last day (${e.periodStart} to ${e.periodEnd})`, path: ['rollForward', 'interimDate'] });
+    }
+    if (e && rf.periodEnd !== e.periodEnd) ctx.addIssue({ code: 'custom', message: `the roll-forward must end at the period end (${e.periodEnd})`, path: ['rollForward', 'periodEnd'] });
+    rf.results?.items.forEach((item, i) => {
+      for (const id of Object.keys(item.attributes)) {
+        if (!ids.has(id)) ctx.addIssue({ code: 'custom', message: `result for unknown attribute ${id}`, path: ['rollForward', 'results', 'items', i, 'attributes', id] });
+      }
+    });
+    if (rf.selection && rf.population && rf.selection.method !== 'haphazard') {
+      const n = rf.population.fingerprint.rowCount;
+      rf.selection.items.forEach((it, i) => {
+        if (it.position >= n) ctx.addIssue({ code: 'custom', message: `position ${it.position} is outside the roll-forward population of ${n}`, path: ['rollForward', 'selection', 'items', i, 'position'] });
+      });
+    }
   }
   if (wp.selection && wp.population && wp.selection.method !== 'haphazard') {
     const n = wp.population.fingerprint.rowCount;
@@ -598,6 +691,9 @@ export type EvidenceRef = z.infer<typeof EvidenceRef>;
 export type Results = z.infer<typeof Results>;
 export type AttributeEvaluation = z.infer<typeof AttributeEvaluation>;
 export type Evaluation = z.infer<typeof Evaluation>;
+export type PartEvaluation = z.infer<typeof PartEvaluation>;
+export type CombinedEvaluation = z.infer<typeof CombinedEvaluation>;
+export type RollForward = z.infer<typeof RollForward>;
 export type FollowUp = z.infer<typeof FollowUp>;
 export type Conclusion = z.infer<typeof Conclusion>;
 export type LogEntry = z.infer<typeof LogEntry>;

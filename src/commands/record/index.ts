@@ -1,4 +1,4 @@
-import { parseFlags } from '../args.js';
+import { parseFlags, str } from '../args.js';
 import { UsageError } from '../../errors.js';
 import type { CommandContext } from '../types.js';
 import type { Asker } from '../../interview/asker.js';
@@ -8,9 +8,13 @@ import { recordInterview } from '../../interview/stages.js';
 export function help(): string {
   return `tolrate record — record each item's result and the cause of every deviation
 
-Usage: tolrate record FILE
+Usage: tolrate record FILE [--part interim|roll-forward]
 
   FILE               the workpaper file, planned and selected with \`tolrate plan\`
+  --part PART        a test done at an interim date (see \`tolrate rollforward --help\`):
+                     the part to record, interim or roll-forward. Without it, the interim
+                     part is recorded until it is complete, then the roll-forward part (once
+                     planned); when both are complete you choose which to change.
   -h, --help         show this help
 
 Per item and attribute: conforms, deviation (what was found, the cause, whether it looks
@@ -44,25 +48,39 @@ While it runs the workpaper is locked (NAME.tolrate.json.lock beside it): a seco
 on the same file is told who has it and may look at it read-only. A save that fails (disk
 full, read-only) keeps the answer and asks: try again, save a copy elsewhere, or stop.
 
-Example:
+Examples:
   tolrate record supplier-invoices.tolrate.json
+  tolrate record supplier-invoices.tolrate.json --part roll-forward
 `;
 }
 
+const SPEC = { part: { type: 'string' as const } };
+
+function partFlag(p: ReturnType<typeof parseFlags>): 'interim' | 'roll-forward' | undefined {
+  const v = str(p, 'part');
+  if (v === undefined) return undefined;
+  const t = v.trim().toLowerCase();
+  if (t === 'interim') return 'interim';
+  if (t === 'roll-forward' || t === 'rollforward') return 'roll-forward';
+  throw new UsageError(`tolrate record --part: "${v}" is not a part; give interim or roll-forward.`, ['Example: tolrate record FILE --part roll-forward']);
+}
+
 export async function runWith(args: string[], ctx: CommandContext, asker: Asker, o: InterviewOptions = {}): Promise<number> {
-  const p = parseFlags('record', args, {}, 1);
+  const p = parseFlags('record', args, SPEC, 1);
   const file = p.positionals[0];
-  if (!file) throw new UsageError('tolrate record: name the workpaper file.', ['Usage: tolrate record FILE']);
-  return recordInterview(ctx, asker, { file, ...o });
+  if (!file) throw new UsageError('tolrate record: name the workpaper file.', ['Usage: tolrate record FILE [--part interim|roll-forward]']);
+  const part = partFlag(p);
+  return recordInterview(ctx, asker, { file, ...(part ? { part } : {}), ...o });
 }
 
 export async function run(args: string[], ctx: CommandContext): Promise<number> {
-  const p = parseFlags('record', args, {}, 1);
+  const p = parseFlags('record', args, SPEC, 1);
   if (p.values.help) {
     ctx.stdout.write(help());
     return 0;
   }
-  if (!p.positionals[0]) throw new UsageError('tolrate record: name the workpaper file.', ['Usage: tolrate record FILE']);
+  if (!p.positionals[0]) throw new UsageError('tolrate record: name the workpaper file.', ['Usage: tolrate record FILE [--part interim|roll-forward]']);
+  partFlag(p);
   if (!ctx.isTTY) return needsTerminal(ctx, 'record');
   return runWith(args, ctx, terminalAsker(ctx));
 }

@@ -42,7 +42,10 @@ function today(): string {
 function testLines(e: TestEntry): string[] {
   const L: string[] = [];
   L.push(`${e.reference ?? '(no reference)'}  ${e.control ?? '(no control yet)'}  ${e.file}`);
-  const ap = e.approach ? `${e.approach}, ${e.sampleSize} items` : 'approach not planned';
+  const rf = e.rollForward;
+  const ap = e.approach
+    ? `${e.approach}, ${e.sampleSize} items${rf ? ` to the interim date ${rf.interimDate} + ${rf.sampleSize !== undefined ? `${rf.sampleSize} roll-forward items` : 'roll-forward not sized yet'}` : ''}`
+    : 'approach not planned';
   L.push(`  ${ap}; step reached: ${e.stepReached}; ${e.review.label}`);
   for (const a of e.attributes) {
     const fig = a.upperLimit !== undefined && a.tolerableRate !== undefined ? `, upper limit ${pctLimit(a.upperLimit, a.tolerableRate)} against ${pctPlain(a.tolerableRate)} tolerable` : '';
