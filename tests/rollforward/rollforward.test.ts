@@ -135,6 +135,19 @@ describe('tolrate rollforward: the interview', () => {
     expect(loadWorkpaper(u.file).rollForward!.population!.samplingUnit).toBe('One payment voucher');
   }, 90_000);
 
+  it('refuses a roll-forward for a two-stage plan with a clear message (nothing changed)', async () => {
+    const dir = tempDir('tolrate-rf2-');
+    const interim = writeVouchers(dir, 'vouchers-q1-q3.csv', INTERIM_ROWS, [1, 2, 3, 4, 5, 6, 7, 8, 9], 10001);
+    const answers = { ...planAnswers(interim.total, INTERIM_ROWS), 'plan.population.file': 'vouchers-q1-q3.csv', 'plan.attributes.A2.tolerableRate': '', 'plan.approach.model': 'binomial', 'plan.approach.plan': 'two-stage', 'plan.approach.plan.accept': 'accept' };
+    expect(await plan(['t1'], captureContext(dir), new ScriptedAsker(answers), { now: fixedClock() })).toBe(0);
+    const before = readFileSync(join(dir, 't1.tolrate.json'), 'utf8');
+    await expect(rollforward(['t1'], captureContext(dir), new ScriptedAsker({}), { now: fixedClock() })).rejects.toMatchObject({
+      name: 'TolrateInputError',
+      message: expect.stringContaining('two-stage sampling plan'),
+    });
+    expect(readFileSync(join(dir, 't1.tolrate.json'), 'utf8')).toBe(before);
+  }, 60_000);
+
   it('added to a concluded, signed-off test: the conclusion is kept as the earlier one, the sign-off cleared, and conclude needs the roll-forward results', async () => {
     const t = await recordedInterim();
     expect(await conclude(['t1'], captureContext(t.dir), new ScriptedAsker(concludeAnswers()), { now: t.clock })).toBe(0);
