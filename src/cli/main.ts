@@ -25,7 +25,7 @@ export function mainHelp(): string {
   for (const [g, title] of groups) {
     lines.push('');
     lines.push(title);
-    for (const c of COMMANDS.filter((x) => x.group === g)) lines.push(`  ${c.name.padEnd(11)}${c.summary}`);
+    for (const c of COMMANDS.filter((x) => x.group === g)) lines.push(`  ${c.name.padEnd(13)}${c.summary}`);
   }
   lines.push('');
   lines.push('Options: --help (also after any command), --version');

@@ -12,7 +12,7 @@ export interface CommandInfo {
 export const COMMANDS: readonly CommandInfo[] = [
   { name: 'plan', group: 'test', usage: 'tolrate plan [FILE] [--from LAST.tolrate.json]', summary: 'Plan a test: engagement, control, attributes, population, sample size, selection' },
   { name: 'record', group: 'test', usage: 'tolrate record FILE [--part interim|roll-forward]', summary: 'Record each item\'s result and the cause of every deviation' },
-  { name: 'rollforward', group: 'test', usage: 'tolrate rollforward FILE', summary: 'Test to an interim date, then roll forward: the interim date and the roll-forward part\'s population, size, selection' },
+  { name: 'rollforward', group: 'test', usage: 'tolrate rollforward FILE', summary: 'Roll a test done at an interim date forward: interim date, roll-forward population, size, selection' },
   { name: 'conclude', group: 'test', usage: 'tolrate conclude FILE', summary: 'Evaluate the results, review the causes, conclude and list follow-up actions' },
   { name: 'review', group: 'test', usage: 'tolrate review FILE', summary: 'Review a test: re-perform it, raise and clear review notes, sign off as reviewer' },
   { name: 'memo', group: 'test', usage: 'tolrate memo FILE [--out MEMO.docx] [--template DIR] [--oc]', summary: 'Write the DOCX workpaper memo from a workpaper file' },
