@@ -1,5 +1,9 @@
 #!/usr/bin/env node
+import { dropOutputOnClosedPipe } from './cli/closed-pipe.js';
 import { runCli } from './cli/main.js';
+
+dropOutputOnClosedPipe(process.stdout);
+dropOutputOnClosedPipe(process.stderr);
 
 runCli(process.argv.slice(2)).then(
   (code) => {
