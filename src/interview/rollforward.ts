@@ -71,7 +71,8 @@ function lastDayOfMonth(y: number, m: number): string {
 }
 
 /**
- * The interim date offered: the end of an interim periods population; else the last day of the
+ * The interim date offered: the end of an interim periods population; else the end of the last
+ * month in which the interim population holds items (its month tally); else the last day of the
  * month before the interim selection was made; else the last day of the period's ninth month
  * (interim testing is usually done about three months before the period end: common practice,
  * no single source). Always inside the period, before its last day.
@@ -81,6 +82,14 @@ export function defaultInterimDate(wp: Workpaper): string {
   const inside = (d: string) => d >= e.periodStart && d < e.periodEnd;
   const src = wp.population?.source;
   if (src?.kind === 'periods' && inside(src.end)) return src.end;
+  // A file with a date column: the end of the last month in which the interim population holds items.
+  const held = (wp.population?.fingerprint.monthTally?.months ?? []).filter((x) => x.count > 0).map((x) => x.month).sort();
+  const lastHeld = held[held.length - 1];
+  if (lastHeld) {
+    const [y, m] = lastHeld.split('-').map(Number) as [number, number];
+    const d = lastDayOfMonth(y, m);
+    if (inside(d)) return d;
+  }
   const sel = wp.selection?.selectedAt;
   if (sel) {
     const [y, m] = sel.slice(0, 7).split('-').map(Number) as [number, number];
@@ -100,6 +109,16 @@ export function interimDateProblem(wp: Workpaper, date: string): string | undefi
   if (date < e.periodStart || date > e.periodEnd) return `${date} is outside the period ${e.periodStart} to ${e.periodEnd}. The interim date is the last day of the interim part, inside the period.`;
   if (date === e.periodEnd) return `${date} is the period end: nothing would be left to roll forward. Give the last day of the interim part, before ${e.periodEnd}.`;
   const src = wp.population?.source;
+  // The interim population's own months (counted when it was read): none may lie after the interim date's month.
+  const tally = wp.population?.fingerprint.monthTally;
+  if (tally && src?.kind !== 'periods') {
+    const after = tally.months.filter((x) => x.count > 0 && x.month > date.slice(0, 7));
+    if (after.length > 0) {
+      const n = after.reduce((t, x) => t + x.count, 0);
+      const last = after[after.length - 1]!.month;
+      return `the interim population holds ${n.toLocaleString('en-US')} item(s) dated after ${date.slice(0, 7)} (column ${tally.dateColumn}, up to ${last}), counted when it was read: they would belong to the roll-forward part too. The interim date is the last day the interim population covers: give a date in ${last} or later, or plan the interim population again for the interim dates.`;
+    }
+  }
   // The interim sample's own dates, when the population has a date column: none may fall after the interim date.
   if ((src?.kind === 'csv' || src?.kind === 'xlsx') && src.dateColumn) {
     const dates = (wp.selection?.items ?? []).map((i) => i.values[src.dateColumn!] ?? '').filter((d) => /^\d{4}-\d{2}-\d{2}$/.test(d)).sort();

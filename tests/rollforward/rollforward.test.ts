@@ -85,7 +85,7 @@ describe('tolrate rollforward: the interview', () => {
 
   it('refuses dates that are not dates, outside the period or on its last day, and offers the month before the selection', async () => {
     const t = await recordedInterim();
-    const asker = new ScriptedAsker({ ...rollForwardAnswers(t.later.total), 'rollforward.interimDate': ['2025-09-31', '2026-01-15', '2024-12-31', '2025-12-31', ''] });
+    const asker = new ScriptedAsker({ ...rollForwardAnswers(t.later.total), 'rollforward.interimDate': ['2025-09-31', '2026-01-15', '2024-12-31', '2025-12-31', '2025-08-31', ''] });
     const c = captureContext(t.dir);
     expect(await rollforward(['t1'], c, asker, { now: t.clock })).toBe(0);
     const why = asker.refusals.map((x) => x.message);
@@ -93,7 +93,12 @@ describe('tolrate rollforward: the interview', () => {
     expect(why[1]).toContain('outside the period 2025-01-01 to 2025-12-31');
     expect(why[2]).toContain('outside the period');
     expect(why[3]).toContain('the period end: nothing would be left to roll forward');
-    // The blank answer takes the default: the selection was made in October, so the end of September.
+    // The interim population holds vouchers paid in September (counted here from the file itself):
+    // an interim date in August would put them in both parts.
+    const september = readFileSync(join(t.dir, 'vouchers-q1-q3.csv'), 'utf8').split('\n').filter((l) => /^PV-\d+,2025-09-/.test(l)).length;
+    expect(september).toBeGreaterThan(0);
+    expect(why[4]).toContain(`the interim population holds ${september} item(s) dated after 2025-08 (column paid_on, up to 2025-09)`);
+    // The blank answer takes the default: the end of the last month the interim population holds items in.
     const wp = loadWorkpaper(t.file);
     expect(wp.rollForward).toMatchObject({ interimDate: '2025-09-30', periodStart: '2025-10-01', periodEnd: '2025-12-31', sampleSize: 72 });
     expect(wp.rollForward!.selection!.seed).toBe('90817');

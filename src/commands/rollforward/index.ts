@@ -20,8 +20,10 @@ the period start to the interim date. This adds the roll-forward part, from the 
 interim date to the period end, with its own population, sample and results. It asks:
 
   1. the interim date: the last day of the interim part, inside the period (refused outside
-     it, or on its last day); offered: the end of the interim population's periods, else the
-     month before the interim selection, else the end of the period's ninth month;
+     it, on its last day, or before the last month the interim population holds items in);
+     offered: the end of the interim population's periods, else the end of the last month the
+     interim population holds items in, else the month before the interim selection, else the
+     end of the period's ninth month;
   2. the roll-forward population: the same questions as the plan's (a file, number ranges,
      or, the default for a monthly, quarterly, weekly or daily control, its occurrences in
      the roll-forward dates), with its own fingerprint, tie-out and validation;
