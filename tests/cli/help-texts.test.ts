@@ -7,20 +7,12 @@
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
 import { COMMANDS } from '../../src/commands/registry.js';
-import type { CommandContext } from '../../src/commands/types.js';
+import { captureContext } from '../fixtures/interview.js';
 
 async function help(name: string): Promise<{ code: number; out: string }> {
-  let out = '';
-  const ctx: CommandContext = {
-    stdout: { write: (s: string) => (out += s) },
-    stderr: { write: (s: string) => (out += s) },
-    isTTY: false,
-    color: false,
-    cwd: process.cwd(),
-    env: {},
-  };
+  const ctx = captureContext(process.cwd(), false);
   const code = await runCli([name, '--help'], ctx);
-  return { code, out };
+  return { code, out: ctx.text() + ctx.err.join('') };
 }
 
 describe('--help of every command', () => {

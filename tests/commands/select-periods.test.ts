@@ -8,7 +8,6 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
-import type { CommandContext } from '../../src/commands/types.js';
 import { runWith as plan } from '../../src/commands/plan/index.js';
 import { ScriptedAsker } from '../../src/interview/scripted.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
@@ -18,18 +17,9 @@ const cwd = mkdtempSync(join(tmpdir(), 'tolrate-select-periods-'));
 afterAll(() => rmSync(cwd, { recursive: true, force: true }));
 
 async function cli(...args: string[]): Promise<{ code: number; out: string; err: string }> {
-  let out = '';
-  let err = '';
-  const ctx: CommandContext = {
-    stdout: { write: (s: string) => (out += s) },
-    stderr: { write: (s: string) => (err += s) },
-    isTTY: false,
-    color: false,
-    cwd,
-    env: {},
-  };
+  const ctx = captureContext(cwd, false);
   const code = await runCli(args, ctx);
-  return { code, out, err };
+  return { code, out: ctx.text(), err: ctx.err.join('') };
 }
 
 const json = (out: string) => JSON.parse(out) as { ok: boolean; fingerprint: { rowCount: number; firstKey: string; lastKey: string; sha256: string }; items: Array<{ key: string; role: string; values: Record<string, string> }> };
