@@ -75,8 +75,9 @@ async function engagementDemo(ctx: CommandContext, out: string): Promise<number>
   const { runEngagementDemo } = await import('../../interview/demo-engagement.js');
   const { defaultMemoPath, recordMemo, writeMemo } = await import('../../memo/index.js');
   const got = await runEngagementDemo(ctx, { out });
-  // The memos of the two scenarios, as the single-scenario demo writes them.
-  for (const t of got.tests.slice(0, 2)) {
+  // The memos of the concluded tests (the two scenarios, as the single-scenario demo writes them,
+  // and the test done in two parts).
+  for (const t of got.tests.filter((x) => x.workpaper.conclusion)) {
     rmSync(defaultMemoPath(t.workpaperPath), { force: true });
     const at = got.now();
     const memo = await writeMemo({ workpaper: t.workpaper, workpaperPath: t.workpaperPath, now: at });
