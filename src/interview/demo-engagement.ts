@@ -130,7 +130,7 @@ const PAY_INTERIM_SHEET: SheetFill = {
   testedOn: '2025-10-16',
   deviations: {
     [PAY_CHANGES.interimDeviationSeq]: {
-      found: 'Pay rate change entered by a payroll clerk and used in the June pay run; approved by the payroll manager nine days after that pay run, while she was on leave',
+      found: 'Pay rate change entered by a payroll clerk and used in the next pay run; approved by the payroll manager nine days after that pay run, while she was on leave',
       cause: 'performed-late',
       intent: 'no',
       pattern: 'isolated',
@@ -193,7 +193,7 @@ const PAY_ROLL_FORWARD: ScriptAnswers = {
 
 const PAY_CONCLUDE: ScriptAnswers = {
   'conclude.compensatingControls': '',
-  'conclude.notes': 'The one deviation (interim part) was a late approval while the payroll manager was on leave in June 2025; the approval itself was in order. No deviation in October to December.',
+  'conclude.notes': 'The one deviation (interim part) was a late approval while the payroll manager was on leave; the change itself was in order. No deviation in October to December.',
   'conclude.attribute.A1.agree': true,
   'conclude.control.text': '',
   'conclude.followUps.*.action': 'keep',
