@@ -29,9 +29,9 @@ Usage: tolrate demo [--out DIR] [--scenario main|small] [--verbose]
                      test carried forward from an invented prior year's workpaper (planned as a
                      two-stage plan, not yet tested), and a fourth done in two parts: tested to
                      an interim date, rolled forward to the period end (\`tolrate rollforward\`)
-                     and concluded over the whole period; with the memo of every concluded test;
-                     then print \`tolrate status\` and write \`tolrate summary\` as of
-                     ${ENGAGEMENT_DEMO_AS_OF}
+                     and concluded over the whole period; with the memo of every concluded
+                     test; then print \`tolrate status\` and write \`tolrate summary\`
+                     as of ${ENGAGEMENT_DEMO_AS_OF}
   -h, --help         show this help
 
 The demo runs the same interview as \`tolrate plan\`, \`record\` and \`conclude\`, answered from
