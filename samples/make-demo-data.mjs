@@ -5,10 +5,13 @@
 //   Brackenmoor Kilnworks Ltd, an invented maker of kiln furniture (3,412 rows).
 // - samples/small/manual-journals-2025.csv: manual journal entries of 25,000 or more posted in
 //   2025 at its invented sister company Tillwater Glazes Ltd (318 rows).
+// - samples/engagement/pay-changes-2025-jan-sep.csv and pay-changes-2025-oct-dec.csv: changes to
+//   employees' standing pay data at Brackenmoor Kilnworks Ltd, January to September (the interim
+//   part of the engagement demo's roll-forward test) and October to December (1,164 and 412 rows).
 // Every name below is invented. The content comes from a fixed xorshift generator, so the same
 // script always writes the same bytes. It prints the row counts and amount totals that the demo
 // answers use as the ledger figures for the completeness tie-out.
-import { writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -85,7 +88,34 @@ function journals() {
   return { N, total: `${total / 100n}.${String(total % 100n).padStart(2, '0')}` };
 }
 
+const CHANGE_TYPES = ['Pay rate', 'Pay rate', 'Pay rate', 'Bank account', 'Allowance', 'Hours', 'Pay grade'];
+const PAY_GROUPS = ['Kiln shop', 'Glazing line', 'Dispatch', 'Maintenance', 'Office'];
+
+/** Pay data changes from `start` (UTC ms) over `span` days: numbered and listed in date order. */
+function payChanges(file, seed, N, first, start, span) {
+  const rnd = xorshift(seed);
+  const body = [];
+  let total = 0n;
+  for (let i = 0; i < N; i++) {
+    const d = day(rnd, start, span);
+    const cents = 160_000 + Math.floor(rnd() * 420_000);
+    total += BigInt(cents);
+    const type = CHANGE_TYPES[Math.floor(rnd() * CHANGE_TYPES.length)];
+    const group = PAY_GROUPS[Math.floor(rnd() * PAY_GROUPS.length)];
+    body.push([iso(d), `E-${String(4101 + Math.floor(rnd() * 380))}`, type, group, money(cents)]);
+  }
+  body.sort((x, y) => x[0].localeCompare(y[0]) || x[1].localeCompare(y[1]));
+  const rows = ['change_id,changed_on,employee_ref,change_type,pay_group,monthly_pay_after', ...body.map((r, i) => `PC-${String(first + i)},${r.join(',')}`)];
+  writeFileSync(join(here, 'engagement', file), `${rows.join('\n')}\n`);
+  return { N, total: `${total / 100n}.${String(total % 100n).padStart(2, '0')}` };
+}
+
 const a = invoices();
 const b = journals();
 process.stdout.write(`supplier-invoices-2025.csv: ${a.N} rows, total ${a.total}\n`);
 process.stdout.write(`small/manual-journals-2025.csv: ${b.N} rows, total ${b.total}\n`);
+mkdirSync(join(here, 'engagement'), { recursive: true });
+const c = payChanges('pay-changes-2025-jan-sep.csv', 20250930, 1164, 10001, Date.UTC(2025, 0, 1), 273);
+const d = payChanges('pay-changes-2025-oct-dec.csv', 20251231, 412, 20001, Date.UTC(2025, 9, 1), 92);
+process.stdout.write(`engagement/pay-changes-2025-jan-sep.csv: ${c.N} rows, total ${c.total}\n`);
+process.stdout.write(`engagement/pay-changes-2025-oct-dec.csv: ${d.N} rows, total ${d.total}\n`);

@@ -25,9 +25,12 @@ Usage: tolrate demo [--out DIR] [--scenario main|small] [--verbose]
   --verbose          show the whole interview: every question, the scripted answer, and what
                      the interview showed
   --engagement       build an engagement folder instead (default --out ./demo-engagement): its
-                     folder file (entity, period, team), both scenarios planned in it, and a
-                     third test carried forward from an invented prior year's workpaper (planned,
-                     not yet tested); then print \`tolrate status\` and write \`tolrate summary\`
+                     folder file (entity, period, team), both scenarios planned in it, a third
+                     test carried forward from an invented prior year's workpaper (planned as a
+                     two-stage plan, not yet tested), and a fourth done in two parts: tested to
+                     an interim date, rolled forward to the period end (\`tolrate rollforward\`)
+                     and concluded over the whole period; with the memo of every concluded
+                     test; then print \`tolrate status\` and write \`tolrate summary\`
                      as of ${ENGAGEMENT_DEMO_AS_OF}
   -h, --help         show this help
 
@@ -75,8 +78,9 @@ async function engagementDemo(ctx: CommandContext, out: string): Promise<number>
   const { runEngagementDemo } = await import('../../interview/demo-engagement.js');
   const { defaultMemoPath, recordMemo, writeMemo } = await import('../../memo/index.js');
   const got = await runEngagementDemo(ctx, { out });
-  // The memos of the two scenarios, as the single-scenario demo writes them.
-  for (const t of got.tests.slice(0, 2)) {
+  // The memos of the concluded tests (the two scenarios, as the single-scenario demo writes them,
+  // and the test done in two parts).
+  for (const t of got.tests.filter((x) => x.workpaper.conclusion)) {
     rmSync(defaultMemoPath(t.workpaperPath), { force: true });
     const at = got.now();
     const memo = await writeMemo({ workpaper: t.workpaper, workpaperPath: t.workpaperPath, now: at });
