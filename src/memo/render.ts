@@ -1273,7 +1273,7 @@ async function wholePeriodSection(c: Ctx): Promise<void> {
   const rows: Cell[][] = [];
   for (const ev of evs) {
     for (const p of ev.parts!) {
-      rows.push([{ text: ev.attributeId, bold: true }, partName(p.part), int(p.populationSize), int(p.sampleSize), int(p.deviations), pct(p.sampleRate), pctUp(p.upperLimit), '', '']);
+      rows.push([{ text: ev.attributeId, bold: true }, partName(p.part), int(p.populationSize), int(p.sampleSize), int(p.deviations), pct(p.sampleRate), `${pctLimit(p.upperLimit, ev.tolerableRate)}${p.deviationsInPopulation !== undefined ? ` (${int(p.deviationsInPopulation)})` : ''}`, '', '']);
     }
     const cmb = ev.combined!;
     const N = ev.parts!.reduce((x, p) => x + p.populationSize, 0);

@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
+import { readMemoBlocks } from '../../src/memo/read.js';
 import { stateHash } from '../../src/workpaper/log.js';
 import { captureContext, tempDir } from '../fixtures/interview.js';
 
@@ -84,6 +85,17 @@ describe('tolrate demo --engagement', () => {
     expect(out).toContain('statistical, 76 items to the interim date 2025-09-30 + 71 roll-forward items');
     expect(out).toContain('A1  1 deviation(s) in 147 tested, upper limit 4.4% against 6% tolerable; supports reliance');
     expect(readFileSync(join(dir, 'eng', 'pay-data-changes.filled.csv'), 'utf8')).toContain('performed-late');
+
+    // The memo's table by part: each part's own limit shown so that it is not read as equal to the
+    // tolerable rate (69 of 1,164 = 5.93%, below 6%), with its count; the whole period beside it.
+    const blocks = await readMemoBlocks(readFileSync(join(dir, 'eng', 'pay-data-changes.memo.docx')));
+    const rows = blocks.flatMap((b) => (b.kind === 'table' ? b.rows.map((r) => r.join(' | ')) : []));
+    expect(rows).toContain('A1 | Interim | 1,164 | 76 | 1 | 1.3% | 5.93% (69) |  | ');
+    expect(rows.some((r) => r.startsWith('A1 | Whole period | 1,576 | 147 | 1 | 0.7% | 4.4% (69) | 6.3% (99) | Supports reliance'))).toBe(true);
+    // A reviewer re-performs both parts and the memo: everything agrees.
+    const rp = captureContext(join(dir, 'eng'), false);
+    expect(await runCli(['reperform', 'pay-data-changes.tolrate.json', '--memo', 'pay-data-changes.memo.docx'], rp), rp.text()).toBe(0);
+    expect(rp.text()).toContain('Everything re-derived agrees with the workpaper.');
   }, 180_000);
 
   it('refuses --engagement with --scenario (exit 2)', async () => {
