@@ -20,7 +20,7 @@ import type { MemoTemplate } from './template.js';
 import { countResults, evidenceSupports, PART_LABELS, partView, ratesSupport, testedResults, testState, worklist, type Part } from '../control-test/index.js';
 import { stateHash } from '../workpaper/log.js';
 import { tolerableDeviations } from '../stats/index.js';
-import { spreadView, type SpreadView } from './spread.js';
+import { spreadView, type SpreadPart, type SpreadView } from './spread.js';
 
 export type Outcome = 'supported' | 'not-supported' | 'draft';
 
@@ -450,14 +450,25 @@ export function buildModel(wp: Workpaper, t: MemoTemplate, opts: ModelOptions = 
     ...partValues(wp, rfModel),
   };
 
-  // A test in parts: the spread shown is the interim part's, over the interim months.
-  const spread = spreadView(wp.rollForward ? partView(wp, 'interim') : wp);
+  // A test in parts: the spread is shown over the whole period, both parts added month by month.
+  const spread = spreadView(wp);
   if (spread && spread.kind !== 'no-dates') values.spreadDateColumn = spread.dateColumn;
   if (spread?.kind === 'table') {
     values.spreadMonthsUnselected = spread.unselected.join(', ');
     values.spreadMonthsEmpty = spread.empty.join(', ');
     values.spreadOutsideCount = int(spread.outside.population);
     values.spreadUndatedCount = int(spread.undated.population);
+    const sp = spread.parts;
+    if (sp) {
+      const names = (ps: readonly SpreadPart[]) => (ps.length ? ps.map((x) => L.spreadPartNames[x]).join(` ${L.spreadPartsAnd} `) : undefined);
+      const uncounted = new Set<SpreadPart>([...sp.noTally, ...sp.noDates, ...sp.noPopulation]);
+      values.spreadSplitMonth = sp.split;
+      values.spreadPartsPending = names(sp.pending);
+      values.spreadPartsNoTally = names(sp.noTally);
+      values.spreadPartsNoDates = names(sp.noDates);
+      values.spreadPartsNoPopulation = names(sp.noPopulation);
+      values.spreadPartsCounted = names((['interim', 'roll-forward'] as const).filter((x) => !uncounted.has(x)));
+    }
   }
 
   const followUps = (wp.conclusion?.followUps ?? []).map((f) => ({ ...f, kindLabel: L.followUpKinds[f.kind] }));

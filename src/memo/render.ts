@@ -587,12 +587,24 @@ async function spreadSection(c: Ctx): Promise<void> {
     return;
   }
   b.ps(T.spreadLead);
+  const sp = v.parts;
+  if (sp) {
+    // A test in parts: the whole period, each month marked with its part, and what is not known yet named.
+    b.ps(T.spreadParts);
+    if (sp.split) b.ps(T.spreadSplit);
+    if (sp.pending.length) b.ps(T.spreadPartPending);
+    if (sp.noPopulation.length) b.ps(T.spreadPartNoPopulation);
+    if (sp.noTally.length) b.ps(T.spreadPartNoTally);
+    if (sp.noDates.length) b.ps(T.spreadPartNoDates);
+  }
   const share = (n: number, of: number) => (of > 0 ? pct(n / of) : '–');
   const amt = (a: string) => formatAmount(a) ?? '';
   const label = (r: (typeof v.rows)[number]) => (r.kind === 'month' ? r.month! : r.kind === 'outside' ? L.outsidePeriod : r.kind === 'undated' ? L.undated : L.spreadTotal);
+  const partOf = (r: (typeof v.rows)[number]) => (!r.parts ? '' : r.parts.length === 2 ? L.partBoth : r.parts[0] === 'interim' ? L.partInterim : L.partRollForward);
   b.table(
     [
       { header: L.month, w: 1.3 },
+      ...(sp ? [{ header: L.part, w: 1.2 }] : []),
       { header: L.populationItems, w: 1.1, align: 'right' },
       { header: L.populationShare, w: 1, align: 'right' },
       ...(v.withAmounts ? [{ header: L.populationAmount, w: 1.5, align: 'right' as const }] : []),
@@ -602,14 +614,18 @@ async function spreadSection(c: Ctx): Promise<void> {
     ],
     v.rows.map((r) => {
       const bold = r.kind === 'total';
+      // A month of a part not counted or not selected yet shows – rather than a 0 that would read as a count.
+      const popUnknown = r.populationUnknown === true && r.population.count === 0;
+      const smpPending = r.samplePending === true && r.sample.count === 0;
       return [
         { text: label(r), bold, italics: r.kind === 'outside' || r.kind === 'undated' },
-        { text: int(r.population.count), bold },
-        { text: share(r.population.count, v.populationTotal), bold },
-        ...(v.withAmounts ? [{ text: amt(r.population.amount), bold }] : []),
-        { text: int(r.sample.count), bold },
-        { text: share(r.sample.count, v.sampleTotal), bold },
-        ...(v.withAmounts ? [{ text: r.sample.count > 0 || bold ? amt(r.sample.amount) : '', bold }] : []),
+        ...(sp ? [{ text: partOf(r), bold }] : []),
+        { text: popUnknown ? '–' : int(r.population.count), bold },
+        { text: popUnknown ? '–' : share(r.population.count, v.populationTotal), bold },
+        ...(v.withAmounts ? [{ text: popUnknown ? '–' : amt(r.population.amount), bold }] : []),
+        { text: smpPending ? '–' : int(r.sample.count), bold },
+        { text: smpPending ? '–' : share(r.sample.count, v.sampleTotal), bold },
+        ...(v.withAmounts ? [{ text: smpPending ? '–' : r.sample.count > 0 || bold ? amt(r.sample.amount) : '', bold }] : []),
       ];
     }),
     { size: 16 },
@@ -629,10 +645,11 @@ async function spreadSection(c: Ctx): Promise<void> {
         imageParagraph(png, svg, {
           name: 'spread-chart',
           title: H.spread,
-          description: months.map((r) => `${r.month}: ${L.populationItems} ${int(r.population.count)}, ${L.sampleItems} ${int(r.sample.count)}`).join('; '),
+          description: months.map((r) => `${r.month}${sp ? ` (${partOf(r)})` : ''}: ${L.populationItems} ${int(r.population.count)}, ${L.sampleItems} ${int(r.sample.count)}`).join('; '),
         }),
       );
       b.p(b.f(T.spreadCaption), { style: 'Caption' });
+      if (sp) b.p(b.f(T.spreadCaptionParts), { style: 'Caption' });
     } else b.note(b.f(T.chartUnavailable));
   }
 }

@@ -144,6 +144,12 @@ export const PLACEHOLDERS = {
   spreadMonthsEmpty: 'the months of the period in which the population holds no item, comma separated',
   spreadOutsideCount: 'the number of population items dated outside the period',
   spreadUndatedCount: 'the number of population items with no readable date',
+  spreadSplitMonth: 'a test done in parts: the month the interim date falls inside (it belongs to both parts), when the interim date is not a month\'s last day',
+  spreadPartsPending: 'a test done in parts: the part(s) whose sample is not selected yet, by the words of labels.spreadPartNames',
+  spreadPartsNoTally: 'a test done in parts: the part(s) whose population has no rows by month recorded (a file written before they were)',
+  spreadPartsNoDates: 'a test done in parts: the part(s) whose population carries no dates',
+  spreadPartsNoPopulation: 'a test done in parts: the part(s) whose population is not recorded yet',
+  spreadPartsCounted: 'a test done in parts: the part(s) whose population is counted by month',
   interimDate: 'a test done in parts: the interim date, the last day of the interim part (YYYY-MM-DD)',
   rollForwardStart: 'the first day of the roll-forward part (YYYY-MM-DD)',
   rollForwardEnd: 'the last day of the roll-forward part, the period end (YYYY-MM-DD)',
@@ -342,6 +348,10 @@ export const MemoFile = z.strictObject({
     sizeRule: para.default('Size rule'),
     sizeRulePolicyProRata: para.default('Firm policy, pro rata to the months remaining'),
     sizeRuleStatistical: para.default('Statistical, on the roll-forward population'),
+    // Added with the spread of a test in parts over the whole period.
+    partBoth: para.default('Both (interim date inside)'),
+    spreadPartNames: labelsOf(['interim', 'roll-forward'] as const).default({ interim: 'interim', 'roll-forward': 'roll-forward' }),
+    spreadPartsAnd: para.default('and'),
   }),
   text: z.strictObject({
     ...(Object.fromEntries(TEXTS.map((k) => [k, para])) as Record<(typeof TEXTS)[number], z.ZodString>),
@@ -370,6 +380,14 @@ export const MemoFile = z.strictObject({
     spreadNoDates: para.default('The population is a list of document numbers, which carry no dates, so the memo cannot show how the sample spreads over the period.'),
     spreadNoDateColumn: para.default('No date column was named for the population, so the memo cannot show how the sample spreads over the period.'),
     spreadNoSelection: para.default('The population by month is recorded; the sample beside it is shown once the items are selected.'),
+    // Added with the spread of a test in parts over the whole period.
+    spreadParts: para.default('The test was done in parts, so the table covers the whole period: each month\'s population is the interim and the roll-forward populations added, and its sample the sample items of both selections added. The column Part says which part each month belongs to: the interim part runs from {{periodStart}} to {{interimDate}}, the roll-forward part from {{rollForwardStart}} to {{rollForwardEnd}}.'),
+    spreadSplit: para.default('The interim date {{interimDate}} falls inside {{spreadSplitMonth}}, so that month belongs to both parts: its figures are the two parts\' added.'),
+    spreadPartPending: para.default('The {{spreadPartsPending}} sample is not selected yet: the {{spreadPartsPending}} months show the population only (– in the sample columns), and none of them is named as a month with no item selected.'),
+    spreadPartNoTally: para.default('The {{spreadPartsNoTally}} population\'s rows by month were not recorded (its file was written before they were): the population figures are the {{spreadPartsCounted}} part\'s alone (– where a month is only the {{spreadPartsNoTally}} part\'s), and the {{spreadPartsNoTally}} sample is counted by the dates of its items.'),
+    spreadPartNoDates: para.default('The {{spreadPartsNoDates}} population carries no dates (a list of numbers, or no date column named), so the {{spreadPartsNoDates}} part is not in the table: its figures are the {{spreadPartsCounted}} part\'s alone.'),
+    spreadPartNoPopulation: para.default('The {{spreadPartsNoPopulation}} population is not recorded yet: the {{spreadPartsNoPopulation}} months show nothing of it (– in the table).'),
+    spreadCaptionParts: para.default('The months run over the whole period, both parts together; the interim part ends on {{interimDate}}.'),
     // Added with the roll-forward part (a test done at an interim date).
     interimPartNote: para.default('This test was done in two parts. The population and selection in this section are those of the interim part, from {{periodStart}} to {{interimDate}}; the roll-forward part, from {{rollForwardStart}} to {{rollForwardEnd}}, has its own section.'),
     rollForwardLead: para.default('The roll-forward part covers {{rollForwardStart}} to {{rollForwardEnd}}, the rest of the period after the interim date {{interimDate}}. It has its own population, agreed to the ledger and fingerprinted, its own sample size and its own selection with its own seed; its items were tested and recorded like the interim ones. The test\'s attributes, deviation definitions, confidence and tolerable rates apply to both parts.'),
