@@ -263,7 +263,7 @@ export const SPREAD_COLORS = { population: '#A6A6A6', sample: COLORS.sample } as
  * its share of the population's items and its share of the sample's, to the same scale, so a month
  * the sample leaves out or covers heavily stands out. The same figures are in the table beside it.
  */
-export function spreadSvg(bars: readonly SpreadBar[], labels: { population: string; sample: string }, width = 620): { svg: string; width: number; height: number; geometry: Array<{ month: string; populationTop: number; sampleTop: number; base: number }> } {
+export function spreadSvg(bars: readonly SpreadBar[], labels: { population: string; sample: string }, width = 620, boundary?: { at: number; label: string }): { svg: string; width: number; height: number; geometry: Array<{ month: string; populationTop: number; sampleTop: number; base: number }> } {
   const left = 48;
   const right = 16;
   const top = 34;
@@ -307,6 +307,13 @@ export function spreadSvg(bars: readonly SpreadBar[], labels: { population: stri
   });
   out.push(`<line x1="${left}" y1="${base}" x2="${left + plotW}" y2="${base}" stroke="${COLORS.text}" stroke-width="1"/>`);
   out.push(`<line x1="${left}" y1="${top}" x2="${left}" y2="${base}" stroke="${COLORS.text}" stroke-width="1"/>`);
+  // A test in parts: a dashed line where the interim part ends (at a slot's edge, or through the
+  // middle of the month the interim date falls inside), labelled, so the two parts' months read apart.
+  if (boundary && boundary.at > 0 && boundary.at < bars.length) {
+    const bx = (left + slot * boundary.at).toFixed(2);
+    out.push(`<line x1="${bx}" y1="${top - 6}" x2="${bx}" y2="${base}" stroke="${COLORS.text}" stroke-width="1" stroke-dasharray="4 3"/>`);
+    out.push(`<text x="${(Number(bx) - 4).toFixed(2)}" y="${top - 2}" text-anchor="end" font-family="${FONT}" font-size="10" fill="${COLORS.text}">${esc(boundary.label)}</text>`);
+  }
   out.push('</svg>');
   return { svg: out.join('\n'), width, height, geometry };
 }

@@ -630,7 +630,8 @@ async function spreadSection(c: Ctx): Promise<void> {
     }),
     { size: 16 },
   );
-  b.ps(v.unselected.length ? T.spreadUnselected : T.spreadAllSelected);
+  // While a part is not selected yet, "every month has an item" can only be said of the parts selected.
+  b.ps(v.unselected.length ? T.spreadUnselected : sp?.pending.length ? T.spreadAllSelectedSoFar : T.spreadAllSelected);
   if (v.empty.length) b.ps(T.spreadEmpty);
   if (v.outside.population + v.undated.population > 0) b.ps(T.spreadApart);
   const months = v.rows.filter((r) => r.kind === 'month');
@@ -638,7 +639,10 @@ async function spreadSection(c: Ctx): Promise<void> {
     b.h2(H.spreadChart);
     const bars = months.map((r) => ({ month: r.month!, populationShare: v.populationTotal ? r.population.count / v.populationTotal : 0, sampleShare: v.sampleTotal ? r.sample.count / v.sampleTotal : 0 }));
     const chartW = Math.min(640, Math.floor((b.width / 1440) * 96));
-    const svg = spreadSvg(bars, { population: L.legendPopulationShare, sample: L.legendSampleShare }, chartW);
+    // A test in parts: where the interim part ends (after its last month, or inside the month split by the interim date).
+    const lastInterim = months.map((r) => r.parts?.length === 1 && r.parts[0] === 'interim').lastIndexOf(true);
+    const boundary = sp ? { at: sp.split ? months.findIndex((r) => r.month === sp.split) + 0.5 : lastInterim + 1, label: `${L.interimDate} ${sp.interimDate}` } : undefined;
+    const svg = spreadSvg(bars, { population: L.legendPopulationShare, sample: L.legendSampleShare }, chartW, boundary);
     const png = await renderPng(svg.svg, 2);
     if (png) {
       b.children.push(

@@ -11,6 +11,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runCli } from '../../src/cli/main.js';
 import { renderMemo } from '../../src/memo/index.js';
+import { spreadSvg } from '../../src/memo/chart.js';
 import { readMemoBlocks, type MemoBlock } from '../../src/memo/read.js';
 import { loadWorkpaper } from '../../src/workpaper/file.js';
 import type { Workpaper } from '../../src/workpaper/schema.js';
@@ -103,6 +104,18 @@ describe('the memo of a test in parts: spread of the sample over the whole perio
     const xml = (await import('jszip')).default;
     const docXml = await (await xml.loadAsync(readFileSync(join(r.dir, 'memo.docx')))).file('word/document.xml')!.async('string');
     expect(docXml).toMatch(/descr="2025-01 \(Interim\): Population items \d+, Sample items \d+;[^"]*2025-12 \(Roll-forward\): Population items \d+, Sample items \d+"/);
+    // The picture marks where the interim part ends: a dashed line after September, labelled.
+    const bars = MONTHS.map((month) => ({ month, populationShare: 1 / 12, sampleShare: 1 / 12 }));
+    const marked = spreadSvg(bars, { population: 'p', sample: 's' }, 620, { at: 9, label: 'Interim date 2025-09-30' });
+    const line = /<line x1="([\d.]+)"[^>]*stroke-dasharray/.exec(marked.svg);
+    expect(line).not.toBeNull();
+    const sepX = Number(line![1]);
+    // Between September's bars and October's: September's sample bar ends left of it, October's population bar starts right of it.
+    const rects = [...marked.svg.matchAll(/<rect x="([\d.]+)" y="[\d.]+" width="([\d.]+)" height="[\d.]+" fill="#/g)].slice(3).map((m) => [Number(m[1]), Number(m[2])]);
+    expect(rects[17]![0] + rects[17]![1]).toBeLessThan(sepX);
+    expect(rects[18]![0]).toBeGreaterThan(sepX);
+    expect(marked.svg).toContain('>Interim date 2025-09-30</text>');
+    expect(spreadSvg(bars, { population: 'p', sample: 's' }, 620).svg).not.toContain('stroke-dasharray');
     // Re-performance renders the same memo afresh and finds it equal.
     const clean = captureContext(r.dir, false);
     expect(await runCli(['reperform', 't1.tolrate.json', '--memo', 'memo.docx'], clean)).toBe(0);
@@ -142,6 +155,8 @@ describe('the memo of a test in parts: spread of the sample over the whole perio
     // No roll-forward month is named as one with no item selected while its sample is not drawn.
     expect(text).not.toMatch(/No item was selected from these months[^.]*2025-1[0-2]/);
     if (unselected.length) expect(text).toContain(`No item was selected from these months, in which the population holds items: ${unselected.join(', ')}.`);
+    else expect(text).toContain('Every month of the parts selected so far in which the population holds items has at least one item selected.');
+    expect(text).not.toContain('Every month of the period in which the population holds items has at least one item selected.');
 
     // An older roll-forward population with no rows by month: named, its months show the sample only.
     const { monthTally: _t, ...fp } = wp.rollForward!.population!.fingerprint;
