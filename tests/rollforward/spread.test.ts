@@ -121,6 +121,8 @@ describe('the memo of a test in parts: spread of the sample over the whole perio
     expect(await runCli(['reperform', 't1.tolrate.json', '--memo', 'memo.docx'], clean)).toBe(0);
 
     // The interim date inside a month: that month belongs to both parts, and the memo says so.
+    // (Only the dates are moved, in memory: the interview would refuse this interim date, as the
+    // interim file holds September items after it; the marking of the months is what is checked.)
     const split: Workpaper = { ...wp, rollForward: { ...wp.rollForward!, interimDate: '2025-09-15', periodStart: '2025-09-16' } };
     const s = await spreadTable(await renderMemo(split));
     expect(s.rows.find((x) => x[0] === '2025-09')!.slice(0, 3)).toEqual(['2025-09', 'Both (interim date inside)', String(pop.filter((x) => x.month === '2025-09').length)]);
