@@ -13,7 +13,7 @@
  */
 import { AmountTotal, monthOfDate, parseAmount } from '../population/index.js';
 import type { MonthTally } from '../population/index.js';
-import { partPeriod, partView } from '../control-test/index.js';
+import { partPeriod, partView, worklist } from '../control-test/index.js';
 import type { Workpaper } from '../workpaper/schema.js';
 
 export type SpreadPart = 'interim' | 'roll-forward';
@@ -112,7 +112,7 @@ interface Source {
   sample?: Array<{ values: Record<string, string> }>;
 }
 
-function sourceOf(wp: Pick<Workpaper, 'population' | 'selection'>, part?: SpreadPart): Source | { missing: 'population' | 'tally' | 'dates'; reason?: 'ranges' | 'no-date-column' } {
+function sourceOf(wp: Workpaper, part?: SpreadPart): Source | { missing: 'population' | 'tally' | 'dates'; reason?: 'ranges' | 'no-date-column' } {
   const p = wp.population;
   if (!p) return { missing: 'population' };
   const src = p.source;
@@ -122,7 +122,10 @@ function sourceOf(wp: Pick<Workpaper, 'population' | 'selection'>, part?: Spread
   if (!tally && !(fileLike && src.dateColumn)) return { missing: 'dates', reason: src.kind === 'ranges' ? 'ranges' : 'no-date-column' };
   // The sample: the items drawn as the sample (spares are not part of it unless used, which the
   // results record; the spread is of the selection as drawn).
-  const sample = wp.selection?.items.filter((i) => i.role === 'sample');
+  // Under a two-stage plan the second stage's items count only when they are on the worklist (the
+  // first stage left a decision to them); otherwise they were drawn but never tested.
+  const listed = wp.selection?.items.some((i) => i.stage === 2) ? new Set(worklist(wp).items.map((x) => x.item.key)) : undefined;
+  const sample = wp.selection?.items.filter((i) => i.role === 'sample' && (i.stage !== 2 || listed!.has(i.key)));
   const out: Source = {
     ...(part ? { part } : {}),
     ...(tally ? { tally: tally as MonthTally & { dateColumn: string } } : {}),

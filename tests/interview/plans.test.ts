@@ -106,6 +106,12 @@ describe('two-stage plan', () => {
     const r = await reperform(dir);
     expect(r.text).toMatch(/two stages n1 62, c1 0, r1 2, n2 18, c2 1/);
     expect(r.code, r.text).toBe(0);
+    // The spread by month counts the items tested: the 18 second-stage items were drawn but, with
+    // the first stage deciding, never tested, so the sample's total is the 62 of the first stage.
+    const spreadTotal = (await readMemoBlocks(await renderMemo(loadWorkpaper(file), { chart: false })))
+      .flatMap((b) => (b.kind === 'table' ? b.rows.map((x) => x.join(' | ')) : []))
+      .find((x) => x.startsWith('Total | 240 |'));
+    expect(spreadTotal).toMatch(/^Total \| 240 \| 100\.0% \| [\d,.]+ \| 62 \| 100\.0% \|/);
 
     // A second-stage result added outside the tool, although the first stage decided.
     const t = JSON.parse(readFileSync(file, 'utf8'));
@@ -148,6 +154,8 @@ describe('two-stage plan', () => {
     expect(rows).toContain('Second stage: items (n2) | 18');
     expect(rows).toContain('Relies with at most, both stages (c2) | 1');
     expect(rows).toContain('A1 | 1 / 62 | 0 / 18 | 2 | Relied on after the second stage');
+    // The second stage was tested, so the spread by month counts all 80 items.
+    expect(rows.find((x) => x.startsWith('Total | 240 |'))).toMatch(/^Total \| 240 \| 100\.0% \| [\d,.]+ \| 80 \| 100\.0% \|/);
     expect(rows).toContain('A2 | 0 / 62 | not needed: the first stage decided | 1 | Relied on at the first stage');
     expect(rows.some((r) => /^63 \| PV-\d+ \| \d+ \| Sample, stage 2 \| Conforms \| — \| Second stage: A1$/.test(r))).toBe(true);
     expect(text).toMatch(/planned in two stages, both selected in advance: 62 items are tested first/);
