@@ -1341,10 +1341,10 @@ const SECTIONS: ReadonlyArray<{ heading: keyof MemoTemplate['memo']['headings'];
   { heading: 'population', render: populationSection },
   { heading: 'approach', render: approachSection },
   { heading: 'selection', render: selectionSection },
-  // Only when the population's tally by month is recorded: a memo of an older file keeps its sections and their numbers.
-  { heading: 'spread', render: spreadSection, when: (m) => m.spread !== undefined },
   // A test done at an interim date only: the roll-forward part, and the figures per part and for the whole period.
   { heading: 'rollForward', render: rollForwardSection, when: (m) => m.wp.rollForward !== undefined },
+  // After both parts' selections, so that the spread of the whole period follows them. Only when the population's tally by month is recorded: a memo of an older file keeps its sections and their numbers.
+  { heading: 'spread', render: spreadSection, when: (m) => m.spread !== undefined },
   { heading: 'results', render: resultsSection },
   { heading: 'wholePeriod', render: wholePeriodSection, when: (m) => m.wp.rollForward !== undefined },
   { heading: 'deviations', render: deviationsSection },
